@@ -1,0 +1,142 @@
+package results
+
+import (
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// FloatDigits is the number of decimals written for metrics and
+// probabilities in CSV files.
+const FloatDigits = 6
+
+// Prediction is one row of predictions.csv.
+type Prediction struct {
+	Dataset, Pipeline, Model string
+	Repeat, Fold             int
+	Row                      int // 0-based index of the instance in the dataset as loaded
+	Label, Predicted         string
+	PAcc                     float64 // post-selection probability; NaN when the model has none
+}
+
+// Fold is one row of folds.csv.
+type Fold struct {
+	Dataset, Pipeline, Model string
+	Repeat, Fold             int
+	NTrain, NTest            int
+	Scores                   Scores
+	MeanPAcc                 float64 // NaN when the model has none
+}
+
+// MetricSummary is a metric's mean, standard deviation and confidence
+// interval over the folds of a cell.
+type MetricSummary struct {
+	Mean, Std, Lo, Hi float64
+}
+
+// Summary is one row of summary.csv: a (dataset, pipeline, model) cell.
+type Summary struct {
+	Dataset, Pipeline, Model string
+	Folds                    int // number of (repeat, fold) scores behind the cell
+	Interval                 string
+	Metrics                  []MetricSummary // in the order of MetricNames
+	MeanPAcc                 float64         // NaN when the model has none
+}
+
+// Timing is one row of timings.csv.
+type Timing struct {
+	Dataset, Pipeline, Model string
+	Repeat, Fold             int
+	Seconds                  float64
+}
+
+// Fmt formats a float with FloatDigits decimals; NaN is written as "".
+func Fmt(v float64) string {
+	if math.IsNaN(v) {
+		return ""
+	}
+	if v == 0 {
+		v = 0 // no "-0.000000"
+	}
+	s := strconv.FormatFloat(v, 'f', FloatDigits, 64)
+	if s == "-0."+strings.Repeat("0", FloatDigits) {
+		s = s[1:]
+	}
+	return s
+}
+
+// WritePredictions writes predictions.csv.
+func WritePredictions(w io.Writer, rows []Prediction) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc"})
+	for _, r := range rows {
+		correct := "0"
+		if r.Label == r.Predicted {
+			correct = "1"
+		}
+		cw.Write([]string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.Itoa(r.Row), r.Label, r.Predicted, correct, Fmt(r.PAcc)})
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteFolds writes folds.csv.
+func WriteFolds(w io.Writer, rows []Fold) error {
+	cw := csv.NewWriter(w)
+	head := []string{"dataset", "pipeline", "model", "repeat", "fold", "n_train", "n_test"}
+	head = append(head, MetricNames...)
+	head = append(head, "mean_p_acc")
+	cw.Write(head)
+	for _, r := range rows {
+		rec := []string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.Itoa(r.NTrain), strconv.Itoa(r.NTest)}
+		for _, v := range r.Scores.Values() {
+			rec = append(rec, Fmt(v))
+		}
+		rec = append(rec, Fmt(r.MeanPAcc))
+		cw.Write(rec)
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteSummary writes summary.csv.
+func WriteSummary(w io.Writer, rows []Summary) error {
+	cw := csv.NewWriter(w)
+	head := []string{"dataset", "pipeline", "model", "n_scores", "interval"}
+	for _, m := range MetricNames {
+		head = append(head, m+"_mean", m+"_std", m+"_lo", m+"_hi")
+	}
+	head = append(head, "mean_p_acc")
+	cw.Write(head)
+	for _, r := range rows {
+		rec := []string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Folds), r.Interval}
+		if len(r.Metrics) != len(MetricNames) {
+			return fmt.Errorf("results: summary row %s/%s/%s has %d metrics, want %d", r.Dataset, r.Pipeline, r.Model, len(r.Metrics), len(MetricNames))
+		}
+		for _, m := range r.Metrics {
+			rec = append(rec, Fmt(m.Mean), Fmt(m.Std), Fmt(m.Lo), Fmt(m.Hi))
+		}
+		rec = append(rec, Fmt(r.MeanPAcc))
+		cw.Write(rec)
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteTimings writes timings.csv (wall-clock seconds per task; varies
+// between runs by nature).
+func WriteTimings(w io.Writer, rows []Timing) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "seconds"})
+	for _, r := range rows {
+		cw.Write([]string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.FormatFloat(r.Seconds, 'f', 6, 64)})
+	}
+	cw.Flush()
+	return cw.Error()
+}
