@@ -1,0 +1,96 @@
+// Command fringe benchmarks the interference quantum classifier against
+// classical baselines. See the README for the verbs and the spec format.
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"syscall"
+
+	"fringe/bench"
+)
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	err := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
+	stop()
+	if err != nil {
+		if !errors.Is(err, errSilent) {
+			fmt.Fprintln(os.Stderr, "fringe:", err)
+		}
+		os.Exit(exitCode(err))
+	}
+}
+
+// errUsage marks bad command-line usage (exit status 2).
+var errUsage = errors.New("usage")
+
+// errSilent marks an error already reported (e.g. by the flag package).
+var errSilent = errors.New("reported")
+
+// usageError is bad usage with a message.
+type usageError struct{ msg string }
+
+func (e *usageError) Error() string { return e.msg }
+func (e *usageError) Unwrap() error { return errUsage }
+
+func usagef(format string, args ...any) error { return &usageError{fmt.Sprintf(format, args...)} }
+
+// exitCode maps an error to the exit status: 2 for bad usage or bad input,
+// 1 for anything else.
+func exitCode(err error) int {
+	switch {
+	case err == nil:
+		return 0
+	case errors.Is(err, errUsage), errors.Is(err, bench.ErrInput):
+		return 2
+	}
+	return 1
+}
+
+// command is one verb.
+type command struct {
+	name, args, short string
+	run               func(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error
+}
+
+func commands() []*command {
+	return []*command{
+		{name: "demo", args: "[-out DIR] [-workers N]", short: "run the built-in demo experiment on embedded data", run: runDemo},
+		{name: "run", args: "SPEC.toml [-out DIR] [-workers N]", short: "run an experiment spec", run: runSpec},
+		{name: "list", args: "", short: "list embedded datasets, pipeline steps and models", run: runList},
+	}
+}
+
+func mainUsage(w io.Writer) {
+	fmt.Fprintln(w, "usage: fringe VERB [flags] [args]")
+	fmt.Fprintln(w, "\nfringe benchmarks the interference quantum classifier against classical baselines.\n\nverbs:")
+	for _, c := range commands() {
+		fmt.Fprintf(w, "  %-6s %s\n", c.name, c.short)
+	}
+	fmt.Fprintln(w, "\nRun 'fringe VERB -h' for a verb's flags.")
+}
+
+// run is the whole program; main only adds signals and the exit status.
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	if len(args) == 0 {
+		mainUsage(stderr)
+		return usagef("missing verb")
+	}
+	switch args[0] {
+	case "-h", "-help", "--help", "help":
+		mainUsage(stdout)
+		return nil
+	}
+	for _, c := range commands() {
+		if c.name == args[0] {
+			return c.run(ctx, c, args[1:], stdout, stderr)
+		}
+	}
+	mainUsage(stderr)
+	return usagef("unknown verb %q", args[0])
+}

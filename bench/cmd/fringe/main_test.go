@@ -1,0 +1,172 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+)
+
+// runCmd drives the command in-process from dir and returns the exit
+// status it would have, with stdout and stderr.
+func runCmd(t *testing.T, dir string, args ...string) (int, string, string) {
+	t.Helper()
+	if dir != "" {
+		t.Chdir(dir)
+	}
+	var out, errb bytes.Buffer
+	err := run(context.Background(), args, &out, &errb)
+	if err != nil {
+		errb.WriteString("fringe: " + err.Error() + "\n")
+	}
+	return exitCode(err), out.String(), errb.String()
+}
+
+// TestBadInput checks the bad-input corpus: every case exits with status 2,
+// prints a one-line message naming the file and line or the key at fault,
+// and leaves no run directory behind.
+func TestBadInput(t *testing.T) {
+	bad, err := filepath.Abs("testdata/bad")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		spec string
+		want []string // substrings of the message
+	}{
+		{"empty.toml", []string{"empty.csv", "empty"}},
+		{"header_only.toml", []string{"header_only.csv:1", "no data"}},
+		{"ragged.toml", []string{"ragged.csv:4"}},
+		{"nonnumeric.toml", []string{"nonnumeric.csv:3", "x2"}},
+		{"nan.toml", []string{"nan.csv:3", "x2"}},
+		{"inf.toml", []string{"inf.csv:4", "x2"}},
+		{"one_class.toml", []string{"one_class.csv", "class"}},
+		{"small_class.toml", []string{"small_class.toml", `class "c" has 2 members`, "3 folds"}},
+		{"zero_row.toml", []string{"zero_row.toml", "row 2", "zero"}},
+		{"unknown_key.toml", []string{"unknown_key.toml:4", "colour"}},
+		{"unknown_model_key.toml", []string{"unknown_model_key.toml:7", "model[1].gama"}},
+		{"unknown_kind.toml", []string{"unknown_kind.toml:7", "forest"}},
+		{"k_too_large.toml", []string{"k_too_large.toml:9", "model[1].k", "k = 200"}},
+		{"c_nonpositive.toml", []string{"c_nonpositive.toml:7", "model[1].C"}},
+		{"logreg_c_negative.toml", []string{"logreg_c_negative.toml:6", "model[1].C"}},
+		{"folds_lt2.toml", []string{"folds_lt2.toml:6", "cv.folds"}},
+		{"unknown_dataset.toml", []string{"unknown_dataset.toml:3", "irises"}},
+		{"unreadable_path.toml", []string{"no/such/file.csv"}},
+		{"syntax.toml", []string{"syntax.toml:"}},
+		{"unknown_step.toml", []string{"unknown_step.toml:4", "whiten"}},
+		{"unknown_class.toml", []string{"unknown_class.toml", "tulip"}},
+		{"missing.toml", []string{"missing.toml"}},
+	}
+	for _, c := range cases {
+		t.Run(c.spec, func(t *testing.T) {
+			work := t.TempDir()
+			out := filepath.Join(work, "out")
+			code, _, stderr := runCmd(t, work, "run", filepath.Join(bad, c.spec), "-out", out, "-workers", "2")
+			if code != 2 {
+				t.Fatalf("exit status %d, want 2; stderr:\n%s", code, stderr)
+			}
+			msg := strings.TrimSpace(stderr)
+			if strings.Count(msg, "\n") != 0 {
+				t.Errorf("message has %d lines, want one:\n%s", strings.Count(msg, "\n")+1, msg)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(msg, w) {
+					t.Errorf("message %q lacks %q", msg, w)
+				}
+			}
+			entries, err := os.ReadDir(work)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, e := range entries {
+				t.Errorf("left %s behind in the working directory", e.Name())
+			}
+		})
+	}
+	if n := len(cases); n < 15 {
+		t.Fatalf("bad-input corpus has %d cases, want at least 15", n)
+	}
+}
+
+func TestUsage(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		code int
+	}{
+		{nil, 2},
+		{[]string{"frobnicate"}, 2},
+		{[]string{"run"}, 2},
+		{[]string{"run", "-workers", "0", "x.toml"}, 2},
+		{[]string{"demo", "-nosuchflag"}, 2},
+		{[]string{"-h"}, 0},
+		{[]string{"demo", "-h"}, 0},
+		{[]string{"run", "-h"}, 0},
+		{[]string{"list", "-h"}, 0},
+	} {
+		code, _, stderr := runCmd(t, "", c.args...)
+		if code != c.code {
+			t.Errorf("fringe %v: exit %d, want %d (stderr %q)", c.args, code, c.code, stderr)
+		}
+	}
+}
+
+func TestList(t *testing.T) {
+	code, out, stderr := runCmd(t, "", "list")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, w := range []string{"iris", "wine", "breast-cancer", "sha256", "licence", "std", "l2", "pad", "lift", "interference", "knn", "svm", "logreg", "centroid"} {
+		if !strings.Contains(out, w) {
+			t.Errorf("list output lacks %q", w)
+		}
+	}
+	if !regexp.MustCompile(`[0-9a-f]{64}`).MatchString(out) {
+		t.Error("list output shows no sha256 digest")
+	}
+}
+
+// TestDemoDeterministic runs the demo with 1 and 2 workers and compares the
+// output files byte for byte (manifest.json and timings.csv excepted: they
+// record times by design).
+func TestDemoDeterministic(t *testing.T) {
+	if testing.Short() {
+		t.Skip("demo run skipped in -short mode")
+	}
+	dir := t.TempDir()
+	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
+	if code, _, stderr := runCmd(t, "", "demo", "-out", a, "-workers", "1", "-quiet"); code != 0 {
+		t.Fatalf("demo -workers 1: exit %d: %s", code, stderr)
+	}
+	code, out, stderr := runCmd(t, "", "demo", "-out", b, "-workers", "2")
+	if code != 0 {
+		t.Fatalf("demo -workers 2: exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(out, "interference") {
+		t.Errorf("demo summary lacks the interference classifier:\n%s", out)
+	}
+	for _, f := range []string{"predictions.csv", "folds.csv", "summary.csv", "summary.tex"} {
+		x, err := os.ReadFile(filepath.Join(a, f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		y, err := os.ReadFile(filepath.Join(b, f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(x, y) {
+			t.Errorf("%s differs between -workers 1 and -workers 2", f)
+		}
+	}
+	for _, f := range []string{"manifest.json", "timings.csv"} {
+		if _, err := os.Stat(filepath.Join(a, f)); err != nil {
+			t.Errorf("missing %s: %v", f, err)
+		}
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 2 {
+		t.Errorf("output parent holds %d entries, want 2 (no leftover temporary directories)", len(entries))
+	}
+}

@@ -1,0 +1,210 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"text/tabwriter"
+	"time"
+
+	"fringe/bench"
+	"fringe/datasets"
+	"fringe/results"
+)
+
+// newFlags makes a verb's flag set; -h prints the verb's usage to stdout.
+func newFlags(c *command, stdout io.Writer) *flag.FlagSet {
+	fs := flag.NewFlagSet("fringe "+c.name, flag.ContinueOnError)
+	fs.SetOutput(stdout)
+	fs.Usage = func() {
+		fmt.Fprintf(fs.Output(), "usage: fringe %s %s\n\n%s\n", c.name, c.args, c.short)
+		var any bool
+		fs.VisitAll(func(*flag.Flag) { any = true })
+		if any {
+			fmt.Fprintln(fs.Output(), "\nflags:")
+			fs.PrintDefaults()
+		}
+	}
+	return fs
+}
+
+// parse parses flags that may come before or after positional arguments
+// and returns the positional ones. -h gives flag.ErrHelp.
+func parse(fs *flag.FlagSet, args []string, stderr io.Writer) ([]string, error) {
+	var pos []string
+	for {
+		out := fs.Output()
+		var buf strings.Builder
+		fs.SetOutput(&buf)
+		err := fs.Parse(args)
+		fs.SetOutput(out)
+		if errors.Is(err, flag.ErrHelp) {
+			fs.Usage()
+			return nil, flag.ErrHelp
+		}
+		if err != nil {
+			return nil, usagef("%s: %v (see 'fringe %s -h')", fs.Name(), err, strings.TrimPrefix(fs.Name(), "fringe "))
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			return pos, nil
+		}
+		pos = append(pos, args[0])
+		args = args[1:]
+	}
+}
+
+type runFlags struct {
+	out     string
+	workers int
+	quiet   bool
+}
+
+func addRunFlags(fs *flag.FlagSet) *runFlags {
+	rf := &runFlags{}
+	fs.StringVar(&rf.out, "out", "", "output run directory (default fringe-out/<spec name>)")
+	fs.IntVar(&rf.workers, "workers", runtime.NumCPU(), "concurrent tasks")
+	fs.BoolVar(&rf.quiet, "quiet", false, "print nothing but errors")
+	return rf
+}
+
+func runDemo(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags(c, stdout)
+	rf := addRunFlags(fs)
+	pos, err := parse(fs, args, stderr)
+	if err != nil {
+		return helpOK(err)
+	}
+	if len(pos) > 0 {
+		return usagef("demo takes no arguments, got %q", pos[0])
+	}
+	spec, err := bench.DemoSpec()
+	if err != nil {
+		return err
+	}
+	if !rf.quiet {
+		fmt.Fprint(stdout, bench.DemoStory+"\n")
+	}
+	return execute(ctx, spec, rf, append([]string{"fringe", "demo"}, args...), stdout, stderr)
+}
+
+func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags(c, stdout)
+	rf := addRunFlags(fs)
+	pos, err := parse(fs, args, stderr)
+	if err != nil {
+		return helpOK(err)
+	}
+	if len(pos) != 1 {
+		return usagef("run takes exactly one spec file (see 'fringe run -h')")
+	}
+	spec, err := bench.LoadSpec(pos[0])
+	if err != nil {
+		return err
+	}
+	return execute(ctx, spec, rf, append([]string{"fringe", "run"}, args...), stdout, stderr)
+}
+
+func helpOK(err error) error {
+	if errors.Is(err, flag.ErrHelp) {
+		return nil
+	}
+	return err
+}
+
+// execute plans, runs and writes a spec.
+func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []string, stdout, stderr io.Writer) error {
+	if rf.workers < 1 {
+		return usagef("-workers must be at least 1, got %d", rf.workers)
+	}
+	out := rf.out
+	if out == "" {
+		out = filepath.Join("fringe-out", spec.Name)
+	}
+	start := time.Now()
+	plan, err := bench.NewPlan(spec)
+	if err != nil {
+		return err
+	}
+	res, err := bench.Execute(ctx, plan, bench.Options{Workers: rf.workers})
+	if err != nil {
+		if ctx.Err() != nil {
+			return fmt.Errorf("interrupted; nothing was written (run the same command again to start over)")
+		}
+		return err
+	}
+	end := time.Now()
+	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: start, End: end}
+	if err := plan.Write(out, res, info, nil); err != nil {
+		return err
+	}
+	if !rf.quiet {
+		if err := results.WriteSummaryText(stdout, plan.Summarise(res)); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "\n%d tasks in %.1f s with %d workers; run directory: %s\n", len(plan.Tasks), end.Sub(start).Seconds(), rf.workers, out)
+	}
+	return nil
+}
+
+func runList(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags(c, stdout)
+	pos, err := parse(fs, args, stderr)
+	if err != nil {
+		return helpOK(err)
+	}
+	if len(pos) > 0 {
+		return usagef("list takes no arguments")
+	}
+	tw := tabwriter.NewWriter(stdout, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "DATASETS\t")
+	for _, p := range datasets.Provenances() {
+		d, err := datasets.Load(p.Name)
+		if err != nil {
+			return err
+		}
+		kind := "open"
+		if p.Synthetic {
+			kind = "synthetic (invented)"
+		}
+		fmt.Fprintf(tw, "  %s\t%d rows x %d features, %d classes (%s); %s\n", p.Name, d.Len(), d.Dim(), len(d.Classes), strings.Join(d.Classes, ", "), kind)
+		fmt.Fprintf(tw, "  \ttitle: %s\n", p.Title)
+		fmt.Fprintf(tw, "  \tcitation: %s\n", p.Citation)
+		fmt.Fprintf(tw, "  \torigin: %s\n", p.Origin)
+		fmt.Fprintf(tw, "  \tlicence: %s\n", p.Licence)
+		fmt.Fprintf(tw, "  \tsha256: %s (%s)\n", p.SHA256, p.File)
+		if p.Note != "" {
+			fmt.Fprintf(tw, "  \tnote: %s\n", p.Note)
+		}
+	}
+	fmt.Fprintln(tw, "  <path>.csv\tyour own CSV: header row, label column by name (default last), delimiter detected")
+	fmt.Fprintln(tw, "\t")
+	fmt.Fprintln(tw, "PIPELINE STEPS (join with '+'; 'raw' = no steps; fitted on training parts only)\t")
+	for _, s := range datasets.StepInfos() {
+		fmt.Fprintf(tw, "  %s\t%s\n", s.Syntax, s.Description)
+	}
+	fmt.Fprintln(tw, "\t")
+	fmt.Fprintln(tw, "MODELS ([[model]] kind = ...)\t")
+	for _, m := range bench.ModelInfos() {
+		fmt.Fprintf(tw, "  %s\tkeys: %s\n  \t%s\n", m.Kind, orNone(m.Keys), m.Description)
+	}
+	fmt.Fprintln(tw, "\t")
+	fmt.Fprintln(tw, "NOISE MODELS\t")
+	fmt.Fprintln(tw, "  (none yet: the interference model runs in exact mode)\t")
+	return tw.Flush()
+}
+
+func orNone(s string) string {
+	if s == "" {
+		return "(none)"
+	}
+	return s
+}
+
+var _ = os.Stdout

@@ -1,0 +1,200 @@
+package bench
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sync/atomic"
+	"time"
+
+	"golang.org/x/sync/errgroup"
+	"gonum.org/v1/gonum/mat"
+
+	"fringe/baselines"
+	"fringe/datasets"
+	"fringe/qkernel"
+	"fringe/results"
+)
+
+// Options configure the execution of a plan.
+type Options struct {
+	Workers  int                    // concurrent tasks; 0 means runtime.NumCPU()
+	Progress func(done, total int)  // called after each finished task (from worker goroutines, serialised); may be nil
+}
+
+// TaskResult is what one task produced.
+type TaskResult struct {
+	Task    Task
+	NTrain  int
+	NTest   int
+	Pred    []int            // predicted class per test instance (split order)
+	Details []qkernel.Detail // per test instance, for models that report them; else nil
+	Scores  results.Scores
+	Elapsed time.Duration
+}
+
+// detailer is implemented by models that report post-selection details.
+type detailer interface {
+	PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, error)
+}
+
+// Execute runs every task of the plan on a worker pool and returns the
+// results in task order. Each task gets its own generator seed derived from
+// the run seed and the task key, so results do not depend on the number of
+// workers or on scheduling. On the first error (or when ctx is cancelled)
+// tasks not yet started are skipped and the error is returned; errors caused
+// by the input satisfy errors.Is(err, ErrInput).
+func Execute(ctx context.Context, p *Plan, opt Options) ([]TaskResult, error) {
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	out := make([]TaskResult, len(p.Tasks))
+	g, gctx := errgroup.WithContext(ctx)
+	g.SetLimit(workers)
+	var done atomic.Int64
+	progress := make(chan struct{}, len(p.Tasks))
+	progDone := make(chan struct{})
+	go func() {
+		defer close(progDone)
+		n := 0
+		for range progress {
+			n++
+			if opt.Progress != nil {
+				opt.Progress(n, len(p.Tasks))
+			}
+		}
+	}()
+	for i := range p.Tasks {
+		if gctx.Err() != nil {
+			break
+		}
+		g.Go(func() error {
+			if err := gctx.Err(); err != nil {
+				return err
+			}
+			r, err := p.runTask(p.Tasks[i])
+			if err != nil {
+				if errors.Is(err, ErrInput) {
+					return err
+				}
+				return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+			}
+			out[i] = r
+			done.Add(1)
+			progress <- struct{}{}
+			return nil
+		})
+	}
+	err := g.Wait()
+	close(progress)
+	<-progDone
+	if err == nil {
+		err = ctx.Err()
+	}
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// runTask fits the task's pipeline on the training part, transforms both
+// parts, fits the model and predicts the test part.
+func (p *Plan) runTask(t Task) (TaskResult, error) {
+	start := time.Now()
+	d := p.Datasets[t.Dataset]
+	sp := d.Splits[t.Split]
+	ms := p.Spec.Models[t.Model]
+	pipe, err := datasets.ParsePipeline(p.Spec.Pipelines[t.Pipeline])
+	if err != nil {
+		return TaskResult{}, &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+	}
+	where := fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, p.Spec.Pipelines[t.Pipeline], sp.Repeat, sp.Fold)
+	Xtr, ytr, rowsTr := gather(d.Data, sp.Train)
+	Xte, _, rowsTe := gather(d.Data, sp.Test)
+	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
+	if err != nil {
+		return TaskResult{}, p.classify(err, where)
+	}
+	Zte, err := pipe.Transform(Xte, rowsTe)
+	if err != nil {
+		return TaskResult{}, p.classify(err, where)
+	}
+	m := ms.New(Seed(p.Spec.Seed, "task", p.Key(t)))
+	if err := m.Fit(Ztr, ytr, len(d.Data.Classes)); err != nil {
+		return TaskResult{}, p.classifyModel(err, where, ms.Name, rowsTr)
+	}
+	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test)}
+	if dm, ok := m.(detailer); ok {
+		r.Pred, r.Details, err = dm.PredictDetail(Zte)
+	} else {
+		r.Pred, err = m.Predict(Zte)
+	}
+	if err != nil {
+		return TaskResult{}, p.classifyModel(err, where, ms.Name, rowsTe)
+	}
+	if len(r.Pred) != len(sp.Test) {
+		return TaskResult{}, fmt.Errorf("model %s returned %d predictions for %d test instances", ms.Name, len(r.Pred), len(sp.Test))
+	}
+	truth := make([]int, len(sp.Test))
+	for i, j := range sp.Test {
+		truth[i] = d.Data.Y[j]
+	}
+	r.Scores = results.Score(truth, r.Pred, len(d.Data.Classes))
+	r.Elapsed = time.Since(start)
+	return r, nil
+}
+
+// gather copies the rows idx of a dataset into a new matrix, with their
+// labels and their dataset row ids.
+func gather(d *datasets.Dataset, idx []int) (*mat.Dense, []int, []int) {
+	c := d.Dim()
+	X := mat.NewDense(len(idx), c, nil)
+	y := make([]int, len(idx))
+	rows := make([]int, len(idx))
+	for i, j := range idx {
+		copy(X.RawRowView(i), d.X.RawRowView(j))
+		y[i] = d.Y[j]
+		rows[i] = d.Rows[j]
+	}
+	return X, y, rows
+}
+
+// classify marks pipeline errors that stem from the data as input errors.
+func (p *Plan) classify(err error, where string) error {
+	if errors.Is(err, datasets.ErrZeroVector) || errors.Is(err, datasets.ErrUnknownStep) ||
+		errors.Is(err, datasets.ErrStepParam) || errors.Is(err, datasets.ErrNotFiniteValue) {
+		return &InputError{File: p.Spec.File, Err: fmt.Errorf("%s: %w", where, err)}
+	}
+	return fmt.Errorf("%s: %w", where, err)
+}
+
+// classifyModel marks model errors caused by the data or parameters as input
+// errors, and maps a vector's position to its dataset row.
+func (p *Plan) classifyModel(err error, where, model string, rows []int) error {
+	var ve *qkernel.VectorError
+	if errors.As(err, &ve) && ve.Pos >= 0 && ve.Pos < len(rows) {
+		err = fmt.Errorf("dataset row %d: %w", rows[ve.Pos], err)
+	}
+	err = fmt.Errorf("%s, model %s: %w", where, model, err)
+	if errors.Is(err, baselines.ErrParam) || errors.Is(err, baselines.ErrData) ||
+		errors.Is(err, qkernel.ErrZeroVector) || errors.Is(err, qkernel.ErrOneClass) {
+		return &InputError{File: p.Spec.File, Err: err}
+	}
+	return err
+}
+
+// meanPAcc is the mean post-selection probability of a task's predictions,
+// or NaN when the model reports none.
+func meanPAcc(d []qkernel.Detail) float64 {
+	if len(d) == 0 {
+		return math.NaN()
+	}
+	s := 0.0
+	for _, x := range d {
+		s += x.PAcc
+	}
+	return s / float64(len(d))
+}

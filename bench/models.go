@@ -1,0 +1,203 @@
+package bench
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"fringe/baselines"
+	"fringe/datasets"
+	"fringe/qkernel"
+)
+
+// builder makes a fresh, unfitted model for one task. seed is the task's
+// seed, derived from the run seed and the task key.
+type builder func(seed uint64) baselines.Model
+
+// New builds a fresh, unfitted model for a task with the given seed.
+func (m ModelSpec) New(seed uint64) baselines.Model { return m.build(seed) }
+
+// ModelInfo describes a model kind for `fringe list`.
+type ModelInfo struct {
+	Kind, Keys, Description string
+}
+
+// ModelInfos lists the model kinds a spec may use.
+func ModelInfos() []ModelInfo {
+	return []ModelInfo{
+		{"interference", "mode, balance", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode = \"exact\" is the closed form; balance = true weights the index register by 1/(C*M_k)"},
+		{"knn", "k, metric, weights", "k-nearest neighbours; metric euclidean|manhattan|cosine; weights uniform|distance; ties: nearer then lower index, vote ties to the first class"},
+		{"svm", "kernel, C, gamma, degree, coef0, tol", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; one-vs-one"},
+		{"logreg", "C, max_iter", "multinomial logistic regression, L2 penalty 1/C (intercept unpenalised), fitted by L-BFGS"},
+		{"centroid", "", "nearest centroid (Euclidean), a sanity baseline"},
+	}
+}
+
+// parseModel validates one [[model]] table.
+func parseModel(m map[string]any) (ModelSpec, error) {
+	p := newParams(m)
+	kind := p.str("kind", "")
+	if p.err != nil {
+		return ModelSpec{}, p.err
+	}
+	name := p.str("name", "")
+	if p.err != nil {
+		return ModelSpec{}, p.err
+	}
+	ms := ModelSpec{Kind: kind, Params: map[string]any{}}
+	var label string
+	switch kind {
+	case "":
+		return ms, keyErr("kind", "missing model kind (one of %s)", kindList())
+	case "interference":
+		mode := p.str("mode", "exact")
+		balance := p.boolean("balance", false)
+		var qm qkernel.Mode
+		switch mode {
+		case "exact":
+			qm = qkernel.ModeExact
+		default:
+			p.fail("mode", "unknown mode %q (want exact)", mode)
+		}
+		label = "interference"
+		if mode != "exact" {
+			label += "-" + mode
+		}
+		if balance {
+			label += "-balanced"
+		}
+		ms.Params["mode"], ms.Params["balance"] = mode, balance
+		ms.build = func(seed uint64) baselines.Model {
+			return &qkernel.Classifier{Mode: qm, Balance: balance}
+		}
+	case "knn":
+		k := p.integer("k", 5)
+		metricS := p.str("metric", "euclidean")
+		weightsS := p.str("weights", "uniform")
+		if p.err == nil && k < 1 {
+			p.fail("k", "k must be at least 1, got %d", k)
+		}
+		metric, err := baselines.ParseMetric(metricS)
+		if err != nil {
+			p.fail("metric", "%v", err)
+		}
+		weights, err := baselines.ParseWeighting(weightsS)
+		if err != nil {
+			p.fail("weights", "%v", err)
+		}
+		label = fmt.Sprintf("knn-k%d", k)
+		if metricS != "euclidean" {
+			label += "-" + metricS
+		}
+		if weightsS != "uniform" {
+			label += "-" + weightsS
+		}
+		ms.Params["k"], ms.Params["metric"], ms.Params["weights"] = k, metricS, weightsS
+		ms.build = func(uint64) baselines.Model {
+			return &baselines.KNN{K: k, Metric: metric, Weights: weights}
+		}
+	case "svm":
+		kernelS := p.str("kernel", "rbf")
+		c := p.number("C", 1)
+		gamma := 0.0
+		gammaS := "scale"
+		if p.has("gamma") {
+			switch v := m["gamma"].(type) {
+			case string:
+				p.used["gamma"] = true
+				if v != "scale" {
+					p.fail("gamma", "gamma is a positive number or \"scale\", got %q", v)
+				}
+			default:
+				gamma = p.number("gamma", 0)
+				if p.err == nil && !(gamma > 0) {
+					p.fail("gamma", "gamma must be positive, got %v", gamma)
+				}
+				gammaS = fmtNum(gamma)
+			}
+		}
+		degree := p.integer("degree", 3)
+		coef0 := p.number("coef0", 0)
+		tol := p.number("tol", 1e-3)
+		kernel, err := baselines.ParseKernel(kernelS)
+		if err != nil {
+			p.fail("kernel", "%v", err)
+		}
+		if p.err == nil && !(c > 0) {
+			p.fail("C", "C must be positive, got %v", c)
+		}
+		if p.err == nil && degree < 1 {
+			p.fail("degree", "degree must be at least 1, got %d", degree)
+		}
+		if p.err == nil && !(tol > 0) {
+			p.fail("tol", "tol must be positive, got %v", tol)
+		}
+		label = fmt.Sprintf("svm-%s-C%s", kernelS, fmtNum(c))
+		if kernelS == "rbf" || kernelS == "poly" {
+			if gammaS != "scale" {
+				label += "-g" + gammaS
+			}
+		}
+		if kernelS == "poly" {
+			label += fmt.Sprintf("-d%d", degree)
+		}
+		ms.Params["kernel"], ms.Params["C"], ms.Params["gamma"] = kernelS, c, gammaS
+		ms.Params["degree"], ms.Params["coef0"], ms.Params["tol"] = degree, coef0, tol
+		ms.build = func(uint64) baselines.Model {
+			return &baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: coef0, Tol: tol}
+		}
+	case "logreg":
+		c := p.number("C", 1)
+		maxIter := p.integer("max_iter", 0)
+		if p.err == nil && !(c > 0) {
+			p.fail("C", "C must be positive, got %v", c)
+		}
+		if p.err == nil && maxIter < 0 {
+			p.fail("max_iter", "max_iter must be non-negative, got %d", maxIter)
+		}
+		label = "logreg-C" + fmtNum(c)
+		ms.Params["C"], ms.Params["max_iter"] = c, maxIter
+		ms.build = func(uint64) baselines.Model {
+			return &baselines.LogReg{C: c, MaxIter: maxIter}
+		}
+	case "centroid":
+		label = "centroid"
+		ms.build = func(uint64) baselines.Model { return &baselines.Centroid{} }
+	default:
+		return ms, keyErr("kind", "unknown model kind %q (one of %s)", kind, kindList())
+	}
+	if err := p.finish(kind); err != nil {
+		return ms, err
+	}
+	if name != "" {
+		label = name
+	}
+	if strings.ContainsAny(label, ",\"\n") {
+		return ms, keyErr("name", "model name %q must not contain commas, quotes or newlines", label)
+	}
+	ms.Name = label
+	return ms, nil
+}
+
+func kindList() string {
+	var ks []string
+	for _, mi := range ModelInfos() {
+		ks = append(ks, mi.Kind)
+	}
+	return strings.Join(ks, ", ")
+}
+
+// fmtNum formats a parameter value for a model label: shortest form.
+func fmtNum(v float64) string {
+	if v == math.Trunc(v) && math.Abs(v) < 1e15 {
+		return strconv.FormatInt(int64(v), 10)
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// checkPipeline validates a pipeline string without fitting anything.
+func checkPipeline(s string) error {
+	_, err := datasets.ParsePipeline(s)
+	return err
+}

@@ -1,0 +1,285 @@
+package bench
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"runtime"
+	"runtime/debug"
+	"time"
+
+	"fringe/bench/stats"
+	"fringe/results"
+)
+
+// Version is fringe's version string, recorded in manifests.
+const Version = "0.1.0-dev"
+
+// Alpha is the level of the confidence intervals in summaries (95%).
+const Alpha = 0.05
+
+// Records turns task results into the rows of predictions.csv, folds.csv and
+// timings.csv, in task order.
+func (p *Plan) Records(res []TaskResult) ([]results.Prediction, []results.Fold, []results.Timing) {
+	var preds []results.Prediction
+	var folds []results.Fold
+	var times []results.Timing
+	for _, r := range res {
+		t := r.Task
+		d := p.Datasets[t.Dataset]
+		sp := d.Splits[t.Split]
+		pipe := p.Spec.Pipelines[t.Pipeline]
+		model := p.Spec.Models[t.Model].Name
+		for i, j := range sp.Test {
+			pr := results.Prediction{
+				Dataset: d.Name, Pipeline: pipe, Model: model,
+				Repeat: sp.Repeat, Fold: sp.Fold, Row: d.Data.Rows[j],
+				Label:     d.Data.Classes[d.Data.Y[j]],
+				Predicted: d.Data.Classes[r.Pred[i]],
+				PAcc:      math.NaN(),
+			}
+			if r.Details != nil {
+				pr.PAcc = r.Details[i].PAcc
+			}
+			preds = append(preds, pr)
+		}
+		folds = append(folds, results.Fold{
+			Dataset: d.Name, Pipeline: pipe, Model: model,
+			Repeat: sp.Repeat, Fold: sp.Fold, NTrain: r.NTrain, NTest: r.NTest,
+			Scores: r.Scores, MeanPAcc: meanPAcc(r.Details),
+		})
+		times = append(times, results.Timing{
+			Dataset: d.Name, Pipeline: pipe, Model: model,
+			Repeat: sp.Repeat, Fold: sp.Fold, Seconds: r.Elapsed.Seconds(),
+		})
+	}
+	return preds, folds, times
+}
+
+// Summarise computes one summary row per (dataset, pipeline, model) cell, in
+// task order. For k-fold and repeated holdout protocols the interval is the
+// corrected resampled t interval (Nadeau & Bengio 2003, variance factor
+// 1/(r k) + n_test/n_train); for leave-one-out and a single holdout, where
+// that interval degenerates, the metrics are computed on the pooled
+// predictions and accuracy gets a Wilson score interval (the other metrics
+// get none). Interval bounds are clipped to [0, 1], the range of every metric.
+func (p *Plan) Summarise(res []TaskResult) []results.Summary {
+	type cellKey struct{ d, p, m int }
+	var order []cellKey
+	cells := map[cellKey][]TaskResult{}
+	for _, r := range res {
+		k := cellKey{r.Task.Dataset, r.Task.Pipeline, r.Task.Model}
+		if _, ok := cells[k]; !ok {
+			order = append(order, k)
+		}
+		cells[k] = append(cells[k], r)
+	}
+	pooled := p.Spec.CV.Method == CVLeaveOneOut || (p.Spec.CV.Method == CVHoldout && p.Spec.CV.Repeats == 1)
+	var out []results.Summary
+	for _, k := range order {
+		rs := cells[k]
+		d := p.Datasets[k.d]
+		s := results.Summary{
+			Dataset: d.Name, Pipeline: p.Spec.Pipelines[k.p], Model: p.Spec.Models[k.m].Name,
+			Folds: len(rs), MeanPAcc: math.NaN(),
+		}
+		var pacc []float64
+		for _, r := range rs {
+			for _, x := range r.Details {
+				pacc = append(pacc, x.PAcc)
+			}
+		}
+		if len(pacc) > 0 {
+			s.MeanPAcc = mean(pacc)
+		}
+		if pooled {
+			var truth, pred []int
+			for _, r := range rs {
+				sp := d.Splits[r.Task.Split]
+				for i, j := range sp.Test {
+					truth = append(truth, d.Data.Y[j])
+					pred = append(pred, r.Pred[i])
+				}
+			}
+			sc := results.Score(truth, pred, len(d.Data.Classes))
+			s.Interval = "wilson"
+			correct := int(math.Round(sc.Accuracy * float64(len(truth))))
+			lo, hi := stats.Wilson(correct, len(truth), Alpha)
+			nan := math.NaN()
+			s.Metrics = []results.MetricSummary{
+				{Mean: sc.Accuracy, Std: nan, Lo: lo, Hi: hi},
+				{Mean: sc.BalancedAccuracy, Std: nan, Lo: nan, Hi: nan},
+				{Mean: sc.MacroF1, Std: nan, Lo: nan, Hi: nan},
+			}
+		} else {
+			s.Interval = "corrected-t"
+			var nTrain, nTest float64
+			for _, r := range rs {
+				nTrain += float64(r.NTrain)
+				nTest += float64(r.NTest)
+			}
+			nTrain /= float64(len(rs))
+			nTest /= float64(len(rs))
+			for mi := range results.MetricNames {
+				v := make([]float64, len(rs))
+				for i, r := range rs {
+					v[i] = r.Scores.Values()[mi]
+				}
+				iv, err := stats.CorrectedInterval(v, int(math.Round(nTrain)), int(math.Round(nTest)), Alpha)
+				if err != nil {
+					// Only impossible inputs (no scores, non-finite metrics) get here.
+					panic(fmt.Sprintf("bench: summary interval: %v", err))
+				}
+				// Every metric lies in [0, 1]; the t interval does not know that.
+				s.Metrics = append(s.Metrics, results.MetricSummary{Mean: iv.Mean, Std: iv.Std, Lo: clip01(iv.Lo), Hi: clip01(iv.Hi)})
+			}
+		}
+		out = append(out, s)
+	}
+	return out
+}
+
+// clip01 clips an interval bound to [0, 1], keeping NaN.
+func clip01(v float64) float64 {
+	if v < 0 {
+		return 0
+	}
+	if v > 1 {
+		return 1
+	}
+	return v
+}
+
+func mean(v []float64) float64 {
+	s := 0.0
+	for _, x := range v {
+		s += x
+	}
+	return s / float64(len(v))
+}
+
+// Caption describes the protocol of a run for table captions.
+func (p *Plan) Caption() string {
+	s := p.Spec
+	var proto string
+	switch s.CV.Method {
+	case CVStratified:
+		proto = fmt.Sprintf("stratified %d-fold cross-validation, %d repeat(s)", s.CV.Folds, s.CV.Repeats)
+	case CVLeaveOneOut:
+		proto = "leave-one-out cross-validation"
+	case CVHoldout:
+		proto = fmt.Sprintf("stratified holdout (test fraction %g), %d repeat(s)", s.CV.TestFraction, s.CV.Repeats)
+	}
+	return fmt.Sprintf("Run %s: mean $\\pm$ standard deviation over folds; %s; seed %d. Best mean per dataset in bold.", s.Name, proto, s.Seed)
+}
+
+// RunInfo carries what the manifest records beyond the plan.
+type RunInfo struct {
+	Command []string
+	Workers int
+	Start   time.Time
+	End     time.Time
+}
+
+// Manifest builds the run's manifest.
+func (p *Plan) Manifest(info RunInfo, warnings []string) *results.Manifest {
+	m := &results.Manifest{
+		Tool: "fringe", Version: Version, GoVersion: runtime.Version(),
+		Modules:  map[string]string{},
+		Command:  info.Command,
+		SpecName: p.Spec.Name, SpecFile: p.Spec.File, SpecText: string(p.Spec.Source),
+		Seed: p.Spec.Seed, Workers: info.Workers, Tasks: len(p.Tasks),
+		Start:   info.Start.UTC().Format(time.RFC3339Nano),
+		End:     info.End.UTC().Format(time.RFC3339Nano),
+		Seconds: info.End.Sub(info.Start).Seconds(),
+		GOOS:    runtime.GOOS, GOARCH: runtime.GOARCH, CPUs: runtime.NumCPU(),
+		Warnings: warnings,
+	}
+	if m.Warnings == nil {
+		m.Warnings = []string{}
+	}
+	sum := sha256.Sum256(p.Spec.Source)
+	m.SpecSHA = hex.EncodeToString(sum[:])
+	m.Host, _ = os.Hostname()
+	if bi, ok := debug.ReadBuildInfo(); ok {
+		for _, dep := range bi.Deps {
+			m.Modules[dep.Path] = dep.Version
+		}
+	}
+	for _, d := range p.Datasets {
+		src := d.Data.Source
+		m.Datasets = append(m.Datasets, results.DatasetRecord{
+			Name: d.Name, Source: d.Spec.Name, Title: src.Title, Origin: src.Origin, Citation: src.Citation,
+			Licence: src.Licence, File: src.File, SHA256: src.SHA256, Synthetic: src.Synthetic, Note: src.Note,
+			Rows: d.Data.Len(), Features: d.Data.Features, Classes: d.Data.Classes, Counts: d.Data.ClassCounts(),
+		})
+	}
+	return m
+}
+
+// Write writes a complete run directory at dir. Files are first written
+// into a temporary directory beside dir, which is renamed into place only
+// when every file is complete; an existing dir is replaced only then. On
+// error nothing is left behind.
+func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []string) error {
+	preds, folds, times := p.Records(res)
+	summary := p.Summarise(res)
+	files := []struct {
+		name  string
+		write func(*bytes.Buffer) error
+	}{
+		{"predictions.csv", func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
+		{"folds.csv", func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
+		{"summary.csv", func(b *bytes.Buffer) error { return results.WriteSummary(b, summary) }},
+		{"summary.tex", func(b *bytes.Buffer) error {
+			return results.WriteSummaryTeX(b, summary, results.TeXOptions{Caption: p.Caption(), Label: "tab:" + p.Spec.Name})
+		}},
+		{"timings.csv", func(b *bytes.Buffer) error { return results.WriteTimings(b, times) }},
+		{"manifest.json", func(b *bytes.Buffer) error { return results.WriteManifest(b, p.Manifest(info, warnings)) }},
+	}
+	parent := filepath.Dir(filepath.Clean(dir))
+	if err := os.MkdirAll(parent, 0o755); err != nil {
+		return fmt.Errorf("create output parent: %w", err)
+	}
+	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".partial-")
+	if err != nil {
+		return fmt.Errorf("create temporary run directory: %w", err)
+	}
+	ok := false
+	defer func() {
+		if !ok {
+			os.RemoveAll(tmp)
+		}
+	}()
+	if err := os.Chmod(tmp, 0o755); err != nil {
+		return err
+	}
+	for _, f := range files {
+		var b bytes.Buffer
+		if err := f.write(&b); err != nil {
+			return fmt.Errorf("write %s: %w", f.name, err)
+		}
+		if err := os.WriteFile(filepath.Join(tmp, f.name), b.Bytes(), 0o644); err != nil {
+			return fmt.Errorf("write %s: %w", f.name, err)
+		}
+	}
+	if _, err := os.Stat(dir); err == nil {
+		old := tmp + ".old"
+		if err := os.Rename(dir, old); err != nil {
+			return fmt.Errorf("replace %s: %w", dir, err)
+		}
+		if err := os.Rename(tmp, dir); err != nil {
+			os.Rename(old, dir)
+			return fmt.Errorf("replace %s: %w", dir, err)
+		}
+		os.RemoveAll(old)
+	} else if err := os.Rename(tmp, dir); err != nil {
+		return fmt.Errorf("move run into %s: %w", dir, err)
+	}
+	ok = true
+	return nil
+}

@@ -1,0 +1,217 @@
+package bench
+
+import (
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"hash/fnv"
+	"math/rand/v2"
+	"path/filepath"
+	"strings"
+
+	"fringe/baselines"
+	"fringe/bench/cv"
+	"fringe/datasets"
+)
+
+// Plan is a spec made concrete: datasets loaded, splits drawn, tasks listed.
+// Building a plan checks all input that can be checked before any model is
+// fitted, so bad input fails fast and leaves nothing behind.
+type Plan struct {
+	Spec     *Spec
+	Datasets []*PlannedDataset
+	Tasks    []Task
+}
+
+// PlannedDataset is a loaded dataset with its splits (all repeats).
+type PlannedDataset struct {
+	Spec   DatasetSpec
+	Name   string // display name
+	Data   *datasets.Dataset
+	Splits []cv.Split // in (repeat, fold) order
+}
+
+// Task is one unit of work: fit one pipeline and one model on one split of
+// one dataset. Its key is stable across runs and worker counts.
+type Task struct {
+	Index    int // position in task order
+	Dataset  int // index into Plan.Datasets
+	Pipeline int // index into Spec.Pipelines
+	Model    int // index into Spec.Models
+	Split    int // index into PlannedDataset.Splits
+}
+
+// Key returns the task's stable key: dataset/pipeline/model/repeat/fold.
+func (p *Plan) Key(t Task) string {
+	d := p.Datasets[t.Dataset]
+	s := d.Splits[t.Split]
+	return fmt.Sprintf("%s/%s/%s/%d/%d", d.Name, p.Spec.Pipelines[t.Pipeline], p.Spec.Models[t.Model].Name, s.Repeat, s.Fold)
+}
+
+// Seed derives a 64-bit seed from the run seed and a list of key parts
+// (FNV-1a over the parts, separated by NUL bytes). The same seed and parts
+// always give the same value, independent of scheduling.
+func Seed(seed uint64, parts ...string) uint64 {
+	h := fnv.New64a()
+	var b [8]byte
+	binary.LittleEndian.PutUint64(b[:], seed)
+	h.Write(b[:])
+	for _, p := range parts {
+		h.Write([]byte(p))
+		h.Write([]byte{0})
+	}
+	return h.Sum64()
+}
+
+// NewRand returns a PCG generator seeded from the run seed and key parts.
+func NewRand(seed uint64, parts ...string) *rand.Rand {
+	return rand.New(rand.NewPCG(seed, Seed(seed, parts...)))
+}
+
+// NewPlan loads the spec's datasets, draws the splits and lists the tasks in
+// order (dataset, pipeline, model, repeat, fold). All errors are input
+// errors (errors.Is(err, ErrInput)).
+func NewPlan(s *Spec) (*Plan, error) {
+	p := &Plan{Spec: s}
+	for _, ds := range s.Datasets {
+		pd, err := planDataset(s, ds)
+		if err != nil {
+			return nil, err
+		}
+		p.Datasets = append(p.Datasets, pd)
+	}
+	if err := p.checkModels(); err != nil {
+		return nil, err
+	}
+	for di, d := range p.Datasets {
+		for pi := range s.Pipelines {
+			for mi := range s.Models {
+				for si := range d.Splits {
+					p.Tasks = append(p.Tasks, Task{Index: len(p.Tasks), Dataset: di, Pipeline: pi, Model: mi, Split: si})
+				}
+			}
+		}
+	}
+	return p, nil
+}
+
+func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
+	inErr := func(err error) error {
+		return &InputError{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+	}
+	var data *datasets.Dataset
+	var err error
+	if isPath(ds.Name) {
+		path := ds.Name
+		if !filepath.IsAbs(path) && s.Dir != "" {
+			path = filepath.Join(s.Dir, path)
+		}
+		data, err = datasets.LoadCSV(path, datasets.CSVOptions{Label: ds.Label, DropInvalid: ds.DropInvalid})
+		if err != nil {
+			return nil, &InputError{Err: err} // the CSV error names file, line and column
+		}
+	} else {
+		if ds.Label != "" || ds.DropInvalid {
+			return nil, inErr(fmt.Errorf("label and drop_invalid apply to CSV files only"))
+		}
+		data, err = datasets.Load(ds.Name)
+		if err != nil {
+			return nil, inErr(err)
+		}
+	}
+	if len(ds.Classes) > 0 || len(ds.Features) > 0 {
+		data, err = data.Subset(ds.Classes, ds.Features)
+		if err != nil {
+			return nil, inErr(err)
+		}
+	}
+	counts := data.ClassCounts()
+	present := 0
+	for _, c := range counts {
+		if c > 0 {
+			present++
+		}
+	}
+	if present < 2 {
+		return nil, inErr(fmt.Errorf("needs at least two classes with members, has %d", present))
+	}
+	pd := &PlannedDataset{Spec: ds, Name: ds.Display(), Data: data}
+	switch s.CV.Method {
+	case CVLeaveOneOut:
+		pd.Splits = cv.LeaveOneOut(data.Len())
+	case CVStratified:
+		for r := 0; r < s.CV.Repeats; r++ {
+			rng := NewRand(s.Seed, "split", pd.Name, fmt.Sprint(r))
+			sp, err := cv.Stratified(data.Y, len(data.Classes), s.CV.Folds, rng)
+			if err != nil {
+				return nil, inErr(classError(err, data, s.CV.Folds))
+			}
+			for i := range sp {
+				sp[i].Repeat = r
+			}
+			pd.Splits = append(pd.Splits, sp...)
+		}
+	case CVHoldout:
+		for r := 0; r < s.CV.Repeats; r++ {
+			rng := NewRand(s.Seed, "split", pd.Name, fmt.Sprint(r))
+			sp, err := cv.Holdout(data.Y, len(data.Classes), s.CV.TestFraction, rng)
+			if err != nil {
+				return nil, inErr(classError(err, data, 0))
+			}
+			sp.Repeat, sp.Fold = r, 0
+			pd.Splits = append(pd.Splits, sp)
+		}
+	}
+	// Every training part must hold at least two classes.
+	for _, sp := range pd.Splits {
+		seen := map[int]bool{}
+		for _, i := range sp.Train {
+			seen[data.Y[i]] = true
+		}
+		if len(seen) < 2 {
+			return nil, inErr(fmt.Errorf("repeat %d fold %d: training part holds a single class", sp.Repeat, sp.Fold))
+		}
+	}
+	return pd, nil
+}
+
+// classError adds the class name to a splitter error.
+func classError(err error, data *datasets.Dataset, folds int) error {
+	var ce *cv.ClassError
+	if errors.As(err, &ce) && ce.Class >= 0 && ce.Class < len(data.Classes) {
+		if folds > 0 {
+			return fmt.Errorf("class %q has %d members, fewer than the %d folds", data.Classes[ce.Class], ce.Count, folds)
+		}
+		return fmt.Errorf("class %q has %d members, fewer than the %d a stratified holdout needs", data.Classes[ce.Class], ce.Count, ce.Need)
+	}
+	return err
+}
+
+// checkModels rejects parameters that cannot fit the planned splits.
+func (p *Plan) checkModels() error {
+	for mi, m := range p.Spec.Models {
+		k, ok := m.Params["k"].(int)
+		if m.Kind != "knn" || !ok {
+			continue
+		}
+		for _, d := range p.Datasets {
+			for _, sp := range d.Splits {
+				if k > len(sp.Train) {
+					key := fmt.Sprintf("model[%d].k", mi+1)
+					return &InputError{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(key), Key: key,
+						Err: fmt.Errorf("k = %d exceeds the %d training instances of dataset %s (repeat %d fold %d): %w",
+							k, len(sp.Train), d.Name, sp.Repeat, sp.Fold, baselines.ErrParam)}
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// isPath reports whether a dataset name refers to a file rather than an
+// embedded or synthetic dataset: it contains a path separator or ends in
+// .csv, .tsv or .txt (write ./name for other files).
+func isPath(name string) bool {
+	l := strings.ToLower(name)
+	return strings.ContainsAny(name, `/\`) || strings.HasSuffix(l, ".csv") || strings.HasSuffix(l, ".tsv") || strings.HasSuffix(l, ".txt")
+}

@@ -1,0 +1,523 @@
+package bench
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+)
+
+// ErrInput marks every error caused by the user's input: the spec, a data
+// file, a data value or a parameter that does not fit the data. The command
+// exits with status 2 on such errors and 1 on any other failure.
+var ErrInput = errors.New("bad input")
+
+// InputError is an error in the user's input. File, Line and Key locate it
+// where known (Line 0 and Key "" mean unknown).
+type InputError struct {
+	File string
+	Line int
+	Key  string
+	Err  error
+}
+
+func (e *InputError) Error() string {
+	var b strings.Builder
+	if e.File != "" {
+		b.WriteString(e.File)
+		if e.Line > 0 {
+			fmt.Fprintf(&b, ":%d", e.Line)
+		}
+		b.WriteString(": ")
+	}
+	if e.Key != "" {
+		fmt.Fprintf(&b, "key %s: ", e.Key)
+	}
+	b.WriteString(e.Err.Error())
+	return b.String()
+}
+
+func (e *InputError) Unwrap() []error { return []error{ErrInput, e.Err} }
+
+// Spec is a parsed experiment specification (see DESIGN.md for the format).
+type Spec struct {
+	Name      string
+	Seed      uint64
+	Datasets  []DatasetSpec
+	Pipelines []string
+	CV        CVSpec
+	Models    []ModelSpec
+
+	File   string // path the spec was read from, or a description of a built-in spec
+	Dir    string // directory relative CSV paths are resolved against ("" = working directory)
+	Source []byte // the spec text as read
+}
+
+// DatasetSpec selects a dataset and its options.
+type DatasetSpec struct {
+	Name        string   // embedded name, synthetic name or CSV path
+	Classes     []string // optional class subset
+	Features    []string // optional feature subset (names or 0-based indices)
+	As          string   // optional display name
+	Label       string   // CSV only: label column name (default: last column)
+	DropInvalid bool     // CSV only: drop rows with missing or non-numeric values
+
+	line int
+}
+
+// Display is the name shown in outputs.
+func (d DatasetSpec) Display() string {
+	if d.As != "" {
+		return d.As
+	}
+	return d.Name
+}
+
+// CVMethod is a cross-validation scheme.
+type CVMethod int
+
+const (
+	CVStratified CVMethod = iota
+	CVLeaveOneOut
+	CVHoldout
+)
+
+func (m CVMethod) String() string {
+	switch m {
+	case CVStratified:
+		return "stratified"
+	case CVLeaveOneOut:
+		return "loo"
+	case CVHoldout:
+		return "holdout"
+	}
+	return fmt.Sprintf("CVMethod(%d)", int(m))
+}
+
+// CVSpec is the cross-validation protocol.
+type CVSpec struct {
+	Method       CVMethod
+	Folds        int     // stratified only
+	Repeats      int     // stratified and holdout
+	TestFraction float64 // holdout only
+}
+
+// ModelSpec is one model configuration: its kind, its display name and its
+// validated parameters. New builds a fresh, unfitted model from it.
+type ModelSpec struct {
+	Kind   string
+	Name   string // display name (the spec's `name`, or a label built from kind and params)
+	Params map[string]any
+
+	line  int
+	build builder
+}
+
+type rawSpec struct {
+	Name      string           `toml:"name"`
+	Seed      *int64           `toml:"seed"`
+	Datasets  []string         `toml:"datasets"`
+	Dataset   []rawDataset     `toml:"dataset"`
+	Pipelines []string         `toml:"pipelines"`
+	CV        *rawCV           `toml:"cv"`
+	Model     []map[string]any `toml:"model"`
+}
+
+type rawDataset struct {
+	Name        string   `toml:"name"`
+	Classes     []string `toml:"classes"`
+	Features    []any    `toml:"features"`
+	As          string   `toml:"as"`
+	Label       string   `toml:"label"`
+	DropInvalid bool     `toml:"drop_invalid"`
+}
+
+type rawCV struct {
+	Method       string   `toml:"method"`
+	Folds        *int     `toml:"folds"`
+	Repeats      *int     `toml:"repeats"`
+	TestFraction *float64 `toml:"test_fraction"`
+}
+
+// LoadSpec reads and validates a spec file.
+func LoadSpec(path string) (*Spec, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, &InputError{File: path, Err: fmt.Errorf("read spec: %w", err)}
+	}
+	s, err := ParseSpec(path, data)
+	if err != nil {
+		return nil, err
+	}
+	s.Dir = filepath.Dir(path)
+	return s, nil
+}
+
+// ParseSpec parses and validates spec text; file names the source in errors.
+func ParseSpec(file string, data []byte) (*Spec, error) {
+	var raw rawSpec
+	md, err := toml.NewDecoder(bytes.NewReader(data)).Decode(&raw)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, &InputError{File: file, Line: pe.Position.Line, Err: fmt.Errorf("spec syntax: %s", pe.Message)}
+		}
+		return nil, &InputError{File: file, Err: fmt.Errorf("spec: %w", err)}
+	}
+	lines := newKeyLines(data)
+	bad := func(key string, format string, args ...any) error {
+		return &InputError{File: file, Line: lines.find(key), Key: key, Err: fmt.Errorf(format, args...)}
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		for _, k := range und {
+			ks := k.String()
+			if strings.HasPrefix(ks, "model.") || ks == "model" {
+				continue // model keys are checked per kind below
+			}
+			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, model; in [cv]: method, folds, repeats, test_fraction; in [[dataset]]: name, classes, features, as, label, drop_invalid)")
+		}
+	}
+	s := &Spec{File: file, Source: append([]byte(nil), data...)}
+	s.Name = raw.Name
+	if s.Name == "" {
+		return nil, bad("name", "missing spec name")
+	}
+	if strings.ContainsAny(s.Name, "/\\") || s.Name == "." || s.Name == ".." {
+		return nil, bad("name", "spec name %q must not contain path separators", s.Name)
+	}
+	if raw.Seed == nil {
+		return nil, bad("seed", "missing seed (any non-negative integer)")
+	}
+	if *raw.Seed < 0 {
+		return nil, bad("seed", "seed must be non-negative, got %d", *raw.Seed)
+	}
+	s.Seed = uint64(*raw.Seed)
+
+	for _, n := range raw.Datasets {
+		if n == "" {
+			return nil, bad("datasets", "empty dataset name")
+		}
+		s.Datasets = append(s.Datasets, DatasetSpec{Name: n, line: lines.find("datasets")})
+	}
+	for i, d := range raw.Dataset {
+		key := fmt.Sprintf("dataset[%d]", i+1)
+		if d.Name == "" {
+			return nil, bad(key+".name", "missing dataset name")
+		}
+		ds := DatasetSpec{Name: d.Name, Classes: d.Classes, As: d.As, Label: d.Label, DropInvalid: d.DropInvalid, line: lines.find(key + ".name")}
+		for _, f := range d.Features {
+			switch v := f.(type) {
+			case string:
+				ds.Features = append(ds.Features, v)
+			case int64:
+				if v < 0 {
+					return nil, bad(key+".features", "negative feature index %d", v)
+				}
+				ds.Features = append(ds.Features, strconv.FormatInt(v, 10))
+			default:
+				return nil, bad(key+".features", "features are names or 0-based indices, got %v", f)
+			}
+		}
+		s.Datasets = append(s.Datasets, ds)
+	}
+	if len(s.Datasets) == 0 {
+		return nil, bad("datasets", "no datasets (give `datasets = [...]` or [[dataset]] tables)")
+	}
+	seen := map[string]bool{}
+	for _, d := range s.Datasets {
+		if seen[d.Display()] {
+			return nil, bad("datasets", "dataset %q appears twice (use `as` to tell two selections apart)", d.Display())
+		}
+		seen[d.Display()] = true
+	}
+
+	s.Pipelines = raw.Pipelines
+	if len(s.Pipelines) == 0 {
+		s.Pipelines = []string{"raw"}
+	}
+	seenP := map[string]bool{}
+	for _, p := range s.Pipelines {
+		if seenP[p] {
+			return nil, bad("pipelines", "pipeline %q appears twice", p)
+		}
+		seenP[p] = true
+		if err := checkPipeline(p); err != nil {
+			return nil, bad("pipelines", "%v", err)
+		}
+	}
+
+	cv := CVSpec{Method: CVStratified, Folds: 10, Repeats: 1, TestFraction: 0.3}
+	if raw.CV != nil {
+		switch raw.CV.Method {
+		case "", "stratified":
+			cv.Method = CVStratified
+		case "loo":
+			cv.Method = CVLeaveOneOut
+		case "holdout":
+			cv.Method = CVHoldout
+		default:
+			return nil, bad("cv.method", "unknown method %q (want stratified, loo or holdout)", raw.CV.Method)
+		}
+		if raw.CV.Folds != nil {
+			if cv.Method != CVStratified {
+				return nil, bad("cv.folds", "folds applies to method = \"stratified\" only")
+			}
+			cv.Folds = *raw.CV.Folds
+			if cv.Folds < 2 {
+				return nil, bad("cv.folds", "folds must be at least 2, got %d", cv.Folds)
+			}
+		}
+		if raw.CV.Repeats != nil {
+			if cv.Method == CVLeaveOneOut && *raw.CV.Repeats != 1 {
+				return nil, bad("cv.repeats", "leave-one-out is deterministic: repeats must be 1")
+			}
+			cv.Repeats = *raw.CV.Repeats
+			if cv.Repeats < 1 {
+				return nil, bad("cv.repeats", "repeats must be at least 1, got %d", cv.Repeats)
+			}
+		}
+		if raw.CV.TestFraction != nil {
+			if cv.Method != CVHoldout {
+				return nil, bad("cv.test_fraction", "test_fraction applies to method = \"holdout\" only")
+			}
+			cv.TestFraction = *raw.CV.TestFraction
+			if !(cv.TestFraction > 0 && cv.TestFraction < 1) {
+				return nil, bad("cv.test_fraction", "test_fraction must lie in (0, 1), got %v", cv.TestFraction)
+			}
+		}
+	}
+	s.CV = cv
+
+	if len(raw.Model) == 0 {
+		return nil, bad("model", "no models (add [[model]] tables)")
+	}
+	names := map[string]int{}
+	for i, m := range raw.Model {
+		key := fmt.Sprintf("model[%d]", i+1)
+		ms, err := parseModel(m)
+		if err != nil {
+			var ke *keyError
+			if errors.As(err, &ke) {
+				k := key + "." + ke.key
+				return nil, &InputError{File: file, Line: lines.find(k), Key: k, Err: ke.err}
+			}
+			return nil, &InputError{File: file, Line: lines.find(key), Key: key, Err: err}
+		}
+		ms.line = lines.find(key)
+		if j, dup := names[ms.Name]; dup {
+			return nil, bad(key, "model name %q is also used by model[%d]; give one of them a distinct `name`", ms.Name, j)
+		}
+		names[ms.Name] = i + 1
+		s.Models = append(s.Models, ms)
+	}
+	return s, nil
+}
+
+// keyError is a problem with one key of a table.
+type keyError struct {
+	key string
+	err error
+}
+
+func (e *keyError) Error() string { return e.key + ": " + e.err.Error() }
+func (e *keyError) Unwrap() error { return e.err }
+
+func keyErr(key, format string, args ...any) error {
+	return &keyError{key: key, err: fmt.Errorf(format, args...)}
+}
+
+// params reads typed values from a model table and remembers which keys
+// were used, so that unknown keys can be reported.
+type params struct {
+	m    map[string]any
+	used map[string]bool
+	err  error
+}
+
+func newParams(m map[string]any) *params {
+	return &params{m: m, used: map[string]bool{"kind": true, "name": true}}
+}
+
+func (p *params) fail(key, format string, args ...any) {
+	if p.err == nil {
+		p.err = keyErr(key, format, args...)
+	}
+}
+
+func (p *params) has(key string) bool { _, ok := p.m[key]; return ok }
+
+func (p *params) str(key, def string) string {
+	p.used[key] = true
+	v, ok := p.m[key]
+	if !ok {
+		return def
+	}
+	s, ok := v.(string)
+	if !ok {
+		p.fail(key, "want a string, got %v", v)
+		return def
+	}
+	return s
+}
+
+func (p *params) integer(key string, def int) int {
+	p.used[key] = true
+	v, ok := p.m[key]
+	if !ok {
+		return def
+	}
+	i, ok := v.(int64)
+	if !ok {
+		p.fail(key, "want an integer, got %v", v)
+		return def
+	}
+	if i > math.MaxInt32 || i < math.MinInt32 {
+		p.fail(key, "integer %d out of range", i)
+		return def
+	}
+	return int(i)
+}
+
+func (p *params) number(key string, def float64) float64 {
+	p.used[key] = true
+	v, ok := p.m[key]
+	if !ok {
+		return def
+	}
+	switch x := v.(type) {
+	case int64:
+		return float64(x)
+	case float64:
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			p.fail(key, "want a finite number, got %v", x)
+			return def
+		}
+		return x
+	}
+	p.fail(key, "want a number, got %v", v)
+	return def
+}
+
+func (p *params) boolean(key string, def bool) bool {
+	p.used[key] = true
+	v, ok := p.m[key]
+	if !ok {
+		return def
+	}
+	b, ok := v.(bool)
+	if !ok {
+		p.fail(key, "want true or false, got %v", v)
+		return def
+	}
+	return b
+}
+
+// table returns a sub-table (e.g. noise = {...}).
+func (p *params) table(key string) map[string]any {
+	p.used[key] = true
+	v, ok := p.m[key]
+	if !ok {
+		return nil
+	}
+	t, ok := v.(map[string]any)
+	if !ok {
+		p.fail(key, "want a table, got %v", v)
+		return nil
+	}
+	return t
+}
+
+// finish reports the first error or the first unknown key (sorted).
+func (p *params) finish(kind string) error {
+	if p.err != nil {
+		return p.err
+	}
+	var unknown []string
+	for k := range p.m {
+		if !p.used[k] {
+			unknown = append(unknown, k)
+		}
+	}
+	if len(unknown) > 0 {
+		sort.Strings(unknown)
+		var allowed []string
+		for k := range p.used {
+			allowed = append(allowed, k)
+		}
+		sort.Strings(allowed)
+		return keyErr(unknown[0], "unknown key for kind %q (allowed: %s)", kind, strings.Join(allowed, ", "))
+	}
+	return nil
+}
+
+// keyLines finds the line of a key path such as "model[2].gamma" or
+// "cv.folds" in TOML text, for error messages. It understands the subset of
+// TOML a spec uses: [table], [[array]] and key = value lines. It returns 0
+// when the key cannot be located.
+type keyLines struct {
+	lines []string
+}
+
+func newKeyLines(data []byte) keyLines {
+	return keyLines{lines: strings.Split(string(data), "\n")}
+}
+
+func (kl keyLines) find(path string) int {
+	table, index, key := "", 0, path
+	if i := strings.Index(path, "["); i >= 0 {
+		j := strings.Index(path, "]")
+		if j > i {
+			table = path[:i]
+			index, _ = strconv.Atoi(path[i+1 : j])
+			key = strings.TrimPrefix(path[j+1:], ".")
+		}
+	} else if i := strings.Index(path, "."); i >= 0 {
+		table, key = path[:i], path[i+1:]
+	}
+	if k := strings.Index(key, "."); k >= 0 {
+		key = key[:k]
+	}
+	cur, count := "", 0
+	headerLine := 0
+	for n, l := range kl.lines {
+		t := strings.TrimSpace(l)
+		switch {
+		case strings.HasPrefix(t, "[["):
+			name := strings.TrimSpace(strings.Trim(strings.SplitN(t, "#", 2)[0], "[] \t"))
+			cur = name
+			if name == table {
+				count++
+				if count == index {
+					headerLine = n + 1
+				}
+			}
+			continue
+		case strings.HasPrefix(t, "["):
+			cur = strings.TrimSpace(strings.Trim(strings.SplitN(t, "#", 2)[0], "[] \t"))
+			if cur == table && index == 0 {
+				headerLine = n + 1
+			}
+			continue
+		}
+		eq := strings.Index(t, "=")
+		if eq < 0 || strings.HasPrefix(t, "#") {
+			continue
+		}
+		k := strings.Trim(strings.TrimSpace(t[:eq]), `"`)
+		if k != key || cur != table {
+			continue
+		}
+		if index > 0 && count != index {
+			continue
+		}
+		return n + 1
+	}
+	return headerLine
+}
