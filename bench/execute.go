@@ -20,8 +20,8 @@ import (
 
 // Options configure the execution of a plan.
 type Options struct {
-	Workers  int                    // concurrent tasks; 0 means runtime.NumCPU()
-	Progress func(done, total int)  // called after each finished task (from worker goroutines, serialised); may be nil
+	Workers  int                   // concurrent tasks; 0 means runtime.NumCPU()
+	Progress func(done, total int) // called after each finished task (from worker goroutines, serialised); may be nil
 }
 
 // TaskResult is what one task produced.
