@@ -54,27 +54,39 @@
 // of ranks of the data sets on which the first sample is larger.
 //
 // Two values count as tied when they differ by at most TieTolerance times
-// the largest magnitude among the values compared, so that scores printed
+// the largest magnitude among the input scores, so that scores printed
 // to a few digits (0.768 − 0.763 and 0.936 − 0.931) tie although their
 // floating-point differences need not be bit-identical. Tie groups are
 // formed after sorting, by chaining neighbours.
 //
+// # Leave-one-out
+//
+// With one test instance per split (n_test = 1) the per-split scores of an
+// accuracy are 0 or 1 and the corrected t interval is not meaningful.
+// CorrectedInterval and CorrectedPairedT still apply their formula — they
+// never switch method on their own — and add a warning; the caller
+// chooses the replacement: Wilson on the pooled count of correct
+// predictions for one model, McNemar on the pooled predictions for two.
+//
 // # Errors, NaN and panics
 //
-// Functions that take data return an error, reading "stats: <function>:
-// ..." and wrapping one of the sentinel errors ErrLength, ErrNotFinite,
-// ErrTooFew, ErrAlpha or ErrProbability, for structurally
-// bad input: samples of different lengths, NaN or infinite values,
-// non-positive set sizes or counts, an alpha outside (0, 1), a p-value
-// outside [0, 1], or fewer values than the formula needs at all. A sample that is valid but degenerate (one
-// score, zero variance, all differences zero) is not an error: the result
-// carries a warning and the affected fields follow the rules documented
-// on each function (NaN where a quantity is undefined).
+// Functions that take data return an error for structurally bad input:
+// samples of different lengths, NaN or infinite values, non-positive set
+// sizes or negative counts, an alpha outside (0, 1), a p-value outside
+// [0, 1], or fewer values than the formula needs at all. Every such error
+// reads "stats: <function>: ..." and wraps one of the sentinel errors
+// ErrLength, ErrNotFinite, ErrTooFew, ErrAlpha or ErrProbability. A sample
+// that is valid but degenerate (one score, zero variance, all differences
+// zero) is not an error: the result carries a warning and the affected
+// fields follow the rules documented on each function (NaN where a
+// quantity is undefined).
 //
 // The scalar functions Wilson, StudentizedRangeCDF,
 // StudentizedRangeQuantile, NemenyiQ and NemenyiCD return NaN for
 // arguments outside their domain instead of an error.
 //
-// Nothing in the package panics on user input; it uses no randomness and
-// no shared mutable state, so every function is safe for concurrent use.
+// The package panics only on a broken internal invariant (a rank that is
+// not a multiple of 1/2, a rank buffer of the wrong length), never on
+// user input. It uses no randomness and no mutable shared state, so every
+// function is safe for concurrent use.
 package stats

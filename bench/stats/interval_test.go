@@ -121,11 +121,11 @@ func TestIntervalErrors(t *testing.T) {
 }
 
 func TestWilsonNewcombe(t *testing.T) {
-	// Newcombe (Stat. Med. 17:857, 1998), Table I, method 3 (score
-	// interval without continuity correction), 95%: 81/263 -> 0.2553 to
+	// Newcombe (Stat. Med. 17:857, 1998), worked examples of the score
+	// interval without continuity correction, 95%: 81/263 -> 0.2553 to
 	// 0.3662 and 15/148 -> 0.0624 to 0.1605 (values as quoted in our task
-	// brief, not re-read from the paper; scipy agrees, see below). Printed
-	// to 4 decimals, so agreement to 5e-5.
+	// brief, not re-read from the paper; scipy 1.10.1 agrees, see
+	// TestWilsonAgainstScipy). Printed to 4 decimals: agreement to 5e-5.
 	for _, c := range []struct {
 		k, n   int
 		lo, hi float64
@@ -171,5 +171,39 @@ func TestWilsonProperties(t *testing.T) {
 		if !math.IsNaN(lo) || !math.IsNaN(hi) {
 			t.Errorf("Wilson(%v) = [%g, %g], want NaN", bad, lo, hi)
 		}
+	}
+}
+
+func TestLeaveOneOutWarnsAndWilsonServes(t *testing.T) {
+	// Leave-one-out on 30 instances, all predicted correctly: per-fold
+	// accuracies are 1, the t interval collapses to [1, 1] (zero variance)
+	// and both problems are reported; Wilson on the pooled count 30/30 is
+	// the documented replacement and has positive width.
+	scores := make([]float64, 30)
+	for i := range scores {
+		scores[i] = 1
+	}
+	iv, err := CorrectedInterval(scores, 29, 1, 0.05)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(iv.Warnings) != 2 || !strings.Contains(iv.Warnings[0], "zero variance") ||
+		!strings.Contains(iv.Warnings[1], "leave-one-out") {
+		t.Errorf("warnings = %q, want zero-variance then leave-one-out", iv.Warnings)
+	}
+	lo, hi := Wilson(30, 30, 0.05)
+	// Derived by hand from the Wilson formula with k = n: lo = n/(n + z²).
+	z := 1.959963984540054 // Φ⁻¹(0.975), scipy 1.10.1 scipy.stats.norm.ppf(0.975)
+	checkNear(t, "Wilson lo", lo, 30/(30+z*z), 1e-14, 0)
+	checkNear(t, "Wilson hi", hi, 1, 0, 0)
+
+	a := []float64{1, 1, 0, 1, 1, 0, 1, 1}
+	b := []float64{1, 0, 0, 1, 0, 0, 1, 1}
+	r, err := CorrectedPairedT(a, b, 7, 1, 0.05)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Warnings) != 1 || !strings.Contains(r.Warnings[0], "prefer McNemar") {
+		t.Errorf("paired t warnings = %q, want the leave-one-out note", r.Warnings)
 	}
 }

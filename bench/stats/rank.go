@@ -12,9 +12,9 @@ import (
 
 // WilcoxonExactMaxN is the largest number of ranked differences for which
 // Wilcoxon computes the exact p-value and takes its decision on it; above
-// it the normal approximation decides. Demšar (2006, Sec. 3.1.3) points to
-// tables of exact critical values for N up to 25; the exact distribution
-// is cheap to compute well beyond that, and 50 is the switch-over of
+// it the normal approximation decides. Demšar (2006) points to tables of
+// exact critical values for N up to 25; the exact distribution is cheap
+// to compute well beyond that, and 50 is the switch-over of
 // scipy.stats.wilcoxon's default (scipy 1.10.1, method='auto').
 const WilcoxonExactMaxN = 50
 
@@ -47,12 +47,13 @@ type WilcoxonResult struct {
 }
 
 // Wilcoxon is the Wilcoxon signed-ranks test of two models over N data
-// sets, as recommended by Demšar (JMLR 7:1, 2006, Sec. 3.1.3). The
-// differences d_i = a_i − b_i are ranked by absolute value, ties getting
-// average ranks. Zero differences (|d_i| within TieTolerance of 0) follow
-// Demšar: their ranks are split evenly between R+ and R−, and if there is
-// an odd number of them one is ignored — here it is removed before
-// ranking, so the remaining N differences get ranks 1..N. T = min(R+, R−).
+// sets, as recommended by Demšar (JMLR 7:1, 2006). The differences
+// d_i = a_i − b_i are ranked by absolute value, ties getting average
+// ranks. Zero differences (|d_i| within TieTolerance of the largest
+// |score|) follow Demšar: "ranks of d_i = 0 are split evenly among the
+// sums; if there is an odd number of them, one is ignored". Here the
+// ignored one is removed before ranking, so the remaining N differences
+// get ranks 1..N and R+ + R− = N(N+1)/2. T = min(R+, R−).
 //
 // Warnings report zero differences, ties among the non-zero differences,
 // and an N so small that the smallest attainable exact p-value exceeds
@@ -90,12 +91,12 @@ func Wilcoxon(a, b []float64, alpha float64) (WilcoxonResult, error) {
 	}
 	n := len(d)
 	r.N = n
-	abs := make([]float64, n)
+	mag := make([]float64, n)
 	for i, v := range d {
-		abs[i] = math.Abs(v)
+		mag[i] = math.Abs(v)
 	}
 	ranks := make([]float64, n)
-	ties := rankAverage(ranks, abs, tol)
+	ties := rankAverage(ranks, mag, tol)
 	nonzero := 0
 	for i, v := range d {
 		switch {
@@ -212,17 +213,17 @@ func signedRankExact(d, ranks []float64) float64 {
 		hi += k
 	}
 	// R+ − R− in doubled units is 2s − total.
-	dev := abs(2*obs - total)
+	dev := absInt(2*obs - total)
 	var p float64
 	for s, ps := range prob {
-		if abs(2*s-total) >= dev {
+		if absInt(2*s-total) >= dev {
 			p += ps
 		}
 	}
 	return min(p, 1)
 }
 
-func abs(x int) int {
+func absInt(x int) int {
 	if x < 0 {
 		return -x
 	}
@@ -237,8 +238,8 @@ type FriedmanResult struct {
 	Ranks [][]float64
 	// AvgRanks[j] is the mean rank of model j over the data sets.
 	AvgRanks []float64
-	// ChiSq is Friedman's statistic in the form of Demšar (2006, Sec.
-	// 3.2.2), 12N/(k(k+1)) · (Σ_j R_j² − k(k+1)²/4), without tie correction.
+	// ChiSq is Friedman's statistic in the form given by Demšar (2006),
+	// 12N/(k(k+1)) · (Σ_j R_j² − k(k+1)²/4), without tie correction.
 	ChiSq float64
 	// ChiSqTieCorrected is ChiSq divided by 1 − Σ(t³ − t)/(N·k·(k² − 1)),
 	// the sum over tie groups of size t within data sets; it equals the
@@ -268,13 +269,13 @@ type FriedmanResult struct {
 
 // FriedmanSmallN is the number of data sets at or below which Friedman
 // warns that the chi-square and F approximations are rough (Demšar 2006,
-// Sec. 3.2.2, recalled from memory: the approximations are considered
+// section on the Friedman test, recalled from memory: the approximations are considered
 // adequate for N > 10 and k > 5, exact tables exist for smaller designs).
 const FriedmanSmallN = 10
 
 // Friedman is the Friedman test of k models over N data sets with the
 // Iman–Davenport F statistic and the Nemenyi critical difference (Demšar,
-// JMLR 7:1, 2006, Sec. 3.2.2). scores[i][j] is the score of model j on
+// JMLR 7:1, 2006, section on the Friedman test). scores[i][j] is the score of model j on
 // data set i, higher is better. Within a data set, scores within
 // TieTolerance (relative to the largest |score| in the table) tie and
 // share their average rank.

@@ -25,10 +25,12 @@ var (
 )
 
 // TieTolerance is the relative tolerance under which two values count as
-// tied: |x − y| ≤ TieTolerance · max|v| over the values being ranked.
-// It absorbs the rounding of differences of scores printed to a few
-// digits; a genuine difference of one part in 10⁹ of the largest score is
-// below anything a benchmark can resolve.
+// tied: |x − y| ≤ TieTolerance · S, with S the largest |score| in the
+// input (for Wilcoxon the scores a and b, not their differences, since
+// the rounding of a difference is relative to its operands). It absorbs
+// the rounding of differences of scores printed to a few digits; a
+// genuine difference of one part in 10⁹ of the largest score is below
+// anything a benchmark can resolve.
 const TieTolerance = 1e-9
 
 // TestResult is the outcome of a hypothesis test.

@@ -65,8 +65,10 @@ func StudentizedRangeCDF(q float64, k int) float64 {
 }
 
 // StudentizedRangeQuantile returns the q with StudentizedRangeCDF(q, k) =
-// p, found by bisection to a relative width of 10⁻¹³. It returns 0 for
-// p = 0, +Inf for p = 1 and NaN for p outside [0, 1] or k < 2.
+// p, found by the Illinois variant of regula falsi on a bracket from
+// closed-form bounds, to |CDF(q) − p| ≤ 1e-15 or a bracket of relative width 1e-13.
+// It returns 0 for p = 0, +Inf for p = 1 and NaN for p outside [0, 1] or
+// k < 2.
 func StudentizedRangeQuantile(p float64, k int) float64 {
 	switch {
 	case k < 2 || !(p >= 0 && p <= 1):
@@ -76,29 +78,57 @@ func StudentizedRangeQuantile(p float64, k int) float64 {
 	case p == 1:
 		return math.Inf(1)
 	}
-	lo, hi := 0.0, 8.0
-	for StudentizedRangeCDF(hi, k) < p {
-		lo, hi = hi, 2*hi
-		if hi > 1e3 {
+	f := func(q float64) float64 { return StudentizedRangeCDF(q, k) - p }
+	// Bracket from two bounds on the range R of k standard normals: R is at
+	// least the range of the first two, √2·|Z|, and by Bonferroni
+	// P(R > q) ≤ C(k,2)·P(√2·|Z| > q). Hence
+	//	√2·Φ⁻¹((1+p)/2) ≤ q_p ≤ √2·Φ⁻¹(1 − (1−p)/(k(k−1))),
+	// widened slightly so that rounding cannot put the root outside.
+	a := math.Sqrt2 * distuv.UnitNormal.Quantile((1+p)/2) * (1 - 1e-6)
+	b := math.Sqrt2*distuv.UnitNormal.Quantile(1-(1-p)/float64(k*(k-1)))*(1+1e-6) + 1e-12
+	fa, fb := f(a), f(b)
+	for fa > 0 && a > 0 {
+		a, fa = a/2, f(a/2)
+	}
+	for fb < 0 {
+		b *= 2
+		if b > 1e3 || math.IsInf(b, 0) {
 			// p is 1 to within the accuracy of the CDF.
 			return math.Inf(1)
 		}
+		fb = f(b)
 	}
-	for hi-lo > 1e-13*hi {
-		mid := lo + (hi-lo)/2
-		if StudentizedRangeCDF(mid, k) < p {
-			lo = mid
+	if fa == 0 {
+		return a
+	}
+	// Invariant: fa and fb have opposite signs (or fb = 0); the root lies
+	// between a and b.
+	for range 200 {
+		if fb == 0 {
+			return b
+		}
+		x := b - fb*(b-a)/(fb-fa)
+		fx := f(x)
+		if math.Abs(fx) <= 1e-15 {
+			return x
+		}
+		if (fx < 0) != (fb < 0) {
+			a, fa = b, fb
 		} else {
-			hi = mid
+			fa /= 2 // Illinois step: keep the stale end from stalling
+		}
+		b, fb = x, fx
+		if math.Abs(b-a) <= 1e-13*math.Abs(b) {
+			break
 		}
 	}
-	return lo + (hi-lo)/2
+	return b
 }
 
 // NemenyiQ returns the critical value q_alpha of the two-tailed Nemenyi
 // test for k models: the 1 − alpha quantile of the studentized range of k
 // means with infinite degrees of freedom, divided by √2 (Demšar 2006,
-// Sec. 3.2.2 and Table 5). For k = 2 it equals Φ⁻¹(1 − alpha/2). It
+// section on post-hoc tests and Table 5). For k = 2 it equals Φ⁻¹(1 − alpha/2). It
 // returns NaN for k < 2 or alpha outside (0, 1).
 func NemenyiQ(k int, alpha float64) float64 {
 	if k < 2 || !(alpha > 0 && alpha < 1) {
@@ -108,7 +138,7 @@ func NemenyiQ(k int, alpha float64) float64 {
 }
 
 // NemenyiCD returns the Nemenyi critical difference of average ranks of k
-// models over n data sets at level alpha (Demšar 2006, Sec. 3.2.2):
+// models over n data sets at level alpha (Demšar 2006, section on post-hoc tests):
 //
 //	CD = q_alpha · sqrt(k(k+1) / (6n)),
 //
