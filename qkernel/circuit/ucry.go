@@ -1,0 +1,83 @@
+package circuit
+
+import "math/bits"
+
+// grayAngles returns the RY angles theta of the Gray-code decomposition of a
+// uniformly controlled RY with multiplexed angles alpha (len 2^k).
+//
+// The decomposition (Möttönen, Vartiainen, Bergholm & Salomaa,
+// quant-ph/0407010, eqs. (3)-(5)) is the sequence
+//
+//	RY(theta_0) CNOT(c_{t_0}) RY(theta_1) CNOT(c_{t_1}) ... RY(theta_{N-1}) CNOT(c_{t_{N-1}})
+//
+// with N = 2^k, where CNOT i is controlled by the bit t_i in which the Gray
+// codes g_i = i ^ (i>>1) and g_{i+1 mod N} differ. Since X RY(t) X = RY(-t),
+// control value j sees the total rotation
+//
+//	alpha_j = sum_i (-1)^popcount(j & g_i) theta_i,
+//
+// a Walsh–Hadamard matrix with columns in Gray-code order. Its inverse is
+// 2^-k times its transpose, so theta_i = 2^-k WHT(alpha)[g_i], computed
+// with the fast Walsh–Hadamard transform in O(N log N).
+func grayAngles(alpha []float64) []float64 {
+	n := len(alpha)
+	w := append([]float64(nil), alpha...)
+	for h := 1; h < n; h <<= 1 {
+		for i := 0; i < n; i += 2 * h {
+			for j := i; j < i+h; j++ {
+				a, b := w[j], w[j+h]
+				w[j], w[j+h] = a+b, a-b
+			}
+		}
+	}
+	theta := make([]float64, n)
+	scale := 1 / float64(n)
+	for i := range theta {
+		theta[i] = w[i^(i>>1)] * scale
+	}
+	return theta
+}
+
+// grayControl returns the position of the control bit of the i-th CNOT in
+// the Gray-code decomposition with k controls: the bit in which g_i and
+// g_{i+1 mod 2^k} differ.
+func grayControl(i, k int) int {
+	if i == 1<<k-1 {
+		return k - 1 // g_{N-1} = 1 << (k-1), g_0 = 0
+	}
+	return bits.TrailingZeros(uint(i + 1))
+}
+
+// decomposeUCRY expands one UCRY into 2^k RY and, for k >= 1, 2^k CNOT.
+func decomposeUCRY(op Op) []Op {
+	k := len(op.Controls)
+	if k == 0 {
+		return []Op{{Gate: RY, Target: op.Target, Angle: op.Angles[0]}}
+	}
+	theta := grayAngles(op.Angles)
+	out := make([]Op, 0, 2*len(theta))
+	for i, t := range theta {
+		out = append(out,
+			Op{Gate: RY, Target: op.Target, Angle: t},
+			Op{Gate: CNOT, Target: op.Target, Controls: []int{op.Controls[grayControl(i, k)]}})
+	}
+	return out
+}
+
+// Decompose returns a new circuit in which every UCRY is replaced by its
+// Gray-code sequence of RY and CNOT gates (quant-ph/0407010): a UCRY with k
+// controls becomes 2^k RY and 2^k CNOT (k >= 1), or one RY (k = 0). Every
+// other operation is copied unchanged, and the decomposed circuit acts on
+// every state exactly as the original (up to rounding of the angles).
+func (c *Circuit) Decompose() *Circuit {
+	d := c.Clone()
+	d.Ops = d.Ops[:0:0]
+	for _, op := range c.Ops {
+		if op.Gate == UCRY {
+			d.Ops = append(d.Ops, decomposeUCRY(op)...)
+			continue
+		}
+		d.Ops = append(d.Ops, op.clone())
+	}
+	return d
+}

@@ -1,0 +1,131 @@
+package sim
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"testing"
+
+	"fringe/qkernel/circuit"
+)
+
+// BenchmarkGate applies a dense 2x2 gate to every qubit in turn, as
+// ../shared/perf/sv_gate.c does (same matrix [[0.8,-0.6],[0.6,0.8]], same
+// initial amplitudes 1/2^n), and reports ns per amplitude per gate.
+// kernel=apply1 goes through State.Apply1, which takes the real-arithmetic
+// path for this real matrix (gcc likewise propagates the zero imaginary
+// parts of the C constants); kernel=complex forces the general complex
+// kernel used for matrices with imaginary parts (RZ, Pauli Y).
+func BenchmarkGate(b *testing.B) {
+	for _, n := range []int{10, 20} {
+		for _, kernel := range []string{"apply1", "complex"} {
+			b.Run(fmt.Sprintf("qubits=%d/kernel=%s", n, kernel), func(b *testing.B) {
+				s, err := NewState(n)
+				if err != nil {
+					b.Fatal(err)
+				}
+				for i := range s.Amp {
+					s.Amp[i] = complex(1/float64(len(s.Amp)), 0)
+				}
+				u := Matrix{{0.8, -0.6}, {0.6, 0.8}}
+				b.ReportAllocs()
+				gates := 0
+				for b.Loop() {
+					for q := 0; q < n; q++ {
+						if kernel == "complex" {
+							apply1(s.Amp, q, &u)
+						} else {
+							s.Apply1(q, u)
+						}
+						gates++
+					}
+				}
+				b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(gates)/float64(len(s.Amp)), "ns/amplitude")
+			})
+		}
+	}
+}
+
+// layerCircuit is one layer of the workload of ../shared/perf/numpy_dm.py:
+// RY with a random angle on every qubit, then CNOTs (q, q+1) down the line.
+func layerCircuit(n int, rng *rand.Rand) *circuit.Circuit {
+	c := &circuit.Circuit{NQubits: n, Regs: circuit.Layout{Ancilla: 0}}
+	for q := range n {
+		c.Ops = append(c.Ops, circuit.Op{Gate: circuit.RY, Target: q, Angle: rng.Float64() * 6.28})
+	}
+	for q := 0; q+1 < n; q++ {
+		c.Ops = append(c.Ops, circuit.Op{Gate: circuit.CNOT, Controls: []int{q}, Target: q + 1})
+	}
+	return c
+}
+
+// BenchmarkDensityMatrix runs noisy gates on a density matrix: RY layers
+// with single-qubit depolarizing (p1 = 1e-3) after each, CNOT ladders with
+// two-qubit depolarizing (p2 = 1e-2) after each, the workload of
+// ../shared/perf/numpy_dm.py (which depolarizes each CNOT qubit separately).
+// Reports ns per noisy gate.
+func BenchmarkDensityMatrix(b *testing.B) {
+	for _, n := range []int{7, 8, 10} {
+		b.Run(fmt.Sprintf("qubits=%d", n), func(b *testing.B) {
+			c := layerCircuit(n, rand.New(rand.NewPCG(1, 2)))
+			d, err := NewDensity(n)
+			if err != nil {
+				b.Fatal(err)
+			}
+			m := NoiseModel{Depolarizing: [2]float64{1e-3, 1e-2}}
+			ctx := context.Background()
+			b.ReportAllocs()
+			gates := 0
+			for b.Loop() {
+				if err := runDensity(ctx, d, c, m); err != nil {
+					b.Fatal(err)
+				}
+				gates += len(c.Ops)
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(gates), "ns/gate")
+		})
+	}
+}
+
+// BenchmarkSample draws one multinomial sample over 8 outcomes; the cost
+// should not grow with shots.
+func BenchmarkSample(b *testing.B) {
+	p := []float64{0.3, 0.01, 0.05, 0.15, 1e-4, 0.2, 0.2899, 0}
+	for _, shots := range []int{100, 1000000} {
+		b.Run(fmt.Sprintf("shots=%d", shots), func(b *testing.B) {
+			rng := rand.New(rand.NewPCG(3, 4))
+			b.ReportAllocs()
+			for b.Loop() {
+				SampleCounts(p, shots, rng)
+			}
+			b.ReportMetric(float64(shots)*float64(b.N)/b.Elapsed().Seconds(), "shots/s")
+		})
+	}
+}
+
+// BenchmarkOutcomes simulates a compiled classifier circuit without noise,
+// with the one-pass UCRY kernel and with the Gray-code decomposition.
+func BenchmarkOutcomes(b *testing.B) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	for _, M := range []int{16, 256} {
+		in := randomInstance(rng, M, 8, 3, false)
+		c, err := circuit.Compile(in.test, in.train, in.y, in.nClass, in.w)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, path := range []string{"ucry", "decomposed"} {
+			cc := c
+			if path == "decomposed" {
+				cc = c.Decompose()
+			}
+			b.Run(fmt.Sprintf("M=%d/qubits=%d/path=%s", M, c.NQubits, path), func(b *testing.B) {
+				b.ReportAllocs()
+				for b.Loop() {
+					if _, err := Outcomes(cc, Options{}); err != nil {
+						b.Fatal(err)
+					}
+				}
+			})
+		}
+	}
+}

@@ -1,0 +1,58 @@
+// Package sim simulates circuits of package circuit, with and without noise,
+// and samples measurement shots.
+//
+// # Simulators
+//
+// State is a pure state of n qubits ([]complex128 of 2^n, qubit 0 the least
+// significant bit of the basis index) with in-place kernels: a dense 2x2
+// gate (real matrices such as H, X and RY take a real-arithmetic path), CNOT,
+// multi-controlled single-qubit gates, and a one-pass uniformly controlled
+// RY. Density is an exact density matrix
+// (4^n complex128) with gates and channels: single-qubit superoperators
+// (any Kraus set), depolarizing on one, two or all qubits, amplitude and
+// phase damping. Trajectories average Monte Carlo state-vector runs with
+// stochastic Pauli and Kraus jumps.
+//
+// Qubit limits: the density matrix up to MaxDensityQubits (12; 256 MiB),
+// state vectors and trajectories up to MaxStateQubits (26; 1 GiB). Auto
+// picks the state vector for a noiseless circuit, the density matrix for a
+// noisy one up to 12 qubits and trajectories above. A circuit beyond the
+// chosen method's limit is an error naming the limit and the alternative.
+//
+// # Output
+//
+// Outcomes and Simulate return the joint distribution of the ancilla bit a
+// and the class register value k, indexed a*2^q + k with q the number of
+// class qubits (length 2^(1+q)), after readout error. Values k >= C (the
+// number of classes) have probability zero without noise.
+//
+// # Noise
+//
+// NoiseModel holds depolarizing strengths (p1 after single-qubit gates, p2
+// after CNOTs), amplitude damping gamma, phase damping lambda (both after
+// every gate on each qubit it touches) and readout assignment errors
+// (p01, p10) on every measured bit; Kraus operators follow Nielsen & Chuang
+// (2010), section 8.3. The depolarizing channel of strength p is
+// rho -> (1-p) rho + p I/d. Noisy simulations decompose UCRY first, so that
+// every elementary gate carries its noise.
+//
+// Closed-form channel models act directly on outcome distributions:
+// GlobalDepolarizing (P' = (1-s) P + s/2^(1+q)), AncillaDephasing (phase
+// damping of the ancilla before the final H) and Readout. Each is validated
+// against the density-matrix simulation in the tests.
+//
+// # Sampling
+//
+// SampleCounts draws one multinomial sample by sequential binomials whose
+// cost does not grow with the number of shots.
+//
+// # Errors, panics, NaN
+//
+// Simulate, Outcomes, NoiseModel.Validate and the closed-form models return
+// errors prefixed "sim: " for bad input (invalid circuit, probabilities
+// outside [0,1], qubit limits, missing generator). The low-level kernels
+// (State and Density methods, SampleCounts) panic on out-of-range qubits,
+// mismatched angle vectors or invalid probabilities: these are broken
+// invariants of callers that validate first. No function returns NaN for
+// valid input.
+package sim
