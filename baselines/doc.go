@@ -1,0 +1,54 @@
+// Package baselines holds the classical classifiers fringe compares the
+// interference classifier with. Every model implements Model: Fit learns
+// from the rows of a matrix with class indices in [0, nClass), Predict
+// returns one class index per row.
+//
+// Models:
+//
+//   - KNN: k nearest neighbours, brute force and exact, with Euclidean,
+//     Manhattan or cosine distance and uniform or 1/d vote weights.
+//   - Centroid: nearest class mean (Euclidean); a sanity baseline.
+//   - LogReg: multinomial logistic regression with an L2 penalty on the
+//     coefficients, fitted by L-BFGS (finished by Newton steps) to a
+//     gradient tolerance.
+//   - SVM: the support-vector machine with its kernels (its own files).
+//
+// Options are plain struct fields whose zero values are sensible defaults
+// (KNN: k = 5, Euclidean, uniform; LogReg: C = 1, 10000 iterations, gradient
+// tolerance 1e-8). They are validated at Fit.
+//
+// Conventions shared by all models:
+//
+//   - Ties go to the lower index: a class vote, a distance or a decision
+//     value that ties is resolved toward the lowest class index (the first
+//     class in the dataset's class order), and kNN neighbours at equal
+//     distance are taken in training-row order.
+//   - Classes absent from the training labels are never predicted. KNN
+//     accepts training labels of one class; Centroid and LogReg need two
+//     (as scikit-learn), and report ErrData otherwise.
+//   - Fit copies what it keeps; a fitted model may be used by several
+//     goroutines for prediction, but Fit must not run concurrently with any
+//     other method of the same model.
+//   - Results are deterministic: no randomness, no map iteration.
+//
+// Errors. Fit returns an error wrapping ErrParam when an option is invalid or
+// does not fit the data (k larger than the training set, C <= 0) and
+// ErrData when the data are unusable: an empty matrix, a label count that
+// does not match the rows, a label outside [0, nClass), a NaN or infinite
+// value, fewer classes than the model needs, a zero row under the cosine
+// distance. Predict returns ErrNotFitted before a successful Fit and ErrData
+// for a matrix with the wrong number of columns, non-finite values or (cosine
+// distance) a zero row. Error messages start with "baselines: " and name the
+// model. Nothing panics on user input; the only panics are broken internal
+// invariants, documented where they can occur.
+//
+// LogReg does not fail when it runs out of iterations: like scikit-learn it
+// returns its best point, and Converged reports false. Its probabilities and
+// KNN's vote fractions are available from PredictProba (rows sum to 1).
+// NaN appears only where documented: the Centroids row of an absent class,
+// LogReg.GradNorm without a fitted model. LogReg's Intercept is -Inf for an
+// absent class (probability 0).
+//
+// The tests compare each model with scikit-learn 1.2.1 (scripts/ref_knn.py,
+// scripts/ref_logreg.py; fixtures in testdata/ record the versions).
+package baselines
