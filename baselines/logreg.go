@@ -13,7 +13,7 @@ import (
 const (
 	DefaultLogRegC       = 1.0
 	DefaultLogRegMaxIter = 10000
-	DefaultLogRegTol     = 1e-8
+	DefaultLogRegTol     = 1e-4 // scikit-learn 1.2.1 LogisticRegression default tol (gradient max-norm of the summed loss)
 )
 
 // logregNewtonSteps bounds the Newton steps that finish a fit L-BFGS left

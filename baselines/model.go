@@ -3,7 +3,8 @@ package baselines
 import "gonum.org/v1/gonum/mat"
 
 // Model is a classifier. Fit learns from the rows of X with class indices y
-// in [0, nClass); Predict returns a class index per row of X. Class order
+// in [0, nClass); Predict returns a class index per row of X. Neither may
+// modify X: the harness shares one transformed matrix among models. Class order
 // matters: every model breaks ties toward the lower class index (the first
 // class in the dataset's class order).
 //

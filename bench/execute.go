@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"runtime"
-	"sync/atomic"
 	"time"
 
 	"golang.org/x/sync/errgroup"
@@ -46,28 +45,32 @@ type detailer interface {
 // workers or on scheduling. On the first error (or when ctx is cancelled)
 // tasks not yet started are skipped and the error is returned; errors caused
 // by the input satisfy errors.Is(err, ErrInput).
+//
+// Tasks that share a dataset, pipeline and split are scheduled together as
+// one unit of work, so the pipeline is fitted and applied once for all the
+// models of that split; models never modify their input matrices.
 func Execute(ctx context.Context, p *Plan, opt Options) ([]TaskResult, error) {
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.NumCPU()
 	}
+	units := p.units()
 	out := make([]TaskResult, len(p.Tasks))
 	g, gctx := errgroup.WithContext(ctx)
 	g.SetLimit(workers)
-	var done atomic.Int64
-	progress := make(chan struct{}, len(p.Tasks))
+	progress := make(chan int, len(units))
 	progDone := make(chan struct{})
 	go func() {
 		defer close(progDone)
 		n := 0
-		for range progress {
-			n++
+		for k := range progress {
+			n += k
 			if opt.Progress != nil {
 				opt.Progress(n, len(p.Tasks))
 			}
 		}
 	}()
-	for i := range p.Tasks {
+	for _, u := range units {
 		if gctx.Err() != nil {
 			break
 		}
@@ -75,16 +78,10 @@ func Execute(ctx context.Context, p *Plan, opt Options) ([]TaskResult, error) {
 			if err := gctx.Err(); err != nil {
 				return err
 			}
-			r, err := p.runTask(p.Tasks[i])
-			if err != nil {
-				if errors.Is(err, ErrInput) {
-					return err
-				}
-				return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+			if err := p.runUnit(gctx, u, out); err != nil {
+				return err
 			}
-			out[i] = r
-			done.Add(1)
-			progress <- struct{}{}
+			progress <- len(u)
 			return nil
 		})
 	}
@@ -100,33 +97,79 @@ func Execute(ctx context.Context, p *Plan, opt Options) ([]TaskResult, error) {
 	return out, nil
 }
 
-// runTask fits the task's pipeline on the training part, transforms both
-// parts, fits the model and predicts the test part.
-func (p *Plan) runTask(t Task) (TaskResult, error) {
-	start := time.Now()
-	d := p.Datasets[t.Dataset]
-	sp := d.Splits[t.Split]
-	ms := p.Spec.Models[t.Model]
-	pipe, err := datasets.ParsePipeline(p.Spec.Pipelines[t.Pipeline])
-	if err != nil {
-		return TaskResult{}, &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+// units groups task indices by (dataset, pipeline, split), in order of
+// first appearance.
+func (p *Plan) units() [][]int {
+	type key struct{ d, p, s int }
+	pos := map[key]int{}
+	var units [][]int
+	for i, t := range p.Tasks {
+		k := key{t.Dataset, t.Pipeline, t.Split}
+		j, ok := pos[k]
+		if !ok {
+			j = len(units)
+			pos[k] = j
+			units = append(units, nil)
+		}
+		units[j] = append(units[j], i)
 	}
-	where := fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, p.Spec.Pipelines[t.Pipeline], sp.Repeat, sp.Fold)
+	return units
+}
+
+// runUnit fits the unit's pipeline on the training part of its split,
+// transforms both parts, and runs each of its tasks' models on them,
+// writing results into out at the tasks' indices.
+func (p *Plan) runUnit(ctx context.Context, unit []int, out []TaskResult) error {
+	start := time.Now()
+	t0 := p.Tasks[unit[0]]
+	d := p.Datasets[t0.Dataset]
+	sp := d.Splits[t0.Split]
+	pipe, err := datasets.ParsePipeline(p.Spec.Pipelines[t0.Pipeline])
+	if err != nil {
+		return &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+	}
+	where := fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, p.Spec.Pipelines[t0.Pipeline], sp.Repeat, sp.Fold)
 	Xtr, ytr, rowsTr := gather(d.Data, sp.Train)
 	Xte, _, rowsTe := gather(d.Data, sp.Test)
 	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
 	if err != nil {
-		return TaskResult{}, p.classify(err, where)
+		return p.classify(err, where)
 	}
 	Zte, err := pipe.Transform(Xte, rowsTe)
 	if err != nil {
-		return TaskResult{}, p.classify(err, where)
+		return p.classify(err, where)
 	}
+	shared := time.Since(start) / time.Duration(len(unit))
+	for _, i := range unit {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		r, err := p.runModel(p.Tasks[i], where, Ztr, ytr, rowsTr, Zte, rowsTe)
+		if err != nil {
+			if errors.Is(err, ErrInput) {
+				return err
+			}
+			return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+		}
+		r.Elapsed += shared
+		out[i] = r
+	}
+	return nil
+}
+
+// runModel fits one task's model on the transformed training part and
+// predicts the transformed test part.
+func (p *Plan) runModel(t Task, where string, Ztr *mat.Dense, ytr, rowsTr []int, Zte *mat.Dense, rowsTe []int) (TaskResult, error) {
+	start := time.Now()
+	d := p.Datasets[t.Dataset]
+	sp := d.Splits[t.Split]
+	ms := p.Spec.Models[t.Model]
 	m := ms.New(Seed(p.Spec.Seed, "task", p.Key(t)))
 	if err := m.Fit(Ztr, ytr, len(d.Data.Classes)); err != nil {
 		return TaskResult{}, p.classifyModel(err, where, ms.Name, rowsTr)
 	}
 	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test)}
+	var err error
 	if dm, ok := m.(detailer); ok {
 		r.Pred, r.Details, err = dm.PredictDetail(Zte)
 	} else {
