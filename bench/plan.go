@@ -99,31 +99,9 @@ func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
 	inErr := func(err error) error {
 		return &InputError{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
-	var data *datasets.Dataset
-	var err error
-	if isPath(ds.Name) {
-		path := ds.Name
-		if !filepath.IsAbs(path) && s.Dir != "" {
-			path = filepath.Join(s.Dir, path)
-		}
-		data, err = datasets.LoadCSV(path, datasets.CSVOptions{Label: ds.Label, DropInvalid: ds.DropInvalid})
-		if err != nil {
-			return nil, &InputError{Err: err} // the CSV error names file, line and column
-		}
-	} else {
-		if ds.Label != "" || ds.DropInvalid {
-			return nil, inErr(fmt.Errorf("label and drop_invalid apply to CSV files only"))
-		}
-		data, err = datasets.Load(ds.Name)
-		if err != nil {
-			return nil, inErr(err)
-		}
-	}
-	if len(ds.Classes) > 0 || len(ds.Features) > 0 {
-		data, err = data.Subset(ds.Classes, ds.Features)
-		if err != nil {
-			return nil, inErr(err)
-		}
+	data, err := loadDataset(s, ds)
+	if err != nil {
+		return nil, err
 	}
 	counts := data.ClassCounts()
 	present := 0
@@ -173,6 +151,42 @@ func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
 		}
 	}
 	return pd, nil
+}
+
+// loadDataset loads a dataset named in a spec (embedded, synthetic or CSV,
+// relative paths resolved against the spec's directory) and applies its
+// class and feature selection.
+func loadDataset(s *Spec, ds DatasetSpec) (*datasets.Dataset, error) {
+	inErr := func(err error) error {
+		return &InputError{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+	}
+	var data *datasets.Dataset
+	var err error
+	if isPath(ds.Name) {
+		path := ds.Name
+		if !filepath.IsAbs(path) && s.Dir != "" {
+			path = filepath.Join(s.Dir, path)
+		}
+		data, err = datasets.LoadCSV(path, datasets.CSVOptions{Label: ds.Label, DropInvalid: ds.DropInvalid})
+		if err != nil {
+			return nil, &InputError{Err: err} // the CSV error names file, line and column
+		}
+	} else {
+		if ds.Label != "" || ds.DropInvalid {
+			return nil, inErr(fmt.Errorf("label and drop_invalid apply to CSV files only"))
+		}
+		data, err = datasets.Load(ds.Name)
+		if err != nil {
+			return nil, inErr(err)
+		}
+	}
+	if len(ds.Classes) > 0 || len(ds.Features) > 0 {
+		data, err = data.Subset(ds.Classes, ds.Features)
+		if err != nil {
+			return nil, inErr(err)
+		}
+	}
+	return data, nil
 }
 
 // classError adds the class name to a splitter error.
