@@ -174,7 +174,7 @@ func (p *Plan) Caption() string {
 	case CVHoldout:
 		proto = fmt.Sprintf("stratified holdout (test fraction %g), %d repeat(s)", s.CV.TestFraction, s.CV.Repeats)
 	}
-	return fmt.Sprintf("Run %s: mean $\\pm$ standard deviation over folds; %s; seed %d. Best mean per dataset in bold.", s.Name, proto, s.Seed)
+	return fmt.Sprintf("Run %s: mean and standard deviation over folds; %s; seed %d. Best mean per dataset in bold.", s.Name, proto, s.Seed)
 }
 
 // RunInfo carries what the manifest records beyond the plan.
@@ -221,13 +221,34 @@ func (p *Plan) Manifest(info RunInfo, warnings []string) *results.Manifest {
 	return m
 }
 
-// Write writes a complete run directory at dir. Files are first written
-// into a temporary directory beside dir, which is renamed into place only
-// when every file is complete; an existing dir is replaced only then. On
-// error nothing is left behind.
+// Write writes a complete run directory at dir: the records (CSV), the
+// report (summary.tex, summary.md, comparisons.csv; see Analyse), the
+// figures (figures/*.svg, .pdf, .png; see ReportFigures and KernelFigure)
+// and the manifest, whose warnings gain the grouped warnings of the
+// statistics. Files are first written into a temporary directory beside
+// dir, which is renamed into place only when every file is complete; an
+// existing dir is replaced only then. On error nothing is left behind.
 func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []string) error {
 	preds, folds, times := p.Records(res)
-	summary := p.Summarise(res)
+	in := p.reportInput(res, preds, folds)
+	summary := in.Summary
+	rep, err := Analyse(in)
+	if err != nil {
+		return err
+	}
+	figs, err := ReportFigures(rep, preds)
+	if err != nil {
+		return err
+	}
+	kf, err := p.KernelFigure()
+	if err != nil {
+		return err
+	}
+	figs = append(figs, kf)
+	for _, f := range figs {
+		rep.Figures = append(rep.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
+	}
+	allWarnings := append(append([]string(nil), warnings...), rep.Warnings...)
 	files := []struct {
 		name  string
 		write func(*bytes.Buffer) error
@@ -235,11 +256,23 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 		{"predictions.csv", func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
 		{"folds.csv", func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
 		{"summary.csv", func(b *bytes.Buffer) error { return results.WriteSummary(b, summary) }},
-		{"summary.tex", func(b *bytes.Buffer) error {
-			return results.WriteSummaryTeX(b, summary, results.TeXOptions{Caption: p.Caption(), Label: "tab:" + p.Spec.Name})
-		}},
+		{"summary.tex", func(b *bytes.Buffer) error { return results.WriteReportTeX(b, rep) }},
+		{"summary.md", func(b *bytes.Buffer) error { return results.WriteReportMarkdown(b, rep) }},
+		{"comparisons.csv", func(b *bytes.Buffer) error { return results.WriteComparisons(b, rep.Comparisons) }},
 		{"timings.csv", func(b *bytes.Buffer) error { return results.WriteTimings(b, times) }},
-		{"manifest.json", func(b *bytes.Buffer) error { return results.WriteManifest(b, p.Manifest(info, warnings)) }},
+		{"manifest.json", func(b *bytes.Buffer) error { return results.WriteManifest(b, p.Manifest(info, allWarnings)) }},
+	}
+	for _, f := range figs {
+		for _, format := range results.FigureFormats {
+			files = append(files, struct {
+				name  string
+				write func(*bytes.Buffer) error
+			}{f.Name + "." + format, func(b *bytes.Buffer) error {
+				data, err := f.Render(format)
+				b.Write(data)
+				return err
+			}})
+		}
 	}
 	parent := filepath.Dir(filepath.Clean(dir))
 	if err := os.MkdirAll(parent, 0o755); err != nil {
@@ -263,7 +296,11 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 		if err := f.write(&b); err != nil {
 			return fmt.Errorf("write %s: %w", f.name, err)
 		}
-		if err := os.WriteFile(filepath.Join(tmp, f.name), b.Bytes(), 0o644); err != nil {
+		path := filepath.Join(tmp, filepath.FromSlash(f.name))
+		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+			return fmt.Errorf("write %s: %w", f.name, err)
+		}
+		if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
 			return fmt.Errorf("write %s: %w", f.name, err)
 		}
 	}

@@ -104,9 +104,12 @@ func (m CVMethod) String() string {
 // CVSpec is the cross-validation protocol.
 type CVSpec struct {
 	Method       CVMethod
-	Folds        int     // stratified only
-	Repeats      int     // stratified and holdout
-	TestFraction float64 // holdout only
+	Folds        int      // stratified only
+	Repeats      int      // stratified and holdout
+	TestFraction float64  // holdout only
+	Test         TestKind // paired test of two models on a dataset (report.go)
+	Alpha        float64  // significance level of the tests; 0 means DefaultTestAlpha
+	Reference    string   // model the others are tested against; "" = best classical baseline per dataset
 }
 
 // ModelSpec is one model configuration: its kind, its display name and its
@@ -144,6 +147,9 @@ type rawCV struct {
 	Folds        *int     `toml:"folds"`
 	Repeats      *int     `toml:"repeats"`
 	TestFraction *float64 `toml:"test_fraction"`
+	Test         *string  `toml:"test"`
+	Alpha        *float64 `toml:"alpha"`
+	Reference    *string  `toml:"reference"`
 }
 
 // LoadSpec reads and validates a spec file.
@@ -181,7 +187,7 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 			if strings.HasPrefix(ks, "model.") || ks == "model" {
 				continue // model keys are checked per kind below
 			}
-			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, model; in [cv]: method, folds, repeats, test_fraction; in [[dataset]]: name, classes, features, as, label, drop_invalid)")
+			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, model; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference; in [[dataset]]: name, classes, features, as, label, drop_invalid)")
 		}
 	}
 	s := &Spec{File: file, Source: append([]byte(nil), data...)}
@@ -293,6 +299,11 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 			}
 		}
 	}
+	if raw.CV != nil {
+		if err := parseCVTests(&cv, raw.CV, bad); err != nil {
+			return nil, err
+		}
+	}
 	s.CV = cv
 
 	if len(raw.Model) == 0 {
@@ -316,6 +327,11 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 		}
 		names[ms.Name] = i + 1
 		s.Models = append(s.Models, ms)
+	}
+	if s.CV.Reference != "" {
+		if _, ok := names[s.CV.Reference]; !ok {
+			return nil, bad("cv.reference", "reference %q is not the name of a model of the spec", s.CV.Reference)
+		}
 	}
 	return s, nil
 }

@@ -63,6 +63,9 @@ func commands() []*command {
 		{name: "demo", args: "[-out DIR] [-workers N]", short: "run the built-in demo experiment on embedded data", run: runDemo},
 		{name: "run", args: "SPEC.toml [-out DIR] [-workers N]", short: "run an experiment spec", run: runSpec},
 		{name: "list", args: "", short: "list embedded datasets, pipeline steps and models", run: runList},
+		{name: "rank", args: "SCORES.csv [-alpha A] [-json] [-plot FILE]", short: "rank models across datasets from a dataset,model,score CSV (Friedman, Iman-Davenport, Nemenyi CD)", run: runRank},
+		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-json]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},
+		{name: "circuit", args: "[-dataset NAME] [-pipeline P] [-train N] [-row R] [-qasm]", short: "show the compiled circuit's resources, or its OpenQASM 3 text, for one test instance", run: runCircuit},
 	}
 }
 
