@@ -5,7 +5,7 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 py=/usr/bin/python3
 $py -c 'import sklearn, numpy, scipy' || { echo "needs Debian's python3-sklearn (apt-get install python3-sklearn)"; exit 2; }
-for s in scripts/ref_*.py; do
+for s in scripts/ref_*.py; do  # includes ref_compare.py
   echo "-- $s"
   $py "$s" > /dev/null
 done

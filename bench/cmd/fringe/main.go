@@ -73,7 +73,7 @@ func mainUsage(w io.Writer) {
 	fmt.Fprintln(w, "usage: fringe VERB [flags] [args]")
 	fmt.Fprintln(w, "\nfringe benchmarks the interference quantum classifier against classical baselines.\n\nverbs:")
 	for _, c := range commands() {
-		fmt.Fprintf(w, "  %-6s %s\n", c.name, c.short)
+		fmt.Fprintf(w, "  %-8s %s\n", c.name, c.short)
 	}
 	fmt.Fprintln(w, "\nRun 'fringe VERB -h' for a verb's flags.")
 }

@@ -147,7 +147,17 @@ func TestDemoDeterministic(t *testing.T) {
 	if !strings.Contains(out, "interference") {
 		t.Errorf("demo summary lacks the interference classifier:\n%s", out)
 	}
-	for _, f := range []string{"predictions.csv", "folds.csv", "summary.csv", "summary.tex"} {
+	files := runFiles(t, a)
+	if len(files) < 10 {
+		t.Fatalf("run directory holds %d files: %v", len(files), files)
+	}
+	if got := runFiles(t, b); strings.Join(got, ",") != strings.Join(files, ",") {
+		t.Fatalf("file lists differ:\n%v\n%v", files, got)
+	}
+	for _, f := range files {
+		if f == "manifest.json" || f == "timings.csv" {
+			continue // times and host by design
+		}
 		x, err := os.ReadFile(filepath.Join(a, f))
 		if err != nil {
 			t.Fatal(err)
@@ -169,4 +179,22 @@ func TestDemoDeterministic(t *testing.T) {
 	if len(entries) != 2 {
 		t.Errorf("output parent holds %d entries, want 2 (no leftover temporary directories)", len(entries))
 	}
+}
+
+// runFiles lists the files of a run directory (relative, sorted).
+func runFiles(t *testing.T, dir string) []string {
+	t.Helper()
+	var out []string
+	err := filepath.WalkDir(dir, func(path string, d os.DirEntry, err error) error {
+		if err != nil || d.IsDir() {
+			return err
+		}
+		rel, err := filepath.Rel(dir, path)
+		out = append(out, rel)
+		return err
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
 }
