@@ -6,6 +6,9 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+
+	"fringe/qkernel/circuit"
+	"fringe/qkernel/sim"
 )
 
 // benchSizes: a 10-fold CV fold of a 150-row dataset, and a larger set.
@@ -101,4 +104,105 @@ func gramPredict(probs []float64, train, test [][]float64, y []int, w []float64)
 		}
 		argmax(probs, []int{0, 1, 2})
 	}
+}
+
+// BenchmarkShots times ModeShots on the first stratified fold of Iris (135
+// training rows, 15 test rows, std pipeline): one multinomial sample per
+// test row from the closed-form distribution, so ns/prediction must not
+// grow with the number of shots (compare shots=100 with shots=1000000 in
+// one run; mode=exact is the reference without sampling).
+func BenchmarkShots(b *testing.B) {
+	f := firstFold(b, "iris", 10)
+	rows, _ := f.Xte.Dims()
+	for _, tc := range []struct {
+		name string
+		c    Classifier
+	}{
+		{"mode=exact", Classifier{Balance: true}},
+		{"shots=100", Classifier{Mode: ModeShots, Shots: 100, Balance: true, Seed: 1}},
+		{"shots=1000000", Classifier{Mode: ModeShots, Shots: 1000000, Balance: true, Seed: 1}},
+	} {
+		b.Run(tc.name, func(b *testing.B) {
+			c := tc.c
+			if err := c.Fit(f.Xtr, f.ytr, f.nClass); err != nil {
+				b.Fatal(err)
+			}
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, _, err := c.PredictDetail(f.Xte); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(rows), "ns/prediction")
+		})
+	}
+}
+
+// BenchmarkNoisyIris times gate-level noisy predictions with the density
+// matrix on Iris (first stratified fold, std pipeline) with training
+// subsets of 8 rows: 3 classes give index 3 + data 2 + class 2 + ancilla 1
+// = 8 qubits; versicolor vs virginica gives 7. Noise: depolarizing
+// (0.001, 0.01) after every gate, 1000 shots. ns/gate divides by the
+// elementary gates of the decomposed circuit (sim runs each with its noise).
+func BenchmarkNoisyIris(b *testing.B) {
+	for _, classes := range []int{3, 2} {
+		b.Run(fmt.Sprintf("subset=8/classes=%d", classes), func(b *testing.B) {
+			f := firstFold(b, "iris", 10)
+			if classes == 2 {
+				f = dropClass0(f)
+			}
+			c := &Classifier{Mode: ModeNoisy, TrainSubset: 8, Shots: 1000, Seed: 1,
+				Noise: sim.NoiseModel{Depolarizing: [2]float64{0.001, 0.01}}}
+			if err := c.Fit(f.Xtr, f.ytr, f.nClass); err != nil {
+				b.Fatal(err)
+			}
+			p, err := c.makePlan()
+			if err != nil {
+				b.Fatal(err)
+			}
+			if p.method != sim.DensityMatrix || p.qubits != map[int]int{3: 8, 2: 7}[classes] {
+				b.Fatalf("plan %+v", p)
+			}
+			s := c.newScratch(p)
+			c.drawSubset(s, p.alloc, rowRand(c.Seed, 0))
+			circ, err := circuit.Compile(f.Xte.RawRowView(0), s.train, s.ysub, f.nClass, nil)
+			if err != nil {
+				b.Fatal(err)
+			}
+			r := circ.Resources()
+			gates := r.CNOT + r.SingleQubit
+			rows, _ := f.Xte.Dims()
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := c.Predict(f.Xte); err != nil {
+					b.Fatal(err)
+				}
+			}
+			ns := float64(b.Elapsed().Nanoseconds()) / float64(b.N) / float64(rows)
+			b.ReportMetric(ns, "ns/prediction")
+			b.ReportMetric(ns/float64(gates), "ns/gate")
+			b.ReportMetric(float64(gates), "gates")
+			b.ReportMetric(float64(p.qubits), "qubits")
+		})
+	}
+}
+
+// dropClass0 removes class 0 from a fold and renumbers classes 1.. to 0..
+func dropClass0(f fold) fold {
+	keep := func(X *mat.Dense, y []int) (*mat.Dense, []int) {
+		_, d := X.Dims()
+		var data []float64
+		var out []int
+		for i, k := range y {
+			if k != 0 {
+				data = append(data, X.RawRowView(i)...)
+				out = append(out, k-1)
+			}
+		}
+		return mat.NewDense(len(out), d, data), out
+	}
+	g := fold{name: f.name, nClass: f.nClass - 1}
+	g.Xtr, g.ytr = keep(f.Xtr, f.ytr)
+	g.Xte, g.yte = keep(f.Xte, f.yte)
+	return g
 }

@@ -7,6 +7,9 @@ import (
 
 	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
+
+	"fringe/qkernel/circuit"
+	"fringe/qkernel/sim"
 )
 
 // Sentinel errors. Errors returned by this package wrap one of them (test
@@ -30,6 +33,16 @@ var (
 	// ErrNotFitted is returned by Predict and PredictDetail before a
 	// successful Fit (and after a failed one).
 	ErrNotFitted = errors.New("classifier not fitted")
+	// ErrOption marks an invalid or contradictory option (see Validate);
+	// the error is an *OptionError naming the option's key.
+	ErrOption = errors.New("invalid option")
+	// ErrSubset marks a TrainSubset that the training data cannot supply:
+	// larger than the training set, or smaller than the number of classes
+	// present.
+	ErrSubset = errors.New("invalid training subset size")
+	// ErrTooLarge marks a circuit with more qubits than the chosen
+	// simulator holds.
+	ErrTooLarge = errors.New("circuit too large for the simulator")
 )
 
 // VectorError reports a row whose feature vector has no amplitude encoding.
@@ -49,40 +62,14 @@ func (e *VectorError) Error() string {
 // Unwrap returns ErrZeroVector.
 func (e *VectorError) Unwrap() error { return ErrZeroVector }
 
-// Mode selects how the classifier is run.
-type Mode int
-
-const (
-	// ModeExact evaluates the closed form: infinite shots, no noise. It is
-	// the zero value.
-	ModeExact Mode = iota
-)
-
-// String returns the mode's name as written in experiment specs.
-func (m Mode) String() string {
-	switch m {
-	case ModeExact:
-		return "exact"
-	}
-	return fmt.Sprintf("Mode(%d)", int(m))
-}
-
-// ParseMode returns the Mode named s ("exact"). An unknown or not yet
-// implemented name is an error wrapping ErrMode.
-func ParseMode(s string) (Mode, error) {
-	switch s {
-	case "exact":
-		return ModeExact, nil
-	}
-	return 0, fmt.Errorf("qkernel: mode %q: %w (known: exact)", s, ErrMode)
-}
-
 // Classifier is the interference classifier. Set the options, then Fit and
 // Predict. The zero value is the published classifier in exact mode.
 //
 // A fitted Classifier is read-only during Predict and PredictDetail, so
 // several goroutines may predict with it at once; Fit must not run
-// concurrently with anything else on the same value.
+// concurrently with anything else on the same value. Options are read
+// again by every Predict call (and checked as in Fit), so changing them
+// between Fit and Predict takes effect.
 type Classifier struct {
 	// Mode selects the way the classifier is run; the zero value is
 	// ModeExact.
@@ -90,56 +77,94 @@ type Classifier struct {
 	// Balance chooses the index-register weights: false gives every
 	// training row 1/M as published; true gives a row of class k the weight
 	// 1/(C * M_k) (C classes present in training, M_k rows in class k),
-	// which removes the bias toward large classes. See Weights.
+	// which removes the bias toward large classes. See Weights. With
+	// TrainSubset the weights are those of the subset.
 	Balance bool
-
-	// Later modes add their options here (shot count, noise model, training
-	// subset size, seed); their zero values keep the behaviour above.
+	// Shots is the number of measurement shots per test row: required
+	// (> 0) in ModeShots, optional in ModeNoisy (0 reports the noisy
+	// probabilities exactly), not allowed in the other modes.
+	Shots int
+	// Noise is the gate-level noise model of ModeNoisy (see sim.NoiseModel:
+	// depolarizing [p1, p2] after each single-qubit gate / CNOT, amplitude
+	// and phase damping after every gate, readout [p01, p10]).
+	Noise sim.NoiseModel
+	// Channels are the closed-form noise models of ModeNoisy, applied to
+	// the outcome distribution after the gate-level simulation (or to the
+	// closed form when there is none).
+	Channels Channels
+	// TrainSubset K > 0 gives every test row its own class-balanced random
+	// subset of K training rows; 0 uses the whole training set.
+	TrainSubset int
+	// Method is the simulator of a gate-level run in ModeNoisy; sim.Auto
+	// (the zero value) simulates gate by gate only when Noise has gate
+	// noise and then picks the density matrix up to sim.MaxDensityQubits
+	// qubits, trajectories above. An explicit method always runs the
+	// gate-level simulation.
+	Method sim.Method
+	// Trajectories is the number of Monte Carlo trajectories of the
+	// trajectory method; 0 means sim.DefaultTrajectories.
+	Trajectories int
+	// Seed is the task seed. Every test row gets its own generator derived
+	// from Seed and the row's position in the matrix passed to Predict; it
+	// draws, in this order, the training subset, the trajectory jumps and
+	// the shots.
+	Seed uint64
 
 	fitted  bool
 	n, d    int
 	nClass  int
 	present []int     // classes present in training, in class order (len >= 2)
-	mass    []float64 // mass[k] = sum of w_m over class k
+	count   []int     // rows per class
+	members [][]int   // members[k]: training positions of class k, ascending
+	y       []int     // training labels
+	unit    []float64 // n x d row-major: the unit training vectors
+	mass    []float64 // mass[k] = sum of w_m over class k (whole training set)
 	centre  []float64 // nClass x d row-major: centre_k = sum_{m in k} w_m x_m (x_m unit)
 }
 
 // Detail is the classifier's output for one test row.
 type Detail struct {
-	// PAcc is the post-selection probability P(a = 0).
+	// PAcc is the post-selection probability P(a = 0), estimated as
+	// accepted/total shots with finite shots.
 	PAcc float64
-	// Probs holds P(k | a = 0) per class in class order; 0 for classes
-	// absent from training, NaN for present classes when PAcc is zero
-	// (see the package documentation).
+	// Probs holds P(k | a = 0) per class in class order (estimated as
+	// counts_k / N_acc with finite shots). Classes absent from training
+	// have probability 0 without noise; noise can give them (and the
+	// class-register values >= the number of classes, which belong to no
+	// class) some probability, so under noise Probs may sum to less than
+	// 1. When nothing is accepted, present classes get NaN and absent
+	// ones 0 (see the package documentation).
 	Probs []float64
-	// Shots is the number of accepted shots behind the estimate; 0 in
-	// exact mode.
+	// Shots is the number of accepted shots N_acc behind the estimate; 0
+	// with exact probabilities (ModeExact, ModeCircuit, ModeNoisy without
+	// shots).
 	Shots int
-}
-
-func (c *Classifier) checkMode() error {
-	switch c.Mode {
-	case ModeExact:
-		return nil
-	}
-	return fmt.Errorf("qkernel: %v: %w", c.Mode, ErrMode)
+	// Exact is the exact-mode decision (closed form, noiseless, infinite
+	// shots) on the same training set or subset, so that a harness can
+	// count decisions that shots and noise changed. In ModeExact it equals
+	// the prediction.
+	Exact int
 }
 
 // reset forgets any fitted state.
 func (c *Classifier) reset() {
 	c.fitted = false
 	c.n, c.d, c.nClass = 0, 0, 0
-	c.present, c.mass, c.centre = nil, nil, nil
+	c.present, c.count, c.members, c.y, c.unit = nil, nil, nil, nil, nil
+	c.mass, c.centre = nil, nil
 }
 
 // Fit stores the training set: the rows of X with class indices y in
 // [0, nClass). Every row is L2-normalised (into a copy; X is not modified).
-// Fit returns an error wrapping ErrMode, ErrDim, ErrLabel, ErrOneClass or
-// ErrZeroVector (a *VectorError with Set "training") on bad input; a failed
-// Fit leaves the classifier unfitted.
+// Fit checks the options (Validate) and the limits that depend on the data:
+// TrainSubset against the training set (ErrSubset) and the circuit's qubit
+// count against the simulator (ErrTooLarge). It returns an error wrapping
+// ErrOption, ErrMode, ErrSubset, ErrTooLarge, ErrDim, ErrLabel, ErrOneClass
+// or ErrZeroVector (a *VectorError with Set "training") on bad input; a
+// failed Fit leaves the classifier unfitted.
 func (c *Classifier) Fit(X *mat.Dense, y []int, nClass int) error {
 	c.reset()
-	if err := c.checkMode(); err != nil {
+	if err := c.Validate(); err != nil {
 		return err
 	}
 	if X == nil || X.IsEmpty() {
@@ -172,44 +197,126 @@ func (c *Classifier) Fit(X *mat.Dense, y []int, nClass int) error {
 	w := Weights(y, nClass, c.Balance)
 	mass := make([]float64, nClass)
 	centre := make([]float64, nClass*d)
-	x := make([]float64, d)
+	unit := make([]float64, n*d)
+	members := make([][]int, nClass)
 	for i, k := range y {
+		x := unit[i*d : (i+1)*d : (i+1)*d]
 		if f := unitInto(x, X.RawRowView(i)); f != vectorOK {
 			return &VectorError{Set: "training", Pos: i, Reason: f.String()}
 		}
 		mass[k] += w[i]
 		floats.AddScaled(centre[k*d:(k+1)*d], w[i], x)
+		members[k] = append(members[k], i)
 	}
 
-	c.fitted = true
 	c.n, c.d, c.nClass = n, d, nClass
-	c.present = present
+	c.present, c.count, c.members = present, count, members
+	c.y = append([]int(nil), y...)
+	c.unit = unit
 	c.mass = mass
 	c.centre = centre
+	if _, err := c.makePlan(); err != nil {
+		c.reset()
+		return fmt.Errorf("qkernel: fit: %w", err)
+	}
+	c.fitted = true
 	return nil
 }
 
+// plan is what a Predict call needs beyond the fitted data: the options
+// resolved against the training set.
+type plan struct {
+	m      int        // training vectors per prediction (n or TrainSubset)
+	alloc  []int      // subset rows per class (TrainSubset > 0)
+	qClass int        // class qubits q; outcome distributions have 2^(1+q) entries
+	qubits int        // qubits of the compiled circuit
+	gate   bool       // the compiled circuit is simulated (ModeCircuit, gate-level ModeNoisy)
+	method sim.Method // the simulator when gate is true
+}
+
+// makePlan checks the options and their data-dependent limits. Errors carry
+// no "qkernel: " prefix (callers add context); option errors are returned
+// as they are.
+func (c *Classifier) makePlan() (*plan, error) {
+	if err := c.Validate(); err != nil {
+		return nil, err
+	}
+	p := &plan{m: c.n}
+	if K := c.TrainSubset; K > 0 {
+		switch {
+		case K > c.n:
+			return nil, fmt.Errorf("train_subset %d exceeds the %d training rows: %w", K, c.n, ErrSubset)
+		case K < len(c.present):
+			return nil, fmt.Errorf("train_subset %d is below the %d classes present in training (every class needs a row): %w", K, len(c.present), ErrSubset)
+		}
+		p.m = K
+		p.alloc = subsetAlloc(K, c.count, c.present)
+	}
+	nm, nd, nq := circuit.RegisterSizes(p.m, c.d, c.nClass)
+	p.qClass = nq
+	p.qubits = 1 + nm + nd + nq
+	switch {
+	case c.Mode == ModeCircuit:
+		p.gate, p.method = true, sim.StateVector
+	case c.gateLevel():
+		p.gate, p.method = true, c.Method
+		if p.method == sim.Auto {
+			p.method = sim.DensityMatrix
+			if p.qubits > sim.MaxDensityQubits {
+				p.method = sim.Trajectories
+			}
+		}
+	}
+	if !p.gate {
+		return p, nil
+	}
+	switch {
+	case p.method == sim.DensityMatrix && p.qubits > sim.MaxDensityQubits:
+		return nil, fmt.Errorf("circuit needs %d qubits; the density-matrix simulator holds at most %d; set train_subset or method = %q: %w",
+			p.qubits, sim.MaxDensityQubits, sim.Trajectories.String(), ErrTooLarge)
+	case p.qubits > sim.MaxStateQubits:
+		name := "state-vector"
+		if p.method == sim.Trajectories {
+			name = "trajectory"
+		}
+		return nil, fmt.Errorf("circuit needs %d qubits; the %s simulator holds at most %d; set train_subset or use fewer features: %w",
+			p.qubits, name, sim.MaxStateQubits, ErrTooLarge)
+	}
+	return p, nil
+}
+
 // Predict returns the predicted class index of every row of X: the present
-// class with the largest P(k | a = 0), ties to the earlier class (see the
-// package documentation). Rows are L2-normalised into scratch space; X is not
-// modified. An X with no rows gives an empty result.
+// class with the largest (estimated) P(k | a = 0), ties to the earlier
+// class (see the package documentation). Rows are L2-normalised into
+// scratch space; X is not modified. An X with no rows gives an empty
+// result. The random draws of row i depend only on Seed and i, its position
+// in X.
 func (c *Classifier) Predict(X *mat.Dense) ([]int, error) {
 	pred, _, err := c.predict(X, false)
 	return pred, err
 }
 
 // PredictDetail is Predict that also returns, per row, the post-selection
-// probability and the class probabilities behind the prediction.
+// probability, the class probabilities, the accepted shots and the
+// exact-mode decision behind the prediction.
 func (c *Classifier) PredictDetail(X *mat.Dense) ([]int, []Detail, error) {
 	return c.predict(X, true)
 }
 
 func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error) {
-	if err := c.checkMode(); err != nil {
+	if err := c.Validate(); err != nil {
 		return nil, nil, err
 	}
 	if !c.fitted {
 		return nil, nil, fmt.Errorf("qkernel: predict: %w", ErrNotFitted)
+	}
+	p, err := c.makePlan()
+	if err != nil {
+		var oe *OptionError
+		if errors.As(err, &oe) {
+			return nil, nil, err
+		}
+		return nil, nil, fmt.Errorf("qkernel: predict: %w", err)
 	}
 	if X == nil || X.IsEmpty() {
 		if detail {
@@ -228,34 +335,23 @@ func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error)
 		details = make([]Detail, r)
 		backing = make([]float64, r*c.nClass)
 	}
-	x := make([]float64, d)
-	joint := make([]float64, c.nClass)
-	floor := c.paccFloor()
+	s := c.newScratch(p)
+	probs := make([]float64, c.nClass)
 	for i := range r {
-		if f := unitInto(x, X.RawRowView(i)); f != vectorOK {
+		if f := unitInto(s.x, X.RawRowView(i)); f != vectorOK {
 			return nil, nil, &VectorError{Set: "test", Pos: i, Reason: f.String()}
 		}
-		pacc := c.jointInto(joint, x)
-		var probs []float64
 		if detail {
 			probs = backing[i*c.nClass : (i+1)*c.nClass : (i+1)*c.nClass]
-			details[i] = Detail{PAcc: pacc, Probs: probs}
-		} else {
-			probs = joint // conditional probabilities overwrite the joint ones
 		}
-		if pacc <= floor {
-			// Every training vector is (numerically) antipodal to x:
-			// nothing is accepted and P(k | a = 0) is undefined.
-			for _, k := range c.present {
-				probs[k] = math.NaN()
-			}
-			pred[i] = c.present[0]
-			continue
+		det, err := c.row(p, s, i, probs)
+		if err != nil {
+			return nil, nil, fmt.Errorf("qkernel: predict: test row %d: %w", i, err)
 		}
-		for _, k := range c.present {
-			probs[k] = joint[k] / pacc
+		pred[i] = det.pred
+		if detail {
+			details[i] = Detail{PAcc: det.pacc, Probs: probs, Shots: det.shots, Exact: det.exact}
 		}
-		pred[i] = argmax(probs, c.present)
 	}
 	return pred, details, nil
 }

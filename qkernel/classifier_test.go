@@ -715,11 +715,16 @@ func TestMode(t *testing.T) {
 	if c.Mode != ModeExact || ModeExact.String() != "exact" {
 		t.Errorf("zero Mode %v, want exact", c.Mode)
 	}
-	m, err := ParseMode("exact")
-	if err != nil || m != ModeExact {
-		t.Errorf("ParseMode(exact) = %v, %v", m, err)
+	for _, m := range []Mode{ModeExact, ModeCircuit, ModeShots, ModeNoisy} {
+		got, err := ParseMode(m.String())
+		if err != nil || got != m {
+			t.Errorf("ParseMode(%q) = %v, %v, want %v", m.String(), got, err, m)
+		}
 	}
-	for _, s := range []string{"shots", "noisy", "Exact", ""} {
+	if s := Mode(9).String(); s != "Mode(9)" {
+		t.Errorf("Mode(9).String() = %q", s)
+	}
+	for _, s := range []string{"Exact", "", "noise", "shot"} {
 		if _, err := ParseMode(s); !errors.Is(err, ErrMode) {
 			t.Errorf("ParseMode(%q) error %v, want ErrMode", s, err)
 		}

@@ -44,38 +44,162 @@
 // every class carries mass 1/C and the bias is gone. On the circuit the
 // weights are the squared amplitudes of the index register.
 //
+// # Modes
+//
+// Classifier.Mode selects one of four ways of running the same classifier.
+// Every mode computes the closed form above on the row's training set (the
+// whole set or its subset, see below) and reports that decision in
+// Detail.Exact, so a harness can count the decisions that shots and noise
+// changed.
+//
+//   - ModeExact: the closed form; infinite shots, no noise.
+//   - ModeCircuit: for every test row the circuit of package circuit is
+//     compiled (Compile, with the same weights) and simulated without noise
+//     on a state vector, each uniformly controlled rotation in one pass
+//     (sim.Simulate with sim.StateVector). It reproduces ModeExact to
+//     rounding (within 1e-12; tested on the first fold of every embedded
+//     dataset) and exists to prove that the circuit computes the closed
+//     form; it costs O(2^n) per gate on n qubits.
+//   - ModeShots: Classifier.Shots > 0 measurement shots drawn from the
+//     closed-form distribution P(a, k) (which the circuit reproduces). One
+//     multinomial sample (sim.SampleCounts) over the accepted outcomes
+//     (a = 0, k) and a single merged "rejected" outcome; merging categories
+//     leaves the law of the others unchanged, and the cost does not grow
+//     with the number of shots. Only a = 0 shots count:
+//     Detail.PAcc = N_acc / Shots, Detail.Probs[k] = count_k / N_acc,
+//     Detail.Shots = N_acc.
+//   - ModeNoisy: the outcome distribution under noise, then Shots shots as
+//     in ModeShots if Shots > 0, else the noisy probabilities exactly
+//     (Detail.Shots 0). See Noise.
+//
+// # Noise
+//
+// In ModeNoisy the distribution is built in three steps:
+//
+//  1. Gate level. If Classifier.Noise has gate noise (depolarizing,
+//     amplitude or phase damping), or Classifier.Method names a simulator,
+//     the compiled circuit is simulated gate by gate (sim.Simulate; every
+//     uniformly controlled rotation decomposed into RY and CNOT, each with
+//     its noise; see sim.NoiseModel). Otherwise the closed form is used,
+//     which is fast and exact.
+//  2. Channels, in closed form on the distribution: ancilla dephasing
+//     (phase damping of the ancilla just before the final Hadamard), then
+//     global depolarizing (the whole register just before measurement).
+//     The two commute (each maps the uniform distribution to itself). After
+//     gate-level noise they act as extra noise at the end of the circuit.
+//  3. Readout assignment error on every measured bit, from Noise.Readout or
+//     Channels.Readout (they are the same model; Validate rejects setting
+//     both).
+//
+// This order is checked against a density-matrix run of the same physics
+// (dephasing before the final H, depolarizing after it, readout channels on
+// the measured qubits). Noise can give probability to classes absent from
+// training and to class-register values k >= C (unused when C is not a
+// power of two). Such values are accepted outcomes (they count in p_acc and
+// N_acc) that belong to no class, so under noise Detail.Probs may sum to
+// less than 1; absent classes are reported but never predicted.
+//
+// # Qubits and simulators
+//
+// The circuit of M training vectors of d features and C classes has
+// 1 + ceil(log2 M) + max(1, ceil(log2 d)) + ceil(log2 C) qubits (M is the
+// subset size with TrainSubset). ModeCircuit needs at most
+// sim.MaxStateQubits (26). A gate-level ModeNoisy run uses Classifier.Method:
+// sim.Auto picks the density matrix (exact) up to sim.MaxDensityQubits (12)
+// qubits and Monte Carlo trajectories (Classifier.Trajectories, default
+// sim.DefaultTrajectories) up to 26; sim.DensityMatrix, sim.Trajectories and
+// sim.StateVector (noiseless only) force a simulator. Fit rejects a circuit
+// beyond the chosen simulator's limit with an error wrapping ErrTooLarge
+// that names the qubit count, the limit and the way out, e.g.
+//
+//	circuit needs 16 qubits; the density-matrix simulator holds at most 12;
+//	set train_subset or method = "trajectories"
+//
+// The density matrix costs O(4^n) per gate, so TrainSubset is the practical
+// way to run gate-level noise on real data.
+//
+// # Training subsets
+//
+// Classifier.TrainSubset K > 0 gives every test row its own random subset of
+// K training rows, drawn without replacement, class by class: the K rows
+// are allotted one per present class in class order, round after round,
+// skipping exhausted classes (as equal as possible, the remainder to the
+// earlier classes, a small class's shortfall spread over the others). K
+// must lie between the number of classes present and the training-set
+// size, else Fit returns an error wrapping ErrSubset. The weights (Balance)
+// are those of the subset. K equal to the training-set size is the whole
+// set.
+//
+// # Randomness
+//
+// Every random draw of a test row comes from its own generator, a PCG
+// seeded from (Classifier.Seed, i) by a hash, where i is the row's 0-based
+// position in the matrix passed to Predict or PredictDetail. It draws, in
+// this order, the training subset, the trajectory jumps and the shots. So
+// results are identical when Predict is called again, and a row's draws do
+// not depend on the other rows or on scheduling; but splitting the same
+// rows into other batches changes their positions and hence their draws
+// (the harness passes a whole test fold at once). Because the subset comes
+// first, every mode with the same Seed and TrainSubset uses the same subset
+// for the same row: exact, shots and noisy runs are paired.
+//
 // # Decision rule and ties
 //
-// The prediction is the class with the largest P(k | acc). Classes absent
-// from training have probability 0 and are never predicted. Present classes
-// are scanned in class order (the dataset's class order); a later class
-// replaces the best so far only if its probability s exceeds the best b by
-// more than a relative 1e-12, s > b + 1e-12 |b|, so an exact or near tie goes
-// to the class that comes first.
+// The prediction is the present class with the largest P(k | acc) (exact
+// or noisy probabilities) or the most accepted shots (finite shots).
+// Classes absent from training are never predicted. Present classes are
+// scanned in class order (the dataset's class order). With probabilities, a
+// later class replaces the best so far only if its probability s exceeds
+// the best b by more than a relative 1e-12, s > b + 1e-12 |b|, so an exact
+// or near tie goes to the class that comes first. With counts, ties are
+// exact integer ties, and they too go to the class that comes first.
 //
 // # Zero acceptance
 //
-// p_acc is zero only when every training vector is antipodal to the test
-// vector. A computed p_acc at or below its rounding-error bound
-// (n + d + 2) * 2^-52 (n training rows, d features) carries no correct digit
-// and is treated as zero: the prediction is the first class present in
-// training, Detail.PAcc holds the computed value, and Detail.Probs is NaN for
-// every present class (0 for absent ones), since P(k | acc) is undefined.
-// This is the only case in which the package returns NaN, apart from Kernel
-// on a zero or non-finite vector.
+// With finite shots, N_acc = 0 (no shot with a = 0) predicts the first
+// class present in training; Detail.PAcc and Detail.Shots are 0 and
+// Detail.Probs is NaN for every present class (0 for absent ones).
+//
+// With probabilities, p_acc is zero only when every training vector is
+// antipodal to the test vector. A computed p_acc at or below its
+// rounding-error bound carries no correct digit and is treated as zero,
+// with the same rule (Detail.PAcc keeps the computed value). The bound is
+// (M + d + 2) * 2^-52 for the closed form (M training vectors, d features);
+// a simulated distribution adds (operations + 2^n) * 2^-52. These are the
+// only cases in which the package returns NaN, apart from Kernel on a zero
+// or non-finite vector.
 //
 // # Errors and panics
 //
-// Bad input never panics. Fit and Predict return errors prefixed "qkernel: "
-// that wrap one of ErrZeroVector, ErrOneClass (fewer than two classes present
-// in training: the circuit would run, but its answer would be fixed, and the
-// harness treats such a fold as bad input), ErrDim, ErrLabel, ErrMode or
-// ErrNotFitted. A failed Fit leaves the classifier unfitted. Kernel panics on
-// vectors of different lengths and Weights on labels outside [0, nClass):
-// both are preconditions a caller checks, as for gonum's floats functions.
+// Bad input never panics. Validate checks the options alone and returns an
+// *OptionError naming the option's key (wrapping ErrOption, or ErrMode for
+// an unknown mode): probabilities outside [0, 1], Shots < 0 or missing in
+// ModeShots, TrainSubset < 0, and options set in a mode that ignores them
+// (Shots in ModeExact and ModeCircuit; Noise, Channels, Method and
+// Trajectories outside ModeNoisy). Fit calls it, then returns errors
+// prefixed "qkernel: " that wrap one of ErrZeroVector, ErrOneClass (fewer
+// than two classes present in training: the circuit would run, but its
+// answer would be fixed, and the harness treats such a fold as bad input),
+// ErrDim, ErrLabel, ErrSubset or ErrTooLarge. Predict checks the options
+// again (they may have changed since Fit) and returns ErrNotFitted before a
+// successful Fit. A failed Fit leaves the classifier unfitted. Kernel
+// panics on vectors of different lengths and Weights on labels outside
+// [0, nClass): both are preconditions a caller checks, as for gonum's
+// floats functions.
+//
+// # Cost
+//
+// Per test row: ModeExact O(C d) on the whole set (Fit folds each class into
+// a centroid) or O(K d) with a subset; ModeShots adds O(2^q) for the sample,
+// independent of the number of shots; ModeCircuit and gate-level ModeNoisy
+// cost what the simulator costs (compile O(M d), state vector O(2^n) per
+// operation, density matrix O(4^n) per elementary gate, trajectories
+// O(T 2^n) per elementary gate).
 //
 // # Concurrency
 //
 // A fitted Classifier is not modified by Predict or PredictDetail; several
-// goroutines may predict with one classifier at once.
+// goroutines may predict with one classifier at once (each call has its own
+// scratch space and generators). Fit must not run concurrently with anything
+// else on the same value.
 package qkernel
