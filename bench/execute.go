@@ -164,7 +164,7 @@ func (p *Plan) runModel(t Task, where string, Ztr *mat.Dense, ytr, rowsTr []int,
 	d := p.Datasets[t.Dataset]
 	sp := d.Splits[t.Split]
 	ms := p.Spec.Models[t.Model]
-	m := ms.New(Seed(p.Spec.Seed, "task", p.Key(t)))
+	m := ms.New(p.modelSeed(t))
 	if err := m.Fit(Ztr, ytr, len(d.Data.Classes)); err != nil {
 		return TaskResult{}, p.classifyModel(err, where, ms.Name, rowsTr)
 	}
@@ -223,10 +223,27 @@ func (p *Plan) classifyModel(err error, where, model string, rows []int) error {
 	}
 	err = fmt.Errorf("%s, model %s: %w", where, model, err)
 	if errors.Is(err, baselines.ErrParam) || errors.Is(err, baselines.ErrData) ||
-		errors.Is(err, qkernel.ErrZeroVector) || errors.Is(err, qkernel.ErrOneClass) {
+		errors.Is(err, qkernel.ErrZeroVector) || errors.Is(err, qkernel.ErrOneClass) ||
+		errors.Is(err, qkernel.ErrTooLarge) || errors.Is(err, qkernel.ErrSubset) || errors.Is(err, qkernel.ErrOption) {
 		return &InputError{File: p.Spec.File, Err: err}
 	}
 	return err
+}
+
+// modelSeed is the seed a task's model gets. It is derived from the run
+// seed and the task key, except for interference models: they get one seed
+// per (dataset, repeat, fold), shared by every interference model and
+// pipeline of the run, so that on each test instance they draw the same
+// training subset and the same random stream (common random numbers) and
+// their differences (shots against exact, noise against none) are paired.
+func (p *Plan) modelSeed(t Task) uint64 {
+	ms := p.Spec.Models[t.Model]
+	if ms.Kind == "interference" {
+		d := p.Datasets[t.Dataset]
+		sp := d.Splits[t.Split]
+		return Seed(p.Spec.Seed, "interference", d.Name, fmt.Sprint(sp.Repeat), fmt.Sprint(sp.Fold))
+	}
+	return Seed(p.Spec.Seed, "task", p.Key(t))
 }
 
 // meanPAcc is the mean post-selection probability of a task's predictions,

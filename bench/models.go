@@ -8,7 +8,6 @@ import (
 
 	"fringe/baselines"
 	"fringe/datasets"
-	"fringe/qkernel"
 )
 
 // builder makes a fresh, unfitted model for one task. seed is the task's
@@ -26,7 +25,7 @@ type ModelInfo struct {
 // ModelInfos lists the model kinds a spec may use.
 func ModelInfos() []ModelInfo {
 	return []ModelInfo{
-		{"interference", "mode, balance", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode = \"exact\" is the closed form; balance = true weights the index register by 1/(C*M_k)"},
+		{"interference", "mode, balance, shots, train_subset, noise, method, trajectories", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise); balance = true weights the index register by 1/(C*M_k)"},
 		{"knn", "k, metric, weights", "k-nearest neighbours; metric euclidean|manhattan|cosine; weights uniform|distance; ties: nearer then lower index, vote ties to the first class"},
 		{"svm", "kernel, C, gamma, degree, coef0, tol", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; one-vs-one"},
 		{"logreg", "C, max_iter", "multinomial logistic regression, L2 penalty 1/C (intercept unpenalised), fitted by L-BFGS"},
@@ -51,25 +50,17 @@ func parseModel(m map[string]any) (ModelSpec, error) {
 	case "":
 		return ms, keyErr("kind", "missing model kind (one of %s)", kindList())
 	case "interference":
-		mode := p.str("mode", "exact")
-		balance := p.boolean("balance", false)
-		var qm qkernel.Mode
-		switch mode {
-		case "exact":
-			qm = qkernel.ModeExact
-		default:
-			p.fail("mode", "unknown mode %q (want exact)", mode)
+		q, lab, noise := parseInterference(p)
+		label = lab
+		ms.Params["mode"], ms.Params["balance"] = q.Mode.String(), q.Balance
+		ms.Params["shots"], ms.Params["train_subset"] = q.Shots, q.TrainSubset
+		if noise != nil {
+			ms.Params["noise"] = noise
 		}
-		label = "interference"
-		if mode != "exact" {
-			label += "-" + mode
-		}
-		if balance {
-			label += "-balanced"
-		}
-		ms.Params["mode"], ms.Params["balance"] = mode, balance
 		ms.build = func(seed uint64) baselines.Model {
-			return &qkernel.Classifier{Mode: qm, Balance: balance}
+			c := q
+			c.Seed = seed
+			return &c
 		}
 	case "knn":
 		k := p.integer("k", 5)

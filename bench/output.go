@@ -34,6 +34,8 @@ func (p *Plan) Records(res []TaskResult) ([]results.Prediction, []results.Fold, 
 		sp := d.Splits[t.Split]
 		pipe := p.Spec.Pipelines[t.Pipeline]
 		model := p.Spec.Models[t.Model].Name
+		mode, _ := p.Spec.Models[t.Model].Params["mode"].(string)
+		notExact := mode != "" && mode != "exact"
 		for i, j := range sp.Test {
 			pr := results.Prediction{
 				Dataset: d.Name, Pipeline: pipe, Model: model,
@@ -43,15 +45,36 @@ func (p *Plan) Records(res []TaskResult) ([]results.Prediction, []results.Fold, 
 				PAcc:      math.NaN(),
 			}
 			if r.Details != nil {
-				pr.PAcc = r.Details[i].PAcc
+				det := r.Details[i]
+				pr.PAcc, pr.Shots, pr.Probs = det.PAcc, det.Shots, det.Probs
+				if notExact {
+					pr.Exact = d.Data.Classes[det.Exact]
+				}
 			}
 			preds = append(preds, pr)
 		}
-		folds = append(folds, results.Fold{
+		fold := results.Fold{
 			Dataset: d.Name, Pipeline: pipe, Model: model,
 			Repeat: sp.Repeat, Fold: sp.Fold, NTrain: r.NTrain, NTest: r.NTest,
 			Scores: r.Scores, MeanPAcc: meanPAcc(r.Details),
-		})
+			MeanShots: math.NaN(), ExactDisagreement: math.NaN(),
+		}
+		if len(r.Details) > 0 {
+			var shots, differ float64
+			for i, det := range r.Details {
+				shots += float64(det.Shots)
+				if det.Exact != r.Pred[i] {
+					differ++
+				}
+			}
+			if shots > 0 {
+				fold.MeanShots = shots / float64(len(r.Details))
+			}
+			if notExact {
+				fold.ExactDisagreement = differ / float64(len(r.Details))
+			}
+		}
+		folds = append(folds, fold)
 		times = append(times, results.Timing{
 			Dataset: d.Name, Pipeline: pipe, Model: model,
 			Repeat: sp.Repeat, Fold: sp.Fold, Seconds: r.Elapsed.Seconds(),

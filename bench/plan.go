@@ -201,20 +201,45 @@ func classError(err error, data *datasets.Dataset, folds int) error {
 	return err
 }
 
-// checkModels rejects parameters that cannot fit the planned splits.
+// checkModels rejects parameters that cannot fit the planned splits: k of
+// k-NN larger than a training part, and an interference model's
+// train_subset larger than a training part or smaller than the number of
+// classes it holds.
 func (p *Plan) checkModels() error {
 	for mi, m := range p.Spec.Models {
-		k, ok := m.Params["k"].(int)
-		if m.Kind != "knn" || !ok {
+		var key string
+		var k int
+		switch m.Kind {
+		case "knn":
+			key, k = "k", m.Params["k"].(int)
+		case "interference":
+			key, k = "train_subset", m.Params["train_subset"].(int)
+		default:
 			continue
+		}
+		if k == 0 {
+			continue
+		}
+		full := fmt.Sprintf("model[%d].%s", mi+1, key)
+		bad := func(err error) error {
+			return &InputError{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(full), Key: full, Err: err}
 		}
 		for _, d := range p.Datasets {
 			for _, sp := range d.Splits {
 				if k > len(sp.Train) {
-					key := fmt.Sprintf("model[%d].k", mi+1)
-					return &InputError{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(key), Key: key,
-						Err: fmt.Errorf("k = %d exceeds the %d training instances of dataset %s (repeat %d fold %d): %w",
-							k, len(sp.Train), d.Name, sp.Repeat, sp.Fold, baselines.ErrParam)}
+					return bad(fmt.Errorf("%s = %d exceeds the %d training instances of dataset %s (repeat %d fold %d): %w",
+						key, k, len(sp.Train), d.Name, sp.Repeat, sp.Fold, baselines.ErrParam))
+				}
+				if m.Kind != "interference" {
+					continue
+				}
+				seen := map[int]bool{}
+				for _, i := range sp.Train {
+					seen[d.Data.Y[i]] = true
+				}
+				if k < len(seen) {
+					return bad(fmt.Errorf("train_subset = %d is smaller than the %d classes in the training instances of dataset %s (repeat %d fold %d); a class-balanced subset needs one per class",
+						k, len(seen), d.Name, sp.Repeat, sp.Fold))
 				}
 			}
 		}

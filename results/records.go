@@ -19,7 +19,10 @@ type Prediction struct {
 	Repeat, Fold             int
 	Row                      int // 0-based index of the instance in the dataset as loaded
 	Label, Predicted         string
-	PAcc                     float64 // post-selection probability; NaN when the model has none
+	PAcc                     float64   // post-selection probability; NaN when the model has none
+	Shots                    int       // accepted shots behind PAcc and Probs; 0 with exact probabilities or no such model
+	Probs                    []float64 // P(k | acc) in the dataset's class order; nil when the model has none
+	Exact                    string    // the exact-mode decision of an interference model run another way; "" otherwise
 }
 
 // Fold is one row of folds.csv.
@@ -29,6 +32,8 @@ type Fold struct {
 	NTrain, NTest            int
 	Scores                   Scores
 	MeanPAcc                 float64 // NaN when the model has none
+	MeanShots                float64 // mean accepted shots per prediction; NaN without finite shots
+	ExactDisagreement        float64 // share of decisions that differ from exact mode; NaN unless the model runs in another mode
 }
 
 // MetricSummary is a metric's mean, standard deviation and confidence
@@ -71,14 +76,25 @@ func Fmt(v float64) string {
 // WritePredictions writes predictions.csv.
 func WritePredictions(w io.Writer, rows []Prediction) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc"})
+	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "exact_predicted"})
 	for _, r := range rows {
 		correct := "0"
 		if r.Label == r.Predicted {
 			correct = "1"
 		}
+		shots := ""
+		if r.Shots > 0 {
+			shots = strconv.Itoa(r.Shots)
+		}
+		probs := make([]string, len(r.Probs))
+		for i, v := range r.Probs {
+			probs[i] = Fmt(v)
+			if math.IsNaN(v) {
+				probs[i] = "nan"
+			}
+		}
 		cw.Write([]string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.Row), r.Label, r.Predicted, correct, Fmt(r.PAcc)})
+			strconv.Itoa(r.Row), r.Label, r.Predicted, correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), r.Exact})
 	}
 	cw.Flush()
 	return cw.Error()
@@ -89,7 +105,7 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 	cw := csv.NewWriter(w)
 	head := []string{"dataset", "pipeline", "model", "repeat", "fold", "n_train", "n_test"}
 	head = append(head, MetricNames...)
-	head = append(head, "mean_p_acc")
+	head = append(head, "mean_p_acc", "mean_shots", "exact_disagreement")
 	cw.Write(head)
 	for _, r := range rows {
 		rec := []string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
@@ -97,7 +113,7 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 		for _, v := range r.Scores.Values() {
 			rec = append(rec, Fmt(v))
 		}
-		rec = append(rec, Fmt(r.MeanPAcc))
+		rec = append(rec, Fmt(r.MeanPAcc), Fmt(r.MeanShots), Fmt(r.ExactDisagreement))
 		cw.Write(rec)
 	}
 	cw.Flush()
