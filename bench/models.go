@@ -62,6 +62,7 @@ func parseModel(m map[string]any) (ModelSpec, error) {
 			c.Seed = seed
 			return &c
 		}
+		ms.qk = &q
 	case "knn":
 		k := p.integer("k", 5)
 		metricS := p.str("metric", "euclidean")

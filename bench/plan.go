@@ -12,6 +12,9 @@ import (
 	"fringe/baselines"
 	"fringe/bench/cv"
 	"fringe/datasets"
+	"fringe/qkernel"
+	"fringe/qkernel/circuit"
+	"fringe/qkernel/sim"
 )
 
 // Plan is a spec made concrete: datasets loaded, splits drawn, tasks listed.
@@ -206,6 +209,9 @@ func classError(err error, data *datasets.Dataset, folds int) error {
 // train_subset larger than a training part or smaller than the number of
 // classes it holds.
 func (p *Plan) checkModels() error {
+	if err := p.checkQubits(); err != nil {
+		return err
+	}
 	for mi, m := range p.Spec.Models {
 		var key string
 		var k int
@@ -240,6 +246,53 @@ func (p *Plan) checkModels() error {
 				if k < len(seen) {
 					return bad(fmt.Errorf("train_subset = %d is smaller than the %d classes in the training instances of dataset %s (repeat %d fold %d); a class-balanced subset needs one per class",
 						k, len(seen), d.Name, sp.Repeat, sp.Fold))
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// checkQubits rejects an interference model whose circuit, for the largest
+// training part (or its train_subset) and the features after each pipeline,
+// needs more qubits than the simulator it will run on holds: the density
+// matrix (sim.MaxDensityQubits) when chosen explicitly, state vectors and
+// trajectories (sim.MaxStateQubits) otherwise. Checking here makes the error
+// immediate and the same on every run.
+func (p *Plan) checkQubits() error {
+	for mi, m := range p.Spec.Models {
+		q := m.qk
+		if q == nil || q.Mode == qkernel.ModeExact || q.Mode == qkernel.ModeShots {
+			continue
+		}
+		gate := q.Mode == qkernel.ModeCircuit || !q.Noise.IsZero() || q.Method != sim.Auto
+		if !gate {
+			continue // closed-form channels only
+		}
+		limit, simName, alt := sim.MaxStateQubits, "state-vector and trajectory simulators hold", "set train_subset"
+		if q.Method == sim.DensityMatrix {
+			limit, simName, alt = sim.MaxDensityQubits, "density-matrix simulator holds", "set train_subset or method = \"trajectories\""
+		}
+		for _, d := range p.Datasets {
+			for _, ps := range p.Spec.Pipelines {
+				pipe, err := datasets.ParsePipeline(ps)
+				if err != nil {
+					return &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+				}
+				dim := len(pipe.FeatureNames(d.Data.Features))
+				mTrain := 0
+				for _, sp := range d.Splits {
+					mTrain = max(mTrain, len(sp.Train))
+				}
+				if q.TrainSubset > 0 {
+					mTrain = min(mTrain, q.TrainSubset)
+				}
+				ni, nd, nc := circuit.RegisterSizes(mTrain, dim, len(d.Data.Classes))
+				if n := 1 + ni + nd + nc; n > limit {
+					key := fmt.Sprintf("model[%d]", mi+1)
+					return &InputError{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(key), Key: key,
+						Err: fmt.Errorf("model %s on dataset %s, pipeline %s: the circuit needs %d qubits (%d training vectors, %d features); the %s at most %d; %s: %w",
+							m.Name, d.Name, ps, n, mTrain, dim, simName, limit, alt, qkernel.ErrTooLarge)}
 				}
 			}
 		}

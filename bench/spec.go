@@ -12,6 +12,8 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
+
+	"fringe/qkernel"
 )
 
 // ErrInput marks every error caused by the user's input: the spec, a data
@@ -121,6 +123,7 @@ type ModelSpec struct {
 
 	line  int
 	build builder
+	qk    *qkernel.Classifier // interference models: the configuration
 }
 
 type rawSpec struct {

@@ -59,6 +59,12 @@ func TestBadInput(t *testing.T) {
 		{"unknown_step.toml", []string{"unknown_step.toml:4", "whiten"}},
 		{"unknown_class.toml", []string{"unknown_class.toml", "tulip"}},
 		{"missing.toml", []string{"missing.toml"}},
+		{"noise_prob.toml", []string{"noise_prob.toml:7", "model[1].noise.depolarizing", "1.5"}},
+		{"noise_key.toml", []string{"noise_key.toml:7", "model[1].noise.dephasing"}},
+		{"shots_zero.toml", []string{"shots_zero.toml:7", "model[1].shots"}},
+		{"too_many_qubits.toml", []string{"too_many_qubits.toml:7", "16 qubits", "at most 12", "trajectories"}},
+		{"subset_large.toml", []string{"subset_large.toml:9", "model[1].train_subset", "500"}},
+		{"subset_small.toml", []string{"subset_small.toml:8", "model[1].train_subset", "3 classes"}},
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {
