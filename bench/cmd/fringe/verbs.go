@@ -10,7 +10,6 @@ import (
 	"path/filepath"
 	"runtime"
 	"strings"
-	"text/tabwriter"
 	"time"
 
 	"fringe/bench"
@@ -162,43 +161,80 @@ func runList(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) > 0 {
 		return usagef("list takes no arguments")
 	}
-	tw := tabwriter.NewWriter(stdout, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "DATASETS\t")
+	w := &listWriter{w: stdout}
+	w.head("DATASETS (embedded; `datasets = [...]` in a spec)")
 	for _, p := range datasets.Provenances() {
 		d, err := datasets.Load(p.Name)
 		if err != nil {
 			return err
 		}
-		kind := "open"
+		kind := "open data"
 		if p.Synthetic {
-			kind = "synthetic (invented)"
+			kind = "synthetic, invented"
 		}
-		fmt.Fprintf(tw, "  %s\t%d rows x %d features, %d classes (%s); %s\n", p.Name, d.Len(), d.Dim(), len(d.Classes), strings.Join(d.Classes, ", "), kind)
-		fmt.Fprintf(tw, "  \ttitle: %s\n", p.Title)
-		fmt.Fprintf(tw, "  \tcitation: %s\n", p.Citation)
-		fmt.Fprintf(tw, "  \torigin: %s\n", p.Origin)
-		fmt.Fprintf(tw, "  \tlicence: %s\n", p.Licence)
-		fmt.Fprintf(tw, "  \tsha256: %s (%s)\n", p.SHA256, p.File)
+		w.item(p.Name, fmt.Sprintf("%d rows x %d features, %d classes (%s); %s", d.Len(), d.Dim(), len(d.Classes), strings.Join(d.Classes, ", "), kind))
+		w.more("title: " + p.Title)
+		w.more("citation: " + p.Citation)
+		w.more("origin: " + p.Origin)
+		w.more("licence: " + p.Licence)
+		file := p.File
+		if file == "" {
+			file = "generated"
+		}
+		w.more(fmt.Sprintf("sha256: %s (%s)", p.SHA256, file))
 		if p.Note != "" {
-			fmt.Fprintf(tw, "  \tnote: %s\n", p.Note)
+			w.more("note: " + p.Note)
 		}
 	}
-	fmt.Fprintln(tw, "  <path>.csv\tyour own CSV: header row, label column by name (default last), delimiter detected")
-	fmt.Fprintln(tw, "\t")
-	fmt.Fprintln(tw, "PIPELINE STEPS (join with '+'; 'raw' = no steps; fitted on training parts only)\t")
-	for _, s := range datasets.StepInfos() {
-		fmt.Fprintf(tw, "  %s\t%s\n", s.Syntax, s.Description)
+	w.item("PATH.csv", "your own CSV: header row, label column by name (default last), delimiter detected")
+	w.head("PIPELINE STEPS (join with '+'; 'raw' = no steps; every step is fitted on training parts only)")
+	for _, st := range datasets.StepInfos() {
+		w.item(st.Syntax, st.Description)
 	}
-	fmt.Fprintln(tw, "\t")
-	fmt.Fprintln(tw, "MODELS ([[model]] kind = ...)\t")
+	w.head("MODELS ([[model]] kind = ...)")
 	for _, m := range bench.ModelInfos() {
-		fmt.Fprintf(tw, "  %s\tkeys: %s\n  \t%s\n", m.Kind, orNone(m.Keys), m.Description)
+		w.item(m.Kind, m.Description)
+		w.more("keys: " + orNone(m.Keys))
 	}
-	fmt.Fprintln(tw, "\t")
-	fmt.Fprintln(tw, "NOISE MODELS\t")
-	fmt.Fprintln(tw, "  (none yet: the interference model runs in exact mode)\t")
-	return tw.Flush()
+	w.head("NOISE (interference models with mode = \"noisy\": noise = { ... })")
+	for _, n := range bench.NoiseKeys {
+		w.item(n.Key, n.Meaning)
+	}
+	return w.err
 }
+
+// listWriter prints `fringe list`: headings, items with a name column and
+// wrapped continuation lines.
+type listWriter struct {
+	w   io.Writer
+	n   int
+	err error
+}
+
+func (l *listWriter) printf(format string, args ...any) {
+	if l.err == nil {
+		_, l.err = fmt.Fprintf(l.w, format, args...)
+	}
+}
+
+func (l *listWriter) head(s string) {
+	if l.n > 0 {
+		l.printf("\n")
+	}
+	l.n++
+	l.printf("%s\n", s)
+}
+
+func (l *listWriter) item(name, text string) {
+	if len(name) > 16 {
+		l.printf("  %s\n", name)
+		l.more(text)
+		return
+	}
+	l.printf("  %-16s %s\n", name, text)
+}
+
+func (l *listWriter) more(text string) { l.printf("  %-16s %s\n", "", text) }
 
 func orNone(s string) string {
 	if s == "" {
