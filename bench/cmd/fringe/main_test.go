@@ -204,3 +204,27 @@ func runFiles(t *testing.T, dir string) []string {
 	}
 	return out
 }
+
+// TestExamples runs every spec in examples/ (the README points users at
+// them), so a spec change that breaks one fails here.
+func TestExamples(t *testing.T) {
+	if testing.Short() {
+		t.Skip("examples skipped in -short mode")
+	}
+	specs, err := filepath.Glob("../../../examples/*.toml")
+	if err != nil || len(specs) == 0 {
+		t.Fatalf("no example specs found (%v)", err)
+	}
+	for _, s := range specs {
+		t.Run(filepath.Base(s), func(t *testing.T) {
+			out := filepath.Join(t.TempDir(), "run")
+			code, _, stderr := runCmd(t, "", "run", s, "-out", out, "-quiet")
+			if code != 0 {
+				t.Fatalf("exit %d: %s", code, stderr)
+			}
+			if _, err := os.Stat(filepath.Join(out, "summary.csv")); err != nil {
+				t.Fatal(err)
+			}
+		})
+	}
+}
