@@ -2,8 +2,10 @@ package baselines
 
 import (
 	"fmt"
-	"math"
+	"sync"
 
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/floats"
 )
 
@@ -72,7 +74,7 @@ func (k kernel) eval(a, b []float64) float64 {
 	case KernelLinear:
 		return floats.Dot(a, b)
 	case KernelRBF:
-		return math.Exp(-k.gamma * sqDist(a, b))
+		return expNeg(-k.gamma * sqDist(a, b))
 	case KernelPoly:
 		return powi(k.gamma*floats.Dot(a, b)+k.coef0, k.degree)
 	case KernelInterference:
@@ -81,37 +83,56 @@ func (k kernel) eval(a, b []float64) float64 {
 	panic(fmt.Sprintf("baselines: internal error: kernel kind %d", int(k.kind)))
 }
 
-// row sets dst[t] = k(x, pts[t]) for every t. sq holds ||pts[t]||^2 and xsq
-// is ||x||^2; they are used by the RBF kernel only (nil otherwise). The RBF
-// distance is expanded as ||x||^2 + ||x'||^2 - 2<x, x'> (as LIBSVM does),
-// clamped at 0 against rounding, so each evaluation costs one dot product.
-func (k kernel) row(dst, x []float64, xsq float64, pts [][]float64, sq []float64) {
-	dst = dst[:len(pts)]
+// row sets dst[t] = k(x, p_t) for every row p_t of pts. sq holds ||p_t||^2
+// and xsq is ||x||^2; they are used by the RBF kernel only (nil otherwise).
+// The inner products <x, p_t> come from one matrix-vector product (gonum's
+// assembly Dgemv, which runs over four rows at a time). The RBF distance is
+// expanded as ||x||^2 + ||p_t||^2 - 2<x, p_t> (as LIBSVM does), clamped at 0
+// against rounding, and the exponentials are taken over the whole row
+// (expNegSlice).
+func (k kernel) row(dst, x []float64, xsq float64, pts blas64.General, sq []float64) {
+	dst = dst[:pts.Rows]
+	if len(dst) == 0 {
+		return
+	}
+	blas64.Gemv(blas.NoTrans, 1, pts, blas64.Vector{N: len(x), Inc: 1, Data: x}, 0, blas64.Vector{N: len(dst), Inc: 1, Data: dst})
 	switch k.kind {
 	case KernelLinear:
-		for t, p := range pts {
-			dst[t] = floats.Dot(x, p)
-		}
 	case KernelRBF:
-		sq = sq[:len(pts)]
-		for t, p := range pts {
-			d2 := xsq + sq[t] - 2*floats.Dot(x, p)
+		sq = sq[:len(dst)]
+		for t, ip := range dst {
+			d2 := xsq + sq[t] - 2*ip
 			if d2 < 0 {
 				d2 = 0
 			}
-			dst[t] = math.Exp(-k.gamma * d2)
+			dst[t] = -k.gamma * d2
 		}
+		expNegSlice(dst)
 	case KernelPoly:
-		for t, p := range pts {
-			dst[t] = powi(k.gamma*floats.Dot(x, p)+k.coef0, k.degree)
+		for t, ip := range dst {
+			dst[t] = powi(k.gamma*ip+k.coef0, k.degree)
 		}
 	case KernelInterference:
-		for t, p := range pts {
-			dst[t] = (1 + floats.Dot(x, p)) / 2
+		for t, ip := range dst {
+			dst[t] = (1 + ip) / 2
 		}
 	default:
 		panic(fmt.Sprintf("baselines: internal error: kernel kind %d", int(k.kind)))
 	}
+}
+
+// denseRows copies pts (rows of length d) into one row-major matrix.
+func denseRows(pts [][]float64, d int) blas64.General {
+	m := blas64.General{Rows: len(pts), Cols: d, Stride: max(d, 1), Data: make([]float64, len(pts)*d)}
+	for i, p := range pts {
+		copy(m.Data[i*d:(i+1)*d], p)
+	}
+	return m
+}
+
+// rowOf returns row i of m.
+func rowOf(m blas64.General, i int) []float64 {
+	return m.Data[i*m.Stride : i*m.Stride+m.Cols : i*m.Stride+m.Cols]
 }
 
 // sqDist returns ||a - b||^2.
@@ -181,9 +202,9 @@ const gramCacheFloats = 4096 * 4096
 // two most recent rows are always valid together (limit >= 2).
 type kernelCache struct {
 	k     kernel
-	pts   [][]float64
-	sq    []float64 // ||pts[t]||^2, RBF only
-	diag  []float64 // K[i][i]
+	pts   blas64.General // the points, one per row
+	sq    []float64      // ||pts[t]||^2, RBF only
+	diag  []float64      // K[i][i]
 	rows  [][]float64
 	evals int64 // kernel evaluations spent on rows
 
@@ -192,6 +213,47 @@ type kernelCache struct {
 	held       int
 	prev, next []int
 	head, tail int // most and least recently used; -1 when empty
+
+	// Memory of the points and rows: blocks of cacheBlock values from
+	// cacheBlocks, handed back by release.
+	blocks []*[]float64
+	free   []float64 // unused rest of the last block
+}
+
+// cacheBlock is the size, in float64 values (256 KiB), of the blocks a
+// kernelCache carves its rows from; the blocks are recycled through
+// cacheBlocks across fits, so that training does not allocate (and the
+// garbage collector does not sweep) a new Gram matrix every time.
+const cacheBlock = 1 << 15
+
+var cacheBlocks = sync.Pool{New: func() any {
+	b := make([]float64, cacheBlock)
+	return &b
+}}
+
+// alloc returns m values (not cleared) from the cache's blocks, or a new
+// slice when m exceeds a block.
+func (c *kernelCache) alloc(m int) []float64 {
+	if m > cacheBlock {
+		return make([]float64, m)
+	}
+	if len(c.free) < m {
+		b := cacheBlocks.Get().(*[]float64)
+		c.blocks = append(c.blocks, b)
+		c.free = *b
+	}
+	r := c.free[:m:m]
+	c.free = c.free[m:]
+	return r
+}
+
+// release hands the cache's blocks back for reuse. The cache and every row
+// it served must not be used afterwards.
+func (c *kernelCache) release() {
+	for _, b := range c.blocks {
+		cacheBlocks.Put(b)
+	}
+	c.blocks, c.free, c.rows = nil, nil, nil
 }
 
 // newKernelCache builds a cache over pts. limit is the largest number of
@@ -202,7 +264,12 @@ func newKernelCache(k kernel, pts [][]float64, limit int) *kernelCache {
 		limit = gramCacheFloats / max(n, 1)
 	}
 	limit = max(limit, 2)
-	c := &kernelCache{k: k, pts: pts, rows: make([][]float64, n), limit: limit, head: -1, tail: -1}
+	c := &kernelCache{k: k, rows: make([][]float64, n), limit: limit, head: -1, tail: -1}
+	d := len(pts[0])
+	c.pts = blas64.General{Rows: n, Cols: d, Stride: max(d, 1), Data: c.alloc(n * d)}
+	for i, p := range pts {
+		copy(c.pts.Data[i*d:(i+1)*d], p)
+	}
 	if k.kind == KernelRBF {
 		c.sq = make([]float64, n)
 		for i, p := range pts {
@@ -238,14 +305,14 @@ func (c *kernelCache) row(i int) []float64 {
 		c.unlink(v)
 		c.held--
 	} else {
-		buf = make([]float64, len(c.pts))
+		buf = c.alloc(c.pts.Rows)
 	}
 	var xsq float64
 	if c.sq != nil {
 		xsq = c.sq[i]
 	}
-	c.k.row(buf, c.pts[i], xsq, c.pts, c.sq)
-	c.evals += int64(len(c.pts))
+	c.k.row(buf, rowOf(c.pts, i), xsq, c.pts, c.sq)
+	c.evals += int64(c.pts.Rows)
 	c.rows[i] = buf
 	if lru {
 		c.pushFront(i)

@@ -67,7 +67,7 @@ func TestKernelValues(t *testing.T) {
 		pts := [][]float64{x, xp}
 		sq := []float64{floats.Dot(x, x), floats.Dot(xp, xp)}
 		row := make([]float64, 2)
-		tc.k.row(row, x, sq[0], pts, sq)
+		tc.k.row(row, x, sq[0], denseRows(pts, 2), sq)
 		if !scalar.EqualWithinAbsOrRel(row[1], tc.want, 1e-15, 1e-15) {
 			t.Errorf("%v: row form k(x, x') = %.17g, want %.17g", tc.k.kind, row[1], tc.want)
 		}
@@ -217,12 +217,13 @@ func BenchmarkKernelRow(b *testing.B) {
 		{kind: KernelPoly, gamma: 1.0 / 30, degree: 3, coef0: 1},
 		{kind: KernelInterference},
 	} {
+		m := denseRows(pts, 30)
 		b.Run(fmt.Sprintf("kernel=%v/n=512/d=30", k.kind), func(b *testing.B) {
 			dst := make([]float64, len(pts))
 			b.ReportAllocs()
 			i := 0
 			for b.Loop() {
-				k.row(dst, pts[i], sq[i], pts, sq)
+				k.row(dst, pts[i], sq[i], m, sq)
 				i = (i + 1) % len(pts)
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(pts)), "ns/keval")

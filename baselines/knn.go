@@ -5,6 +5,8 @@ import (
 	"math"
 	"strings"
 
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -87,7 +89,12 @@ const DefaultK = 5
 // The zero value is a 5-nearest-neighbour classifier with Euclidean distance
 // and uniform votes. Distances are computed directly (sums of squared or
 // absolute differences in feature order), so a duplicate of a training row
-// is at distance exactly zero.
+// is at distance exactly zero. Under the Euclidean distance a cheaper
+// estimate picks the rows worth computing first: ||t||^2 + ||x||^2 - 2<t, x>
+// from one matrix-vector product over all training rows, with a bound on its
+// rounding error; only rows whose estimate can be within the k nearest get
+// the direct sum, so the neighbours, their order and their distances are
+// exactly those of the direct computation over every row (see nearest).
 //
 // Ties (common practice): neighbours are
 // ordered by distance and then by training row index, so among training
@@ -116,6 +123,8 @@ type KNN struct {
 	x      []float64 // training rows, row-major n x d
 	y      []int
 	norms  []float64 // Euclidean norms of the training rows (Cosine only)
+	sq     []float64 // squared Euclidean norms of the training rows (Euclidean only)
+	sqMax  float64   // largest of sq
 	fitted bool
 }
 
@@ -161,8 +170,17 @@ func (m *KNN) Fit(X *mat.Dense, y []int, nClass int) error {
 			}
 		}
 	}
+	var sq []float64
+	var sqMax float64
+	if m.Metric == Euclidean {
+		sq = make([]float64, n)
+		for i := range n {
+			sq[i] = rowDot(x[i*d:(i+1)*d], x[i*d:(i+1)*d])
+			sqMax = max(sqMax, sq[i])
+		}
+	}
 	m.k, m.n, m.d, m.nClass = k, n, d, nClass
-	m.x, m.y, m.norms = x, append([]int(nil), y...), norms
+	m.x, m.y, m.norms, m.sq, m.sqMax = x, append([]int(nil), y...), norms, sq, sqMax
 	m.fitted = true
 	return nil
 }
@@ -251,10 +269,17 @@ func (m *KNN) checkPredict(X *mat.Dense) error {
 type knnScratch struct {
 	heap  knnHeap
 	count []float64
+	est   []float64 // estimated squared distances to every training row (Euclidean)
+	top   []float64 // max-heap of the k smallest estimates
 }
 
 func (m *KNN) newScratch() *knnScratch {
-	return &knnScratch{heap: make(knnHeap, 0, m.k), count: make([]float64, m.nClass)}
+	s := &knnScratch{heap: make(knnHeap, 0, m.k), count: make([]float64, m.nClass)}
+	if m.Metric == Euclidean {
+		s.est = make([]float64, m.n)
+		s.top = make([]float64, 0, m.k)
+	}
+	return s
 }
 
 // neighbour is a training row and its ordering key: the squared Euclidean
@@ -304,10 +329,15 @@ func knnSiftUp(h knnHeap, i int) {
 
 // nearest fills s.heap with the k nearest training rows of t. Training rows
 // are scanned in index order and a row displaces the current k-th neighbour
-// only when strictly nearer, so ties at the boundary keep the lower indices.
-// The Euclidean and Manhattan sums stop early once they exceed the current
-// k-th key: floating-point addition of non-negative terms never decreases, so
-// the partial sum is a lower bound of the full one and the result is exact.
+// only when strictly nearer, so ties at the boundary keep the lower indices:
+// the heap ends up holding the k smallest (key, index) pairs. The Euclidean
+// and Manhattan sums stop early once they exceed the current k-th key:
+// floating-point addition of non-negative terms never decreases, so the
+// partial sum is a lower bound of the full one and the result is exact.
+//
+// Under the Euclidean metric only the rows that survive a filter are scanned
+// (see candidates); the filter keeps every row that can be among the k
+// smallest pairs, so the result is the same as scanning all rows.
 func (m *KNN) nearest(s *knnScratch, t []float64, row int) error {
 	d, k := m.d, m.k
 	h := s.heap[:0]
@@ -318,8 +348,15 @@ func (m *KNN) nearest(s *knnScratch, t []float64, row int) error {
 			return fmt.Errorf("baselines: knn: test row %d is a zero vector, cosine distance undefined: %w", row, ErrData)
 		}
 	}
+	thr := math.Inf(1)
+	if m.Metric == Euclidean {
+		thr = m.candidates(s, t)
+	}
 	bound := math.Inf(1)
 	for i := range m.n {
+		if thr < math.Inf(1) && s.est[i] > thr {
+			continue
+		}
 		xi := m.x[i*d : (i+1)*d : (i+1)*d]
 		var key float64
 		switch m.Metric {
@@ -349,6 +386,73 @@ func (m *KNN) nearest(s *knnScratch, t []float64, row int) error {
 	}
 	s.heap = h
 	return nil
+}
+
+// candidates sets s.est[i] to an estimate e_i of the squared Euclidean
+// distance from t to training row i, ||t||^2 + ||x_i||^2 - 2<t, x_i> with
+// the inner products from one matrix-vector product (gonum's assembly
+// Dgemv), and returns a threshold: every row whose computed squared distance
+// D_i (the direct sum sqDistBounded forms) can be among the k smallest has
+// e_i <= threshold. It returns +Inf (no filtering) when the norms overflow.
+//
+// Why. Let delta bound |e_i - D_i| for every i. With S the k rows of the
+// smallest estimates and e_(k) the largest of those, the k-th smallest D is
+// at most max over S of D_s <= e_(k) + delta; a row i with D_i at most that
+// (among the k nearest, or tied with the k-th) has e_i <= D_i + delta <=
+// e_(k) + 2 delta, the threshold.
+//
+// delta. Let T = ||t||^2, X = ||x_i||^2, u = 2^-53 and g = (d+2)u/(1-(d+2)u).
+// In any summation order the computed T, X and inner product are within
+// g T, g X and g (T + X)/2 (Cauchy-Schwarz and 2|t||x| <= T + X) of their
+// values; the sum and difference forming e_i add at most 3u(1 + g)^2 (T + X);
+// and D_i, a sum of d rounded squares of rounded differences, is within
+// g ||t - x_i||^2 <= 2g (T + X) of the exact squared distance. Altogether
+// |e_i - D_i| <= (4g + 4u)(T + X) < 8 (d + 2) u (T + max_i X) for (d+2)u <
+// 1/100. Underflow adds at most 2^-1075 per rounded product (sums of
+// subnormals are exact), at most 4d products: 8 (d + 2) 2^-1074 covers it.
+func (m *KNN) candidates(s *knnScratch, t []float64) float64 {
+	n, d, k := m.n, m.d, m.k
+	tsq := rowDot(t, t)
+	slack := 8 * float64(d+2) * (0x1p-53*(tsq+m.sqMax) + math.SmallestNonzeroFloat64)
+	if !(tsq+m.sqMax+slack < math.Inf(1)) || float64(d+2)*0x1p-53 >= 0.01 {
+		return math.Inf(1)
+	}
+	est := s.est[:n]
+	xm := blas64.General{Rows: n, Cols: d, Stride: d, Data: m.x}
+	blas64.Gemv(blas.NoTrans, 1, xm, blas64.Vector{N: d, Inc: 1, Data: t}, 0, blas64.Vector{N: n, Inc: 1, Data: est})
+	top := s.top[:0] // max-heap of the k smallest estimates
+	sq := m.sq[:n]
+	for i, ip := range est {
+		e := tsq + sq[i] - 2*ip
+		est[i] = e
+		if len(top) < k {
+			top = append(top, e)
+			for j := len(top) - 1; j > 0 && top[(j-1)/2] < top[j]; j = (j - 1) / 2 {
+				top[j], top[(j-1)/2] = top[(j-1)/2], top[j]
+			}
+			continue
+		}
+		if e >= top[0] {
+			continue
+		}
+		top[0] = e
+		for j := 0; ; {
+			c := 2*j + 1
+			if c >= k {
+				break
+			}
+			if c+1 < k && top[c+1] > top[c] {
+				c++
+			}
+			if !(top[c] > top[j]) {
+				break
+			}
+			top[j], top[c] = top[c], top[j]
+			j = c
+		}
+	}
+	s.top = top
+	return top[0] + 2*slack
 }
 
 // distance converts an ordering key to the metric's distance.
@@ -515,7 +619,18 @@ func validatePredictArgs(model string, X *mat.Dense, d int) error {
 func checkFiniteMatrix(model, what string, X *mat.Dense) error {
 	r, _ := X.Dims()
 	for i := range r {
-		for j, v := range X.RawRowView(i) {
+		// 0*v is 0 for finite v and NaN for NaN or ±Inf, and NaN stays in
+		// a sum: one multiply-add per entry, the column search only on
+		// failure.
+		var acc float64
+		row := X.RawRowView(i)
+		for _, v := range row {
+			acc += 0 * v
+		}
+		if acc == 0 {
+			continue
+		}
+		for j, v := range row {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return fmt.Errorf("baselines: %s: %s row %d column %d is %v: %w", model, what, i, j, v, ErrData)
 			}

@@ -281,6 +281,105 @@ func TestKNNMatchesFullSort(t *testing.T) {
 	}
 }
 
+// TestKNNEstimateFilterExact checks that the Euclidean filter (estimated
+// distances from norms and one matrix-vector product, see KNN.candidates)
+// never changes the answer: neighbours and distances must be those of the
+// direct sum (sqDistBounded, the function nearest uses) over every training
+// row, ordered by (distance, index). Same function, same arguments: the
+// distances are compared bit for bit. The data are chosen to stress it:
+// rows far from the origin that differ in the sixth decimal (the estimate's
+// rounding error, ~1e-6 here, swamps the distances, ~1e-12, so nearly every
+// row must pass), Gaussian rows (the filter must discard most rows: checked),
+// rows whose squared norms overflow (no filtering) and rows whose squares
+// underflow to subnormal numbers.
+func TestKNNEstimateFilterExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	type gen func(i, j int, test bool) float64
+	cases := []struct {
+		name string
+		n, d int
+		f    gen
+	}{
+		{"offset", 200, 7, func(i, j int, test bool) float64 {
+			v := 1e4 + 1e-6*float64(rng.IntN(3))
+			if test {
+				v += 0.5e-6 * float64(rng.IntN(2))
+			}
+			return v
+		}},
+		{"gaussian", 300, 30, func(i, j int, test bool) float64 { return rng.NormFloat64() }},
+		{"overflow", 60, 5, func(i, j int, test bool) float64 { return 1e200 * (1 + 1e-3*float64(rng.IntN(3))) }},
+		{"subnormal", 60, 5, func(i, j int, test bool) float64 { return 1e-160 * float64(rng.IntN(4)) }},
+	}
+	for _, c := range cases {
+		X := mat.NewDense(c.n, c.d, nil)
+		y := make([]int, c.n)
+		for i := range c.n {
+			for j := range c.d {
+				X.Set(i, j, c.f(i, j, false))
+			}
+			y[i] = i % 3
+		}
+		const nt = 25
+		T := mat.NewDense(nt, c.d, nil)
+		for i := range nt {
+			for j := range c.d {
+				T.Set(i, j, c.f(i, j, true))
+			}
+		}
+		for _, k := range []int{1, 5, 17} {
+			t.Run(fmt.Sprintf("data=%s/k=%d", c.name, k), func(t *testing.T) {
+				m := &KNN{K: k}
+				if err := m.Fit(X, y, 3); err != nil {
+					t.Fatal(err)
+				}
+				idx, dist, err := m.Neighbors(T)
+				if err != nil {
+					t.Fatal(err)
+				}
+				s := m.newScratch()
+				kept := 0
+				for i := range nt {
+					tr := T.RawRowView(i)
+					key := make([]float64, c.n)
+					order := make([]int, c.n)
+					for r := range c.n {
+						key[r] = sqDistBounded(X.RawRowView(r), tr, math.Inf(1))
+						order[r] = r
+					}
+					slices.SortStableFunc(order, func(a, b int) int {
+						switch {
+						case key[a] < key[b]:
+							return -1
+						case key[a] > key[b]:
+							return 1
+						}
+						return 0
+					})
+					if !slices.Equal(idx[i], order[:k]) {
+						t.Fatalf("test row %d: neighbours %v, want %v", i, idx[i], order[:k])
+					}
+					for r, j := range order[:k] {
+						if math.Float64bits(dist[i][r]) != math.Float64bits(math.Sqrt(key[j])) {
+							t.Fatalf("test row %d: distance %d = %v, want %v", i, r, dist[i][r], math.Sqrt(key[j]))
+						}
+					}
+					thr := m.candidates(s, tr)
+					for _, e := range s.est {
+						if e <= thr {
+							kept++
+						}
+					}
+				}
+				t.Logf("%d of %d training rows passed the filter", kept, nt*c.n)
+				if c.name == "gaussian" && kept > nt*c.n/4 {
+					t.Errorf("filter kept %d of %d rows on Gaussian data, want under a quarter", kept, nt*c.n)
+				}
+			})
+		}
+	}
+}
+
 func naiveNeighbours(X *mat.Dense, t []float64, metric Metric) []int {
 	n, d := X.Dims()
 	key := make([]float64, n)

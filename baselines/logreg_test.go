@@ -336,7 +336,8 @@ func TestLogRegErrors(t *testing.T) {
 }
 
 // BenchmarkLogRegFit fits seeded Gaussian data (three classes with shifted
-// means) of n rows and d features, and reports the iterations per fit.
+// means) of n rows and d features, and reports the iterations per fit and
+// the fits per second.
 func BenchmarkLogRegFit(b *testing.B) {
 	for _, sz := range []struct{ n, d int }{{150, 4}, {500, 30}} {
 		b.Run(fmt.Sprintf("n=%d/d=%d", sz.n, sz.d), func(b *testing.B) {
@@ -359,6 +360,7 @@ func BenchmarkLogRegFit(b *testing.B) {
 				iters += m.Iterations()
 			}
 			b.ReportMetric(float64(iters)/float64(b.N), "iters/fit")
+			b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "fits/s")
 		})
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 	"slices"
 
+	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -36,7 +37,11 @@ const tau = 1e-12
 // for kernels that are not positive semidefinite. It stops when the maximal
 // violation m(a) − M(a) ≤ Tol, where m is the largest −y_t∇_t over
 // I_up = {t: y_t=+1, a_t<C or y_t=−1, a_t>0} and M the smallest over
-// I_low = {t: y_t=+1, a_t>0 or y_t=−1, a_t<C}. There is no shrinking.
+// I_low = {t: y_t=+1, a_t>0 or y_t=−1, a_t<C}. There is no shrinking:
+// LIBSVM (svm.cpp, Solver::Solve) first shrinks after min(n, 1000)
+// iterations, later than these solves usually end on data of a few hundred
+// rows (e.g. 186 iterations on 512 rows of Breast Cancer), so it would
+// not change their work.
 // The bias is LIBSVM's: ρ is the mean of y_i∇_i over free support vectors
 // (0 < a_i < C), or the midpoint of the feasible interval when there are
 // none; the decision value is f(x) = Σ_i a_i y_i k(x_i, x) − ρ.
@@ -45,11 +50,15 @@ const tau = 1e-12
 // within Tol: y_i f(x_i) ≥ 1 − Tol if a_i = 0, |y_i f(x_i) − 1| ≤ Tol if
 // 0 < a_i < C, y_i f(x_i) ≤ 1 + Tol if a_i = C.
 //
-// Kernel rows are computed on demand and kept: a task of at most 4096
-// training rows may hold its whole Gram matrix (at most 128 MiB, usually
-// far less because only rows the solver touches are computed); beyond that
-// the most recently used rows that fit in 128 MiB are kept and the others
-// recomputed when needed.
+// A kernel row is one matrix-vector product over the task's points (gonum's
+// assembly Dgemv) followed, for the RBF kernel, by the expanded distance
+// ||x||² + ||x'||² − 2<x, x'> and one pass of exponentials (expNeg, within
+// 1 ulp; see expneg.go). Kernel rows are computed on demand and kept: a
+// task of at most 4096 training rows may hold its whole Gram matrix (at
+// most 128 MiB, usually far less because only rows the solver touches are
+// computed); beyond that the most recently used rows that fit in 128 MiB
+// are kept and the others recomputed when needed. Row memory is recycled
+// from one fit to the next.
 //
 // More than two classes are handled one-vs-one: one two-class task for every
 // pair (a, b), a < b, of classes present in the training data, on the rows of
@@ -91,11 +100,12 @@ type svmFit struct {
 	d       int
 	nClass  int
 	kern    kernel
-	svIndex []int       // training indices of the support vectors, ascending
-	svPts   [][]float64 // their feature vectors (copies)
-	tasks   []svmTask   // one per pair of present classes, in (a, b) order
-	iter    int         // iterations over all tasks
-	evals   int64       // kernel evaluations in training over all tasks
+	svIndex []int          // training indices of the support vectors, ascending
+	svPts   blas64.General // their feature vectors (a copy), one per row
+	svSq    []float64      // their squared norms (RBF only)
+	tasks   []svmTask      // one per pair of present classes, in (a, b) order
+	iter    int            // iterations over all tasks
+	evals   int64          // kernel evaluations in training over all tasks
 }
 
 // svmTask is one two-class decision function f(x) = Σ coef_s k(sv_s, x) − rho,
@@ -163,7 +173,7 @@ func (s *SVM) Fit(X *mat.Dense, y []int, nClass int) error {
 	if len(y) != n {
 		return fmt.Errorf("baselines: svm: %d labels for %d rows: %w", len(y), n, ErrData)
 	}
-	pts, err := rowsOf(X)
+	pts, err := rowsOf(X, "training")
 	if err != nil {
 		return err
 	}
@@ -211,6 +221,7 @@ func (s *SVM) Fit(X *mat.Dense, y []int, nClass int) error {
 			}
 			cache := newKernelCache(kern, sub, 0)
 			res, err := solveSMO(cache, lab, o.C, o.Tol, o.MaxIter)
+			cache.release()
 			f.iter += res.iter
 			f.evals += cache.evals
 			if err != nil {
@@ -228,11 +239,19 @@ func (s *SVM) Fit(X *mat.Dense, y []int, nClass int) error {
 		}
 	}
 	pos := make([]int, n)
+	var svRows [][]float64
 	for i, sv := range isSV {
 		if sv {
 			pos[i] = len(f.svIndex)
 			f.svIndex = append(f.svIndex, i)
-			f.svPts = append(f.svPts, slices.Clone(pts[i]))
+			svRows = append(svRows, pts[i])
+		}
+	}
+	f.svPts = denseRows(svRows, d) // no rows if every multiplier is 0 (Tol >= 2)
+	if kern.kind == KernelRBF {
+		f.svSq = make([]float64, len(svRows))
+		for i, p := range svRows {
+			f.svSq[i] = sqNorm(p)
 		}
 	}
 	for _, rt := range raw {
@@ -246,21 +265,18 @@ func (s *SVM) Fit(X *mat.Dense, y []int, nClass int) error {
 	return nil
 }
 
-// rowsOf returns the rows of X as slices of one contiguous copy, or an
-// ErrData error naming the first non-finite entry.
-func rowsOf(X *mat.Dense) ([][]float64, error) {
-	n, d := X.Dims()
-	flat := make([]float64, n*d)
+// rowsOf returns the rows of X as slices of X's own storage (the caller
+// must not modify them), or an ErrData error naming the first non-finite
+// entry.
+func rowsOf(X *mat.Dense, what string) ([][]float64, error) {
+	n, _ := X.Dims()
+	if err := checkFiniteMatrix("svm", what, X); err != nil {
+		return nil, err
+	}
 	pts := make([][]float64, n)
 	for i := range n {
-		p := flat[i*d : (i+1)*d : (i+1)*d]
-		mat.Row(p, i, X)
-		for j, v := range p {
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return nil, fmt.Errorf("baselines: svm: row %d, column %d: value %g: %w", i, j, v, ErrData)
-			}
-		}
-		pts[i] = p
+		p := X.RawRowView(i)
+		pts[i] = p[:len(p):len(p)]
 	}
 	return pts, nil
 }
@@ -279,22 +295,15 @@ func (s *SVM) pairValues(X *mat.Dense) ([]float64, int, error) {
 	if d != f.d {
 		return nil, 0, fmt.Errorf("baselines: svm: %d columns to predict, trained on %d: %w", d, f.d, ErrData)
 	}
-	pts, err := rowsOf(X)
+	pts, err := rowsOf(X, "test")
 	if err != nil {
 		return nil, 0, err
 	}
-	var svSq []float64
-	if f.kern.kind == KernelRBF {
-		svSq = make([]float64, len(f.svPts))
-		for i, p := range f.svPts {
-			svSq[i] = sqNorm(p)
-		}
-	}
 	nt := len(f.tasks)
 	out := make([]float64, r*nt)
-	kv := make([]float64, len(f.svPts))
+	kv := make([]float64, f.svPts.Rows)
 	for i, x := range pts {
-		f.kern.row(kv, x, sqNorm(x), f.svPts, svSq)
+		f.kern.row(kv, x, sqNorm(x), f.svPts, f.svSq)
 		for j, t := range f.tasks {
 			var sum float64
 			for k, p := range t.sv {
@@ -421,53 +430,61 @@ type smoResult struct {
 // cache by SMO with the second-order working-set selection of Fan, Chen &
 // Lin (2005), and returns the multipliers and the bias ρ. It returns an error wrapping ErrNotConverged
 // after maxIter updates without meeting m(a) − M(a) ≤ eps.
+//
+// It keeps v_t = −y_t ∇_t (the quantity both selections compare) rather than
+// the gradient ∇ = Qa − e itself: since y_t = ±1, v_t − s and −y_t(∇_t + y_t s)
+// are the same floating-point number, so the steps are exactly those of the
+// textbook form. Membership of I_up and I_low is kept in two flag slices,
+// changed only for the two updated variables, and the search for the next
+// i runs in the same pass as the gradient update.
 func solveSMO(cache *kernelCache, y []float64, c, eps float64, maxIter int) (smoResult, error) {
 	n := len(y)
 	alpha := make([]float64, n)
-	g := make([]float64, n) // gradient of the dual objective, Qa − e
-	for t := range g {
-		g[t] = -1
+	v := make([]float64, n) // −y_t ∇_t; ∇ = −e at a = 0
+	up := make([]bool, n)   // t in I_up: y_t = +1, a_t < C or y_t = −1, a_t > 0
+	low := make([]bool, n)  // t in I_low: y_t = +1, a_t > 0 or y_t = −1, a_t < C
+	setFlags := func(t int) {
+		if y[t] > 0 {
+			up[t], low[t] = alpha[t] < c, alpha[t] > 0
+		} else {
+			up[t], low[t] = alpha[t] > 0, alpha[t] < c
+		}
+	}
+	for t, yt := range y {
+		v[t] = yt
+		setFlags(t)
 	}
 	diag := cache.diag[:n]
 	res := smoResult{alpha: alpha}
-	for {
-		// i = argmax over I_up of −y_t g_t, i.e. m(a).
-		gmax, i := math.Inf(-1), -1
-		for t, yt := range y {
-			if yt > 0 {
-				if alpha[t] < c && -g[t] >= gmax {
-					gmax, i = -g[t], t
-				}
-			} else if alpha[t] > 0 && g[t] >= gmax {
-				gmax, i = g[t], t
-			}
+	// i = argmax over I_up of v_t, i.e. m(a); the last index among equals.
+	gmax, i := math.Inf(-1), -1
+	up, low = up[:len(v)], low[:len(v)] // len(v) bounds the loops below
+	for t, vt := range v {
+		if up[t] && vt >= gmax {
+			gmax, i = vt, t
 		}
+	}
+	for {
 		if i < 0 {
 			res.gap = math.Inf(-1)
 			break
 		}
-		// j minimises −b_it²/a_it over t in I_low with −y_t g_t < m(a),
-		// where b_it = m(a) + y_t g_t and a_it = K_ii + K_tt − 2K_it
-		// (Fan, Chen & Lin 2005, second-order selection); gmax2 = −M(a).
-		ki := cache.row(i)
-		gmax2, j, objMin := math.Inf(-1), -1, math.Inf(1)
-		for t, yt := range y {
-			var b float64
-			if yt > 0 {
-				if alpha[t] <= 0 {
-					continue
-				}
-				gmax2 = max(gmax2, g[t])
-				b = gmax + g[t]
-			} else {
-				if alpha[t] >= c {
-					continue
-				}
-				gmax2 = max(gmax2, -g[t])
-				b = gmax - g[t]
+		// j minimises −b_it²/a_it over t in I_low with v_t < m(a), where
+		// b_it = m(a) − v_t and a_it = K_ii + K_tt − 2K_it (Fan, Chen & Lin
+		// 2005, second-order selection); vmin = M(a).
+		ki := cache.row(i)[:len(v)]
+		vmin, j, objMin := math.Inf(1), -1, math.Inf(1)
+		di := diag[i]
+		diag := diag[:len(v)]
+		for t, vt := range v {
+			if !low[t] {
+				continue
 			}
-			if b > 0 {
-				a := diag[i] + diag[t] - 2*ki[t]
+			if vt < vmin {
+				vmin = vt
+			}
+			if b := gmax - vt; b > 0 {
+				a := di + diag[t] - 2*ki[t]
 				if a <= 0 {
 					a = tau
 				}
@@ -476,39 +493,51 @@ func solveSMO(cache *kernelCache, y []float64, c, eps float64, maxIter int) (smo
 				}
 			}
 		}
-		res.gap = gmax + gmax2
+		res.gap = gmax - vmin // M(a) = vmin
 		if res.gap <= eps || j < 0 {
 			break
 		}
 		if res.iter >= maxIter {
 			return res, fmt.Errorf("%d iterations, violation m-M = %.3g > tol %.3g: %w", res.iter, res.gap, eps, ErrNotConverged)
 		}
-		kj := cache.row(j) // ki stays valid: the cache keeps the two most recent rows
+		kj := cache.row(j)[:len(v)] // ki stays valid: the cache keeps the two most recent rows
 		res.iter++
 		oldI, oldJ := alpha[i], alpha[j]
-		updatePair(alpha, g, y, i, j, diag[i]+diag[j]-2*ki[j], c)
-		// g_t += Q_ti Δa_i + Q_tj Δa_j with Q_ts = y_t y_s K_ts.
+		updatePair(alpha, -y[i]*v[i], -y[j]*v[j], y, i, j, diag[i]+diag[j]-2*ki[j], c)
+		setFlags(i)
+		setFlags(j)
+		// ∇_t += Q_ti Δa_i + Q_tj Δa_j with Q_ts = y_t y_s K_ts, so
+		// v_t −= y_i Δa_i K_ti + y_j Δa_j K_tj; then the next i.
 		ci := y[i] * (alpha[i] - oldI)
 		cj := y[j] * (alpha[j] - oldJ)
-		ki, kj = ki[:n], kj[:n]
-		for t, yt := range y {
-			g[t] += yt * (ci*ki[t] + cj*kj[t])
+		gmax, i = math.Inf(-1), -1
+		for t, vt := range v {
+			vt -= ci*ki[t] + cj*kj[t]
+			v[t] = vt
+			if up[t] && vt >= gmax {
+				gmax, i = vt, t
+			}
 		}
+	}
+	g := make([]float64, n)
+	for t, yt := range y {
+		g[t] = -yt * v[t]
 	}
 	res.rho = bias(alpha, g, y, c)
 	return res, nil
 }
 
 // updatePair minimises the dual objective over a_i and a_j with the others
-// fixed, keeping y_i a_i + y_j a_j constant and both in [0, c]; quad is
-// K_ii + K_jj − 2K_ij (replaced by tau if not positive). The clipping
-// follows LIBSVM's Solver::Solve for equal upper bounds.
-func updatePair(alpha, g, y []float64, i, j int, quad, c float64) {
+// fixed, keeping y_i a_i + y_j a_j constant and both in [0, c]; gi and gj are
+// the gradient entries ∇_i and ∇_j, quad is K_ii + K_jj − 2K_ij (replaced by
+// tau if not positive). The clipping follows LIBSVM's Solver::Solve for
+// equal upper bounds.
+func updatePair(alpha []float64, gi, gj float64, y []float64, i, j int, quad, c float64) {
 	if quad <= 0 {
 		quad = tau
 	}
 	if y[i] != y[j] {
-		delta := (-g[i] - g[j]) / quad
+		delta := (-gi - gj) / quad
 		diff := alpha[i] - alpha[j]
 		alpha[i] += delta
 		alpha[j] += delta
@@ -528,7 +557,7 @@ func updatePair(alpha, g, y []float64, i, j int, quad, c float64) {
 		}
 		return
 	}
-	delta := (g[i] - g[j]) / quad
+	delta := (gi - gj) / quad
 	sum := alpha[i] + alpha[j]
 	alpha[i] -= delta
 	alpha[j] += delta

@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"sync"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -711,5 +712,90 @@ func BenchmarkSVMFit(b *testing.B) {
 				b.ReportMetric(float64(len(s.SupportIndices())), "SVs")
 			})
 		}
+	}
+}
+
+// TestSVMRecycledMemory checks the recycling of kernel-row memory
+// (cacheBlocks): blocks handed back hold old values, which must never be
+// read. It fills the pool with blocks of NaN, refits the fixture cases and
+// requires the decision values of a fit made before, and fits run from
+// several goroutines at once (sharing the pool; run with -race). Same data,
+// same arithmetic: the values must be identical, so they are compared bit
+// for bit.
+func TestSVMRecycledMemory(t *testing.T) {
+	var cases []svmRefCase
+	for _, name := range []string{"svm_binary.json", "svm_ovo.json"} {
+		cases = append(cases, loadSVMFixture(t, name).Cases...)
+	}
+	decide := func(c svmRefCase) ([]float64, error) {
+		k, err := ParseKernel(c.Kernel)
+		if err != nil {
+			return nil, err
+		}
+		s := &SVM{Kernel: k, C: c.C, Gamma: c.Gamma, Degree: c.Degree, Coef0: c.Coef0}
+		X := mat.NewDense(len(c.XTrain), len(c.XTrain[0]), nil)
+		for i, r := range c.XTrain {
+			X.SetRow(i, r)
+		}
+		if err := s.Fit(X, c.YTrain, c.NClass); err != nil {
+			return nil, err
+		}
+		T := mat.NewDense(len(c.XTest), len(c.XTest[0]), nil)
+		for i, r := range c.XTest {
+			T.SetRow(i, r)
+		}
+		dec, err := s.DecisionFunction(T)
+		if err != nil {
+			return nil, err
+		}
+		return dec.RawMatrix().Data, nil
+	}
+	want := make([][]float64, len(cases))
+	for i, c := range cases {
+		var err error
+		if want[i], err = decide(c); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for range 8 {
+		b := make([]float64, cacheBlock)
+		for i := range b {
+			b[i] = math.NaN()
+		}
+		cacheBlocks.Put(&b)
+	}
+	same := func(a, b []float64) bool {
+		if len(a) != len(b) {
+			return false
+		}
+		for i := range a {
+			if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+				return false
+			}
+		}
+		return true
+	}
+	errs := make(chan error, 4*len(cases))
+	var wg sync.WaitGroup
+	for range 4 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i, c := range cases {
+				got, err := decide(c)
+				if err != nil {
+					errs <- err
+					return
+				}
+				if !same(got, want[i]) {
+					errs <- fmt.Errorf("%s: decision values %v after recycling, %v before", c.Name, got, want[i])
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	close(errs)
+	for err := range errs {
+		t.Error(err)
 	}
 }
