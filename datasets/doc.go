@@ -20,12 +20,22 @@
 //	iris            150 x 4,  setosa/versicolor/virginica (50/50/50)
 //	wine            178 x 13, class_0/class_1/class_2 (59/71/48)
 //	breast-cancer   569 x 30, malignant/benign (212/357)
+//	cats            144 x 2,  F/M (47/97)
+//	penguins        342 x 4,  Adelie/Gentoo/Chinstrap (151/123/68)
+//	glass           214 x 9,  six glass types (70/76/17/13/9/29)
+//	segment        2310 x 19, seven image regions (330 each)
+//	ionosphere      351 x 34, b/g (126/225)
+//	digits         1797 x 64, 0-9 (174-183 each)
 //	synth-cullet    210 x 5,  flint/green/amber (70/70/70), invented
 //	synth-bearings  270 x 4,  sound/worn (180/90), invented
 //
-// The three open sets are the files of scikit-learn 1.2.1 (Debian
-// python3-sklearn 1.2.1+dfsg-1), embedded byte for byte; Provenance gives
-// origin, citation, licence, file name and the SHA-256 of the embedded bytes.
+// iris, wine, breast-cancer and digits are the files of scikit-learn 1.2.1
+// (Debian python3-sklearn 1.2.1+dfsg-1), embedded byte for byte; glass,
+// segment and ionosphere come from Debian's weka 3.6.14-3 (ARFF), penguins
+// from r-cran-palmerpenguins 0.1.1-1 and cats from r-cran-mass 7.3-58.2-1,
+// converted by scripts/ref_assess_datasets.py with the feature values
+// copied verbatim. Provenance gives origin, citation, licence, file name and
+// the SHA-256 of the embedded bytes.
 // Feature names are scikit-learn's feature_names. iris is the corrected
 // variant of Fisher's data; IrisUCIVariant rebuilds the UCI iris.data
 // variant, which differs in two rows.

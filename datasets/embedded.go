@@ -2,11 +2,13 @@ package datasets
 
 import (
 	"bytes"
+	"compress/gzip"
 	"crypto/sha256"
 	"embed"
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"strconv"
@@ -16,6 +18,8 @@ import (
 )
 
 //go:embed data/iris.csv data/wine_data.csv data/breast_cancer.csv
+//go:embed data/cats.csv data/penguins.csv data/glass.csv data/segment.csv
+//go:embed data/ionosphere.csv data/digits.csv.gz
 var bundledFiles embed.FS
 
 // ErrUnknownDataset is returned (wrapped) by Load and Synthetic for a name
@@ -34,8 +38,25 @@ const (
 // bundled describes one embedded data file.
 type bundled struct {
 	prov     Provenance
-	features []string // sklearn's feature_names, in column order
+	features []string // feature names, in column order
+	// classes, when set, marks a file without the "n,d,class names" first
+	// line (scikit-learn's digits.csv.gz): every line is a data row, and
+	// the class codes index classes.
+	classes []string
+	gzipped bool // the file is gzip-compressed (File ends in .gz)
 }
+
+// Origins of the sets added with the assessment report (see
+// scripts/ref_assess_datasets.py, which converts them and records the
+// digests of the source files).
+const (
+	wekaOrigin      = "Debian weka 3.6.14-3, /usr/share/doc/weka/examples/"
+	convertedBy     = "; converted to the embedded format by scripts/ref_assess_datasets.py (feature values copied verbatim)"
+	uciLicenceWeka  = "CC BY 4.0 (UCI Machine Learning Repository terms, recalled; the ARFF header states no licence); Debian's weka package is GPL-2+ and its copyright file says nothing about the example data"
+	uciLicenceSkl   = uciLicence
+	penguinsLicence = "CC0 (verified: Debian copyright file of r-cran-palmerpenguins 0.1.1-1, Files: *, License: CC0)"
+	catsLicence     = "GPL-2 | GPL-3 (verified: DESCRIPTION of MASS 7.3-58.2, Debian r-cran-mass 7.3-58.2-1); the measurements themselves are from a 1947 publication"
+)
 
 // bundledSets lists the embedded sets in the order of Names. Feature names
 // are those of scikit-learn 1.2.1's load_iris, load_wine and
@@ -94,6 +115,112 @@ var bundledSets = []*bundled{
 			"worst concave points", "worst symmetry", "worst fractal dimension",
 		},
 	},
+	{
+		prov: Provenance{
+			Name:   "cats",
+			Title:  "Anatomical data from domestic cats",
+			Origin: "Debian r-cran-mass 7.3-58.2-1, /usr/lib/R/library/MASS/data/Rdata.rdb (object cats)" + convertedBy,
+			Citation: "R. A. Fisher, The analysis of covariance method for the relation between a part and the whole, Biometrics 3:65-68 (1947); " +
+				"W. N. Venables & B. D. Ripley, Modern Applied Statistics with S, 4th ed., Springer (2002), R package MASS",
+			Licence: catsLicence,
+			File:    "cats.csv",
+			Note:    "body weight (kg) and heart weight (g) of 144 adult cats used in digitalis experiments; class = sex (factor levels F, M); a genuinely two-feature set",
+		},
+		features: []string{"Bwt", "Hwt"},
+	},
+	{
+		prov: Provenance{
+			Name:   "penguins",
+			Title:  "Palmer Archipelago (Antarctica) penguins",
+			Origin: "Debian r-cran-palmerpenguins 0.1.1-1, /usr/lib/R/site-library/palmerpenguins/extdata/penguins.csv" + convertedBy,
+			Citation: "K. B. Gorman, T. D. Williams & W. R. Fraser, Ecological sexual dimorphism and environmental variability within a community of Antarctic penguins (genus Pygoscelis), PLoS ONE 9(3):e90081 (2014) (recalled); " +
+				"A. M. Horst, A. P. Hill & K. B. Gorman, palmerpenguins: Palmer Archipelago (Antarctica) penguin data, R package, doi:10.5281/zenodo.3960218 (2020)",
+			Licence: penguinsLicence,
+			File:    "penguins.csv",
+			Note: "the four body measurements; the 2 of 344 source rows with missing measurements (0-based data rows 3 and 271) are left out; " +
+				"class = species in order of first appearance (Adelie, Gentoo, Chinstrap)",
+		},
+		features: []string{"bill_length_mm", "bill_depth_mm", "flipper_length_mm", "body_mass_g"},
+	},
+	{
+		prov: Provenance{
+			Name:   "glass",
+			Title:  "Glass identification",
+			Origin: wekaOrigin + "glass.arff" + convertedBy,
+			Citation: "B. German, Home Office Forensic Science Service (creator), V. Spiehler (donor), 1987; " +
+				"I. W. Evett & E. J. Spiehler, Rule induction in forensic science, Central Research Establishment, Home Office Forensic Science Service (1987); " + uciCitation,
+			Licence: uciLicenceWeka,
+			File:    "glass.csv",
+			Note: "refractive index and 8 oxide weight percentages; the declared class 'vehic wind non-float' has no instance and is left out, " +
+				"the other six keep their declared order; the ARFF omits the source's Id column",
+		},
+		features: []string{"RI", "Na", "Mg", "Al", "Si", "K", "Ca", "Ba", "Fe"},
+	},
+	{
+		prov: Provenance{
+			Name:     "segment",
+			Title:    "Image segmentation",
+			Origin:   wekaOrigin + "segment-challenge.arff and segment-test.arff, concatenated in that order" + convertedBy,
+			Citation: "Vision Group, University of Massachusetts (creators; donor C. Brodley), 1990; " + uciCitation,
+			Licence:  uciLicenceWeka,
+			File:     "segment.csv",
+			Note:     "3x3 pixel regions of 7 outdoor images, 19 features (region-pixel-count is always 9); the two Weka files together are the 2310 instances, 330 per class",
+		},
+		features: []string{
+			"region-centroid-col", "region-centroid-row", "region-pixel-count",
+			"short-line-density-5", "short-line-density-2", "vedge-mean", "vegde-sd",
+			"hedge-mean", "hedge-sd", "intensity-mean", "rawred-mean", "rawblue-mean",
+			"rawgreen-mean", "exred-mean", "exblue-mean", "exgreen-mean", "value-mean",
+			"saturation-mean", "hue-mean",
+		},
+	},
+	{
+		prov: Provenance{
+			Name:   "ionosphere",
+			Title:  "Johns Hopkins University ionosphere radar returns",
+			Origin: wekaOrigin + "ionosphere.arff" + convertedBy,
+			Citation: "V. G. Sigillito, S. P. Wing, L. V. Hutton & K. B. Baker, Classification of radar returns from the ionosphere using neural networks, " +
+				"Johns Hopkins APL Technical Digest 10:262-266 (1989); donor V. Sigillito, Space Physics Group, Applied Physics Laboratory, Johns Hopkins University; " + uciCitation,
+			Licence: uciLicenceWeka,
+			File:    "ionosphere.csv",
+			Note:    "34 autocorrelation values of 17 pulses (a02 is always 0); class b = bad, g = good returns, in the declared order",
+		},
+		features: seqNames("a%02d", 1, 34),
+	},
+	{
+		prov: Provenance{
+			Name:   "digits",
+			Title:  "Optical recognition of handwritten digits (8x8)",
+			Origin: sklearnOrigin + "digits.csv.gz (embedded byte for byte)",
+			Citation: "E. Alpaydin & C. Kaynak (creators), 1998; C. Kaynak, Methods of Combining Multiple Classifiers and Their Applications to Handwritten Digit Recognition, MSc thesis, Bogazici University (1995); " +
+				"E. Alpaydin & C. Kaynak, Cascading Classifiers, Kybernetika (1998); " + uciCitation,
+			Licence: uciLicenceSkl,
+			File:    "digits.csv.gz",
+			Note:    "the test set of the UCI data (1797 images of 43 writers' digits, 4x4 blocks of 32x32 bitmaps counted into 8x8 pixels 0..16), as scikit-learn ships it",
+		},
+		features: digitsFeatures(),
+		classes:  []string{"0", "1", "2", "3", "4", "5", "6", "7", "8", "9"},
+		gzipped:  true,
+	},
+}
+
+// seqNames returns fmt.Sprintf(format, i) for i = from..to.
+func seqNames(format string, from, to int) []string {
+	out := make([]string, 0, to-from+1)
+	for i := from; i <= to; i++ {
+		out = append(out, fmt.Sprintf(format, i))
+	}
+	return out
+}
+
+// digitsFeatures returns scikit-learn 1.2.1's feature_names of load_digits:
+// pixel_<row>_<column> in row-major order.
+func digitsFeatures() []string {
+	out := make([]string, 0, 64)
+	for i := range 64 {
+		out = append(out, fmt.Sprintf("pixel_%d_%d", i/8, i%8))
+	}
+	return out
 }
 
 // init fills in the SHA-256 digests of the embedded files. A missing file
@@ -110,8 +237,9 @@ func init() {
 }
 
 // Names returns the names Load accepts: the embedded sets ("iris", "wine",
-// "breast-cancer") followed by the synthetic ones ("synth-..."), always in
-// this order.
+// "breast-cancer", "cats", "penguins", "glass", "segment", "ionosphere",
+// "digits") followed by the synthetic ones ("synth-..."), always in this
+// order.
 func Names() []string {
 	out := make([]string, 0, len(bundledSets)+len(synthSets))
 	for _, b := range bundledSets {
@@ -162,44 +290,64 @@ func Load(name string) (*Dataset, error) {
 
 // loadBundled parses an embedded file. The format is the one of
 // scikit-learn's data directory: a first line "n,d,class names..." and then
-// n lines of d feature values and an integer class code.
+// n lines of d feature values and an integer class code. A set with
+// bundled.classes has no first line (digits.csv.gz); its class codes are
+// written as numbers ("3.0" or "3") and index bundled.classes. A gzipped
+// file is decompressed first.
 func loadBundled(b *bundled) (*Dataset, error) {
 	raw, err := bundledFiles.ReadFile("data/" + b.prov.File)
 	if err != nil {
 		return nil, fmt.Errorf("datasets: %s: %w", b.prov.Name, err)
 	}
+	if b.gzipped {
+		zr, err := gzip.NewReader(bytes.NewReader(raw))
+		if err != nil {
+			return nil, fmt.Errorf("datasets: embedded %s: %w", b.prov.File, err)
+		}
+		if raw, err = io.ReadAll(zr); err != nil {
+			return nil, fmt.Errorf("datasets: embedded %s: %w", b.prov.File, err)
+		}
+	}
 	bad := func(line int, format string, args ...any) error {
 		return fmt.Errorf("datasets: embedded %s:%d: %s", b.prov.File, line, fmt.Sprintf(format, args...))
 	}
 	lines := strings.Split(strings.TrimRight(string(raw), "\n"), "\n")
-	head := strings.Split(lines[0], ",")
-	if len(head) < 4 {
-		return nil, bad(1, "short header %q", lines[0])
+	d := len(b.features)
+	classes := append([]string(nil), b.classes...)
+	first := 0 // index of the first data line
+	if b.classes == nil {
+		head := strings.Split(lines[0], ",")
+		if len(head) < 4 {
+			return nil, bad(1, "short header %q", lines[0])
+		}
+		hn, err1 := strconv.Atoi(head[0])
+		hd, err2 := strconv.Atoi(head[1])
+		if err1 != nil || err2 != nil || hd != d || hn != len(lines)-1 {
+			return nil, bad(1, "header %q does not match %d rows of %d features", lines[0], len(lines)-1, d)
+		}
+		classes = append(classes, head[2:]...)
+		first = 1
 	}
-	n, err1 := strconv.Atoi(head[0])
-	d, err2 := strconv.Atoi(head[1])
-	if err1 != nil || err2 != nil || d != len(b.features) || n != len(lines)-1 {
-		return nil, bad(1, "header %q does not match %d rows of %d features", lines[0], len(lines)-1, len(b.features))
-	}
-	classes := append([]string(nil), head[2:]...)
+	n := len(lines) - first
 	X := mat.NewDense(n, d, nil)
 	Y := make([]int, n)
 	rows := make([]int, n)
 	for i := range n {
-		f := strings.Split(lines[i+1], ",")
+		f := strings.Split(lines[i+first], ",")
 		if len(f) != d+1 {
-			return nil, bad(i+2, "%d fields, want %d", len(f), d+1)
+			return nil, bad(i+first+1, "%d fields, want %d", len(f), d+1)
 		}
 		for j := range d {
 			v, err := strconv.ParseFloat(f[j], 64)
 			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-				return nil, bad(i+2, "bad value %q", f[j])
+				return nil, bad(i+first+1, "bad value %q", f[j])
 			}
 			X.Set(i, j, v)
 		}
-		y, err := strconv.Atoi(f[d])
-		if err != nil || y < 0 || y >= len(classes) {
-			return nil, bad(i+2, "bad class code %q", f[d])
+		code, err := strconv.ParseFloat(f[d], 64)
+		y := int(code)
+		if err != nil || float64(y) != code || y < 0 || y >= len(classes) {
+			return nil, bad(i+first+1, "bad class code %q", f[d])
 		}
 		Y[i] = y
 		rows[i] = i

@@ -481,7 +481,7 @@ func TestIrisUCIVariant(t *testing.T) {
 }
 
 func TestLoadNames(t *testing.T) {
-	want := []string{"iris", "wine", "breast-cancer", "synth-cullet", "synth-bearings"}
+	want := []string{"iris", "wine", "breast-cancer", "cats", "penguins", "glass", "segment", "ionosphere", "digits", "synth-cullet", "synth-bearings"}
 	if got := Names(); !slices.Equal(got, want) {
 		t.Fatalf("Names() = %q, want %q", got, want)
 	}
@@ -520,9 +520,9 @@ func TestLoadFreshCopy(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		x0 := a.X.At(0, 0)
+		x0, y0 := a.X.At(0, 0), a.Y[0]
 		a.X.Set(0, 0, x0+1)
-		a.Y[0] = len(a.Classes) - 1
+		a.Y[0] = (y0 + 1) % len(a.Classes)
 		a.Classes[0] = "changed"
 		a.Features[0] = "changed"
 		b, err := Load(name)
@@ -530,7 +530,7 @@ func TestLoadFreshCopy(t *testing.T) {
 			t.Fatal(err)
 		}
 		// Values parsed from the same text are identical; == is exact here.
-		if b.X.At(0, 0) != x0 || b.Y[0] != 0 || b.Classes[0] == "changed" || b.Features[0] == "changed" {
+		if b.X.At(0, 0) != x0 || b.Y[0] != y0 || b.Classes[0] == "changed" || b.Features[0] == "changed" {
 			t.Errorf("%s: Load returned shared state", name)
 		}
 	}

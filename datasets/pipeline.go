@@ -77,6 +77,7 @@ func StepInfos() []StepInfo {
 		{Name: "l2", Syntax: "l2", Description: "scale each row to unit Euclidean norm (a zero row is an error)"},
 		{Name: "pad", Syntax: "pad", Description: "append zero features up to the next power of two"},
 		{Name: "lift", Syntax: "lift | lift(c)", Description: "append the constant c > 0 (default 1), then scale each row to unit norm; keeps the original norm as an angle"},
+		{Name: "norm", Syntax: "norm", Description: "replace each row by its Euclidean norm (one feature): what unit-norm scaling throws away"},
 	}
 }
 
@@ -121,7 +122,7 @@ func parseStep(text string) (Step, error) {
 	name = strings.TrimSpace(name)
 	arg = strings.TrimSpace(arg)
 	switch name {
-	case "std", "minmax", "l2", "pad":
+	case "std", "minmax", "l2", "pad", "norm":
 		if hasArg {
 			return nil, fmt.Errorf("step %s takes no parameter: %w", name, ErrStepParam)
 		}
@@ -132,6 +133,8 @@ func parseStep(text string) (Step, error) {
 			return &MinMax{}, nil
 		case "l2":
 			return &UnitNorm{}, nil
+		case "norm":
+			return &RowNorm{}, nil
 		default:
 			return &Pad{}, nil
 		}
@@ -153,7 +156,7 @@ func parseStep(text string) (Step, error) {
 	case "raw":
 		return nil, fmt.Errorf("raw stands alone and cannot be combined with other steps: %w", ErrUnknownStep)
 	}
-	return nil, fmt.Errorf("%q (known: std, minmax, l2, pad, lift): %w", name, ErrUnknownStep)
+	return nil, fmt.Errorf("%q (known: std, minmax, l2, pad, lift, norm): %w", name, ErrUnknownStep)
 }
 
 // String returns the canonical pipeline name ("raw" when there are no steps).
@@ -571,3 +574,49 @@ func (s *Lift) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 func (s *Lift) FeatureNames(in []string) []string {
 	return append(append([]string(nil), in...), "lift")
 }
+
+// RowNorm is the step "norm": each row x is replaced by the single feature
+// ||x||, its Euclidean norm (computed as in "l2", scaled by the largest
+// magnitude first, so no finite input overflows). It is the part of the
+// data that "l2" discards: a classifier on the output of "std+norm" shows
+// how much the class depends on the norm of the standardised vectors. A
+// zero row gives 0, which is no error here. Nothing is learned; Fit only
+// checks its input.
+type RowNorm struct{}
+
+// Name returns "norm".
+func (s *RowNorm) Name() string { return "norm" }
+
+// Fit checks X and learns nothing.
+func (s *RowNorm) Fit(X *mat.Dense) error {
+	if err := stepCheckInput(X, nil); err != nil {
+		return fmt.Errorf("norm: %w", err)
+	}
+	return nil
+}
+
+// Transform returns the n x 1 matrix of row norms.
+func (s *RowNorm) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
+	if err := stepCheckInput(X, rows); err != nil {
+		return nil, fmt.Errorf("norm: %w", err)
+	}
+	r, _ := X.Dims()
+	out := mat.NewDense(r, 1, nil)
+	for i := range r {
+		v := X.RawRowView(i)
+		top := floats.Norm(v, math.Inf(1))
+		if top == 0 {
+			continue
+		}
+		var sq float64
+		for _, x := range v {
+			q := x / top
+			sq += q * q
+		}
+		out.Set(i, 0, top*math.Sqrt(sq))
+	}
+	return out, nil
+}
+
+// FeatureNames returns the single name "norm".
+func (s *RowNorm) FeatureNames([]string) []string { return []string{"norm"} }

@@ -1,0 +1,120 @@
+package bench
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"fringe/results"
+)
+
+// assessManifest is assess.json: what the report was computed from. It
+// holds nothing that varies between identical runs (no times, no host), so
+// the whole output directory is byte-identical for the same options.
+type assessManifest struct {
+	Tool       string                  `json:"tool"`
+	Version    string                  `json:"version"`
+	Seed       uint64                  `json:"seed"`
+	Repeats    int                     `json:"repeats"`
+	Weights    string                  `json:"weights"`
+	Ratio      float64                 `json:"p2_over_p1"`
+	Confidence float64                 `json:"confidence"`
+	Subsets    []int                   `json:"subsets"`
+	Classical  string                  `json:"classical_pipeline"`
+	Datasets   []results.DatasetRecord `json:"datasets"`
+	Warnings   []string                `json:"warnings"`
+}
+
+// WriteAssessment writes the assessment into dir: assess.csv,
+// assess-resources.csv, assess.md, assess.tex, assess.json and the figures
+// (figures/assess-*.svg, .pdf, .png; see results.AssessFigures). The files
+// are written into a temporary directory beside dir, which is renamed into
+// place only when every file is complete; an existing dir is replaced only
+// then. On error nothing is left behind. a.Figures is set to the figures
+// written.
+func WriteAssessment(dir string, a *results.Assessment) error {
+	figs, err := results.AssessFigures(a, fileSafe)
+	if err != nil {
+		return fmt.Errorf("bench: assess figures: %w", err)
+	}
+	a.Figures = a.Figures[:0]
+	for _, f := range figs {
+		a.Figures = append(a.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
+	}
+	man := assessManifest{
+		Tool: "fringe assess", Version: Version, Seed: a.Seed, Repeats: a.Repeats, Weights: a.Weights,
+		Ratio: a.Ratio, Confidence: a.Confidence, Subsets: a.Subsets, Classical: a.ClassicalPipeline,
+		Datasets: a.Datasets, Warnings: append([]string{}, a.Warnings...),
+	}
+	type file struct {
+		name  string
+		write func(*bytes.Buffer) error
+	}
+	files := []file{
+		{"assess.csv", func(b *bytes.Buffer) error { return results.WriteAssessCSV(b, a) }},
+		{"assess-resources.csv", func(b *bytes.Buffer) error { return results.WriteAssessResourcesCSV(b, a) }},
+		{"assess.md", func(b *bytes.Buffer) error { return results.WriteAssessMarkdown(b, a) }},
+		{"assess.tex", func(b *bytes.Buffer) error { return results.WriteAssessTeX(b, a) }},
+		{"assess.json", func(b *bytes.Buffer) error {
+			enc := json.NewEncoder(b)
+			enc.SetIndent("", "  ")
+			return enc.Encode(man)
+		}},
+	}
+	for _, f := range figs {
+		for _, format := range results.FigureFormats {
+			files = append(files, file{f.Name + "." + format, func(b *bytes.Buffer) error {
+				data, err := f.Render(format)
+				b.Write(data)
+				return err
+			}})
+		}
+	}
+	parent := filepath.Dir(filepath.Clean(dir))
+	if err := os.MkdirAll(parent, 0o755); err != nil {
+		return fmt.Errorf("create output parent: %w", err)
+	}
+	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".partial-")
+	if err != nil {
+		return fmt.Errorf("create temporary output directory: %w", err)
+	}
+	ok := false
+	defer func() {
+		if !ok {
+			os.RemoveAll(tmp)
+		}
+	}()
+	if err := os.Chmod(tmp, 0o755); err != nil {
+		return err
+	}
+	for _, f := range files {
+		var b bytes.Buffer
+		if err := f.write(&b); err != nil {
+			return fmt.Errorf("write %s: %w", f.name, err)
+		}
+		path := filepath.Join(tmp, filepath.FromSlash(f.name))
+		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+			return fmt.Errorf("write %s: %w", f.name, err)
+		}
+		if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
+			return fmt.Errorf("write %s: %w", f.name, err)
+		}
+	}
+	if _, err := os.Stat(dir); err == nil {
+		old := tmp + ".old"
+		if err := os.Rename(dir, old); err != nil {
+			return fmt.Errorf("replace %s: %w", dir, err)
+		}
+		if err := os.Rename(tmp, dir); err != nil {
+			os.Rename(old, dir)
+			return fmt.Errorf("replace %s: %w", dir, err)
+		}
+		os.RemoveAll(old)
+	} else if err := os.Rename(tmp, dir); err != nil {
+		return fmt.Errorf("move output into %s: %w", dir, err)
+	}
+	ok = true
+	return nil
+}

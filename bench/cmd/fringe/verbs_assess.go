@@ -1,0 +1,133 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"io"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"time"
+
+	"fringe/bench"
+	"fringe/results"
+)
+
+// runAssess is `fringe assess`: the suitability report of datasets and
+// pipelines for the interference classifier.
+func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags(c, stdout)
+	dsFlag := fs.String("datasets", "", "comma-separated embedded dataset names or CSV paths (default: every embedded dataset, or the spec's)")
+	pipesFlag := fs.String("pipelines", "", "comma-separated pipelines (default: "+strings.Join(bench.DefaultAssessPipelines, ",")+", or the spec's)")
+	subsetsFlag := fs.String("subsets", joinInts(bench.DefaultAssessSubsets), "comma-separated train_subset sizes for the register and gate table")
+	out := fs.String("out", "", "output directory (default fringe-out/assess, or fringe-out/<spec name>-assess)")
+	seed := fs.Uint64("seed", 1, "seed of the splits (the spec's seed when a spec is given and -seed is not)")
+	folds := fs.Int("folds", 10, "folds of the stratified cross-validation (capped per dataset at its smallest class)")
+	repeats := fs.Int("repeats", 3, "repeats of the cross-validation")
+	weights := fs.String("weights", "balanced", "index weights of the assessed form: balanced (1/(C*M_k)) or uniform (as published)")
+	ratio := fs.Float64("ratio", 10, "p2/p1: two-qubit over single-qubit error rate in the noise budget")
+	workers := fs.Int("workers", runtime.NumCPU(), "concurrent tasks")
+	quiet := fs.Bool("quiet", false, "print nothing but errors")
+	pos, err := parse(fs, args, stderr)
+	if err != nil {
+		return helpOK(err)
+	}
+	if len(pos) > 1 {
+		return usagef("assess takes at most one spec file, got %q (see 'fringe assess -h')", pos)
+	}
+	if *workers < 1 {
+		return usagef("-workers must be at least 1, got %d", *workers)
+	}
+	opt := bench.AssessOptions{Folds: *folds, Repeats: *repeats, Ratio: *ratio, Workers: *workers, Seed: *seed}
+	switch *weights {
+	case "balanced":
+	case "uniform":
+		opt.Uniform = true
+	default:
+		return usagef("-weights must be balanced or uniform, got %q", *weights)
+	}
+	if *folds < 2 {
+		return usagef("-folds must be at least 2, got %d", *folds)
+	}
+	if *repeats < 1 {
+		return usagef("-repeats must be at least 1, got %d", *repeats)
+	}
+	if !(*ratio >= 1) {
+		return usagef("-ratio must be at least 1, got %v", *ratio)
+	}
+	if opt.Subsets, err = parseInts(*subsetsFlag); err != nil {
+		return usagef("-subsets: %v", err)
+	}
+	dir := filepath.Join("fringe-out", "assess")
+	if len(pos) == 1 {
+		spec, err := bench.LoadSpec(pos[0])
+		if err != nil {
+			return err
+		}
+		opt.Datasets, opt.Pipelines = spec.Datasets, spec.Pipelines
+		opt.File, opt.Dir = spec.File, spec.Dir
+		seedSet := false
+		fs.Visit(func(f *flag.Flag) { seedSet = seedSet || f.Name == "seed" })
+		if !seedSet {
+			opt.Seed = spec.Seed
+		}
+		dir = filepath.Join("fringe-out", spec.Name+"-assess")
+	}
+	if *dsFlag != "" {
+		opt.Datasets = nil
+		for _, n := range splitList(*dsFlag) {
+			if n == "" {
+				return usagef("-datasets: empty name in %q", *dsFlag)
+			}
+			opt.Datasets = append(opt.Datasets, bench.DatasetSpec{Name: n})
+		}
+	}
+	if *pipesFlag != "" {
+		opt.Pipelines = splitList(*pipesFlag)
+	}
+	if *out != "" {
+		dir = *out
+	}
+	start := time.Now()
+	a, err := bench.Assess(ctx, opt)
+	if err != nil {
+		if ctx.Err() != nil {
+			return fmt.Errorf("interrupted; nothing was written")
+		}
+		return err
+	}
+	if err := bench.WriteAssessment(dir, a); err != nil {
+		return err
+	}
+	if !*quiet {
+		fmt.Fprintln(stdout, results.AssessCriteria)
+		fmt.Fprintln(stdout)
+		fmt.Fprint(stdout, results.AssessRankingMarkdown(a))
+		fmt.Fprintf(stdout, "\n%d rows in %.1f s; report: %s\n", len(a.Rows), time.Since(start).Seconds(), filepath.Join(dir, "assess.md"))
+	}
+	return nil
+}
+
+func joinInts(v []int) string {
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = strconv.Itoa(x)
+	}
+	return strings.Join(s, ",")
+}
+
+// parseInts reads a comma-separated list of positive integers ("" is
+// none).
+func parseInts(s string) ([]int, error) {
+	out := []int{}
+	for _, f := range splitList(s) {
+		v, err := strconv.Atoi(f)
+		if err != nil || v < 1 {
+			return nil, fmt.Errorf("%q is not a positive integer", f)
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
