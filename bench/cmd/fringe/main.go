@@ -66,6 +66,7 @@ func commands() []*command {
 		{name: "rank", args: "SCORES.csv [-alpha A] [-json] [-plot FILE]", short: "rank models across datasets from a dataset,model,score CSV (Friedman, Iman-Davenport, Nemenyi CD)", run: runRank},
 		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-json]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},
 		{name: "circuit", args: "[-dataset NAME] [-pipeline P] [-train N] [-row R] [-qasm]", short: "show the compiled circuit's resources, or its OpenQASM 3 text, for one test instance", run: runCircuit},
+		{name: "assess", args: "[-datasets a,b] [-pipelines p,q] [-subsets 8,16,32] [-out DIR] [SPEC.toml]", short: "report which datasets and pipelines suit the classifier: qubits, gates, noise budget, shots, norm loss, kernel alignment, accuracy against the baselines", run: runAssess},
 	}
 }
 
