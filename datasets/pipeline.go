@@ -525,12 +525,13 @@ type Lift struct {
 }
 
 // Name returns "lift" for C = 1 and "lift(C)" otherwise, with C in the
-// shortest decimal form that parses back to the same float64.
+// shortest decimal form that parses back to the same float64. A positive
+// exponent is written without its '+' (lift(1e7)), since '+' joins steps.
 func (s *Lift) Name() string {
 	if s.C == 1 {
 		return "lift"
 	}
-	return "lift(" + strconv.FormatFloat(s.C, 'g', -1, 64) + ")"
+	return "lift(" + strings.Replace(strconv.FormatFloat(s.C, 'g', -1, 64), "e+", "e", 1) + ")"
 }
 
 // Fit checks X and C and learns nothing.

@@ -1,0 +1,148 @@
+package datasets
+
+import (
+	"bytes"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// hangLimit bounds the time one fuzz input may take. The fuzzing engine
+// does not notice a hang; a panic from the watchdog crashes the worker,
+// which makes the engine record the input as a failure.
+const hangLimit = 10 * time.Second
+
+// watchdog panics if the calling fuzz input runs longer than hangLimit;
+// the returned function stops it.
+func watchdog(what string) func() bool {
+	t := time.AfterFunc(hangLimit, func() { panic("fuzz: " + what + " took more than " + hangLimit.String() + " (a hang)") })
+	return t.Stop
+}
+
+// FuzzReadCSV feeds arbitrary bytes to the CSV loader. It must never panic
+// or hang; an error must be a located *CSVError naming the file; a dataset
+// it accepts must satisfy Validate, hold at least two classes and one
+// feature, and keep the label column out of the features.
+func FuzzReadCSV(f *testing.F) {
+	for _, s := range []string{
+		"a,b,label\n1,2,x\n3,4,y\n",
+		"a;b;label\n1;2;x\n3;4;y\n",
+		"a\tb\tlabel\n1\t2\tx\n3\t4\ty\n",
+		"\xef\xbb\xbfa,b,c\r\n1,2,x\r\n\r\n3,4,y\r\n",
+		"\"a,1\",b,label\n\"1\",2,\"x\ny\"\n3,4,z\n",
+		"a,b,label\n1,NA,x\n3,4,y\n5,6,x\n",
+		"a,b,label\n1,nan,x\n3,inf,y\n",
+		"a,a,label\n1,2,x\n3,4,y\n",
+		"a,b,label\n1,2\n",
+		"label,a\nx,1e308\ny,-1e-308\n",
+		"",
+		"a,b,label\n",
+		"a,b,label\n1,2,x\n1,2,x\n",
+		"a,\"b,label\n1,2,x\n",
+	} {
+		f.Add([]byte(s), "", false)
+		f.Add([]byte(s), "label", true)
+	}
+	f.Fuzz(func(t *testing.T, data []byte, label string, drop bool) {
+		defer watchdog("ReadCSV")()
+		d, err := ReadCSV(bytes.NewReader(data), "fuzz.csv", CSVOptions{Label: label, DropInvalid: drop})
+		if err != nil {
+			var ce *CSVError
+			if !errors.As(err, &ce) {
+				t.Fatalf("error %v (%T) is not a *CSVError", err, err)
+			}
+			if ce.File != "fuzz.csv" || ce.Line < 1 {
+				t.Fatalf("error %v does not locate the problem (file %q, line %d)", err, ce.File, ce.Line)
+			}
+			if !strings.HasPrefix(err.Error(), "datasets: fuzz.csv:") {
+				t.Fatalf("message %q lacks the package and file prefix", err)
+			}
+			return
+		}
+		if verr := d.Validate(); verr != nil {
+			t.Fatalf("accepted dataset is invalid: %v", verr)
+		}
+		if len(d.Classes) < 2 || d.Dim() < 1 || d.Len() < 1 {
+			t.Fatalf("accepted dataset with %d classes, %d features, %d rows", len(d.Classes), d.Dim(), d.Len())
+		}
+		for _, c := range d.ClassCounts() {
+			if c < 1 {
+				t.Fatalf("class without members: counts %v", d.ClassCounts())
+			}
+		}
+		if label != "" {
+			for _, name := range d.Features {
+				if name == strings.TrimSpace(label) {
+					t.Fatalf("label column %q among the features", label)
+				}
+			}
+		}
+		for i := 1; i < len(d.Rows); i++ {
+			if d.Rows[i] <= d.Rows[i-1] {
+				t.Fatalf("row ids not increasing: %v", d.Rows)
+			}
+		}
+	})
+}
+
+// FuzzParsePipeline feeds arbitrary pipeline strings to the parser and
+// fits what it accepts on a small matrix (with a zero row, a constant
+// column and extreme values). It must never panic; errors must wrap
+// ErrUnknownStep or ErrStepParam (parsing) or be returned (fitting); an
+// accepted pipeline's canonical name must parse to the same name, and its
+// output must have as many columns as FeatureNames says.
+func FuzzParsePipeline(f *testing.F) {
+	for _, s := range []string{"raw", "std", "minmax", "l2", "pad", "lift", "lift(0.5)", "norm", "std+l2", "minmax+lift(2)+pad",
+		" std + l2 ", "", "+", "std+", "lift(", "lift()", "lift(-1)", "lift(nan)", "lift(1e309)", "raw+std", "whiten", "lift(0x10)", "l2+l2+l2"} {
+		f.Add(s, 1.0, false)
+		f.Add(s, 1e300, true)
+	}
+	f.Fuzz(func(t *testing.T, s string, scale float64, zeroRow bool) {
+		defer watchdog("ParsePipeline")()
+		p, err := ParsePipeline(s)
+		if err != nil {
+			if !errors.Is(err, ErrUnknownStep) && !errors.Is(err, ErrStepParam) {
+				t.Fatalf("ParsePipeline(%q): %v wraps neither ErrUnknownStep nor ErrStepParam", s, err)
+			}
+			if !strings.HasPrefix(err.Error(), "datasets: ") {
+				t.Fatalf("message %q lacks the package prefix", err)
+			}
+			return
+		}
+		name := p.String()
+		// Every canonical name must parse back to itself (the fuzzer once
+		// found lift(1e+07), whose '+' split the step; the input stays in
+		// testdata/fuzz/FuzzParsePipeline).
+		q, err := ParsePipeline(name)
+		if err != nil || q.String() != name {
+			t.Fatalf("canonical name %q of %q does not parse back (%v)", name, s, err)
+		}
+		if math.IsNaN(scale) || math.IsInf(scale, 0) {
+			scale = 1
+		}
+		X := mat.NewDense(4, 3, []float64{
+			1, 2 * scale, 3,
+			-1, 0, 3,
+			0.5, -scale, 3,
+			2, 1e-300, 3,
+		})
+		if zeroRow {
+			X.SetRow(1, []float64{0, 0, 0})
+		}
+		Z, err := p.FitTransform(X, nil)
+		if err != nil {
+			return // a zero row under l2, a constant under std...: reported, not a crash
+		}
+		_, c := Z.Dims()
+		if got := len(p.FeatureNames([]string{"a", "b", "c"})); got != c {
+			t.Fatalf("pipeline %q: %d output columns, FeatureNames gives %d", name, c, got)
+		}
+		if _, err := p.Transform(X, nil); err != nil {
+			t.Fatalf("pipeline %q: Transform of the fitted data fails: %v", name, err)
+		}
+	})
+}
