@@ -43,7 +43,16 @@ func (e *InputError) Error() string {
 		fmt.Fprintf(&b, "key %s: ", e.Key)
 	}
 	b.WriteString(e.Err.Error())
-	return b.String()
+	return oneLine(b.String())
+}
+
+// oneLine escapes line breaks, which can reach a message by quoting the
+// user's input, so that every input error stays on one line.
+func oneLine(s string) string {
+	if !strings.ContainsAny(s, "\r\n") {
+		return s
+	}
+	return strings.NewReplacer("\r\n", `\n`, "\n", `\n`, "\r", `\r`).Replace(s)
 }
 
 func (e *InputError) Unwrap() []error { return []error{ErrInput, e.Err} }

@@ -16,6 +16,13 @@ import (
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	go func() {
+		// After the first signal a run winds down (finishes the tasks in
+		// flight, keeps what is finished); restoring the default handling
+		// lets a second signal stop the process at once.
+		<-ctx.Done()
+		stop()
+	}()
 	err := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
 	stop()
 	if err != nil {
@@ -60,11 +67,13 @@ type command struct {
 
 func commands() []*command {
 	return []*command{
-		{name: "demo", args: "[-out DIR] [-workers N]", short: "run the built-in demo experiment on embedded data", run: runDemo},
-		{name: "run", args: "SPEC.toml [-out DIR] [-workers N]", short: "run an experiment spec", run: runSpec},
+		{name: "demo", args: "[-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet]", short: "run the built-in demo experiment on embedded data", run: runDemo},
+		{name: "run", args: "SPEC.toml [-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet]", short: "run an experiment spec (an interrupted run continues where it stopped)", run: runSpec},
 		{name: "list", args: "", short: "list embedded datasets, pipeline steps and models", run: runList},
 		{name: "rank", args: "SCORES.csv [-alpha A] [-json] [-plot FILE]", short: "rank models across datasets from a dataset,model,score CSV (Friedman, Iman-Davenport, Nemenyi CD)", run: runRank},
 		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-json]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},
+		{name: "merge", args: "[-out DIR] PARTIAL_DIR...", short: "merge the partial run directories of all shards of a run (fringe run -shard i/n) into one run directory", run: runMerge},
+		{name: "slurm", args: "SPEC.toml -shards N [-out DIR] [-fringe PATH] [-cpus C] [-mem M] [-time T] [-partition P] [-account A] [-script FILE]", short: "write a Slurm job: an array with one shard per array task and a merge job that waits for it", run: runSlurm},
 		{name: "circuit", args: "[-dataset NAME] [-pipeline P] [-train N] [-row R] [-qasm]", short: "show the compiled circuit's resources, or its OpenQASM 3 text, for one test instance", run: runCircuit},
 		{name: "assess", args: "[-datasets a,b] [-pipelines p,q] [-subsets 8,16,32] [-out DIR] [SPEC.toml]", short: "report which datasets and pipelines suit the classifier: qubits, gates, noise budget, shots, norm loss, kernel alignment, accuracy against the baselines", run: runAssess},
 	}

@@ -7,14 +7,11 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"path/filepath"
 	"runtime"
 	"strings"
-	"time"
 
 	"fringe/bench"
 	"fringe/datasets"
-	"fringe/results"
 )
 
 // newFlags makes a verb's flag set; -h prints the verb's usage to stdout.
@@ -63,13 +60,17 @@ type runFlags struct {
 	out     string
 	workers int
 	quiet   bool
+	shard   string
+	fresh   bool
 }
 
 func addRunFlags(fs *flag.FlagSet) *runFlags {
 	rf := &runFlags{}
-	fs.StringVar(&rf.out, "out", "", "output run directory (default fringe-out/<spec name>)")
+	fs.StringVar(&rf.out, "out", "", "output run directory (default fringe-out/<spec name>; with -shard, fringe-out/<spec name>.shards/shard-I-of-N)")
 	fs.IntVar(&rf.workers, "workers", runtime.NumCPU(), "concurrent tasks")
-	fs.BoolVar(&rf.quiet, "quiet", false, "print nothing but errors")
+	fs.BoolVar(&rf.quiet, "quiet", false, "print nothing but errors and warnings (no progress, no summary)")
+	fs.StringVar(&rf.shard, "shard", "", "run only shard `i/n`, the i-th of n deterministic slices of the tasks, and write a partial run directory for 'fringe merge'")
+	fs.BoolVar(&rf.fresh, "fresh", false, "discard the unfinished run kept in the partial run directory instead of resuming it")
 	return rf
 }
 
@@ -115,41 +116,6 @@ func helpOK(err error) error {
 		return nil
 	}
 	return err
-}
-
-// execute plans, runs and writes a spec.
-func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []string, stdout, stderr io.Writer) error {
-	if rf.workers < 1 {
-		return usagef("-workers must be at least 1, got %d", rf.workers)
-	}
-	out := rf.out
-	if out == "" {
-		out = filepath.Join("fringe-out", spec.Name)
-	}
-	start := time.Now()
-	plan, err := bench.NewPlan(spec)
-	if err != nil {
-		return err
-	}
-	res, err := bench.Execute(ctx, plan, bench.Options{Workers: rf.workers})
-	if err != nil {
-		if ctx.Err() != nil {
-			return fmt.Errorf("interrupted; nothing was written (run the same command again to start over)")
-		}
-		return err
-	}
-	end := time.Now()
-	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: start, End: end}
-	if err := plan.Write(out, res, info, nil); err != nil {
-		return err
-	}
-	if !rf.quiet {
-		if err := results.WriteSummaryText(stdout, plan.Summarise(res)); err != nil {
-			return err
-		}
-		fmt.Fprintf(stdout, "\n%d tasks in %.1f s with %d workers; run directory: %s\n", len(plan.Tasks), end.Sub(start).Seconds(), rf.workers, out)
-	}
-	return nil
 }
 
 func runList(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {

@@ -1,0 +1,284 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"time"
+
+	"golang.org/x/term"
+
+	"fringe/bench"
+	"fringe/results"
+)
+
+// saveEvery is how long a finished task waits at most before it is
+// persisted (bench.DefaultSaveEvery; tests shorten it).
+var saveEvery = bench.DefaultSaveEvery
+
+// execute plans, runs and writes a spec, keeping finished tasks in a
+// partial run directory as they complete: OUT.partial for a whole run
+// (removed once OUT is written), OUT itself for a shard (-shard i/n), which
+// `fringe merge` joins with the other shards. Started again with the same
+// command, a run that was stopped continues from its partial directory.
+func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []string, stdout, stderr io.Writer) error {
+	if rf.workers < 1 {
+		return usagef("-workers must be at least 1, got %d", rf.workers)
+	}
+	var shard bench.Shard
+	sharded := rf.shard != ""
+	if sharded {
+		var err error
+		if shard, err = bench.ParseShard(rf.shard); err != nil {
+			return err
+		}
+	}
+	out := rf.out
+	if out == "" {
+		out = filepath.Join("fringe-out", spec.Name)
+		if sharded {
+			out = filepath.Join("fringe-out", spec.Name+".shards", fmt.Sprintf("shard-%d-of-%d", shard.I, shard.N))
+		}
+	}
+	partialDir := out + ".partial"
+	if sharded {
+		partialDir = out
+	}
+	start := time.Now()
+	plan, err := bench.NewPlan(spec)
+	if err != nil {
+		return err
+	}
+	pr, err := bench.OpenPartial(partialDir, plan, shard, bench.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
+	if err != nil {
+		return err
+	}
+	defer pr.Close()
+	for _, w := range pr.Warnings() {
+		fmt.Fprintln(stderr, "fringe: warning:", w)
+	}
+	note := func(format string, args ...any) {
+		if !rf.quiet {
+			fmt.Fprintf(stderr, "fringe: "+format+"\n", args...)
+		}
+	}
+	todo := pr.Missing()
+	switch {
+	case pr.Loaded() > 0 && len(todo) == 0:
+		note("%s: all %d tasks were finished before; nothing to run", partialDir, pr.Total())
+	case pr.Loaded() > 0:
+		note("resuming from %s: %d of %d tasks were finished before; running the other %d", partialDir, pr.Loaded(), pr.Total(), len(todo))
+	}
+	if len(todo) > 0 {
+		opt := bench.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery}
+		var prog *bench.Progress
+		if !rf.quiet {
+			prog = bench.NewProgress(stderr, isTerminal(stderr), pr.Loaded(), pr.Total())
+			opt.Progress = prog.Update
+		}
+		stopWatch := watchInterrupt(ctx, stderr, prog, rf.quiet)
+		_, err := bench.Execute(ctx, plan, opt)
+		stopWatch()
+		if prog != nil {
+			if err == nil {
+				prog.Finish()
+			} else {
+				prog.Clear()
+			}
+		}
+		if err != nil {
+			switch {
+			case ctx.Err() != nil:
+				if !pr.Exists() {
+					return fmt.Errorf("interrupted before any task finished; nothing was kept")
+				}
+				return fmt.Errorf("interrupted: %d of %d tasks are finished and kept in %s; run the same command again to resume", pr.Finished(), pr.Total(), partialDir)
+			case errors.Is(err, bench.ErrInput):
+				// The run cannot complete with this input: its partial
+				// directory would only be refused or mixed up later.
+				if rerr := pr.Remove(); rerr != nil {
+					fmt.Fprintln(stderr, "fringe: warning:", rerr)
+				}
+				return err
+			case pr.Exists():
+				return fmt.Errorf("%w (the %d finished tasks are kept in %s; run the same command again to resume)", err, pr.Finished(), partialDir)
+			}
+			return err
+		}
+	}
+	res, err := pr.Results()
+	if err != nil {
+		return err
+	}
+	end := time.Now()
+	if sharded {
+		if !rf.quiet {
+			fmt.Fprintf(stdout, "shard %s: %d of the run's %d tasks finished in %.1f s; partial run directory: %s\n", shard, len(res), len(plan.Tasks), end.Sub(start).Seconds(), out)
+			fmt.Fprintf(stdout, "join the shards with: fringe merge -out DIR SHARD_DIR...\n")
+		}
+		return nil
+	}
+	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end}
+	if err := plan.Write(out, res, info, nil); err != nil {
+		return err
+	}
+	if err := pr.Remove(); err != nil {
+		fmt.Fprintln(stderr, "fringe: warning: remove the partial run directory:", err)
+	}
+	if !rf.quiet {
+		if err := results.WriteSummaryText(stdout, plan.Summarise(res)); err != nil {
+			return err
+		}
+		resumed := ""
+		if pr.Loaded() > 0 {
+			resumed = fmt.Sprintf(" (%d finished before, %d now)", pr.Loaded(), len(plan.Tasks)-pr.Loaded())
+		}
+		fmt.Fprintf(stdout, "\n%d tasks%s in %.1f s with %d workers; run directory: %s\n", len(plan.Tasks), resumed, end.Sub(start).Seconds(), rf.workers, out)
+	}
+	return nil
+}
+
+// watchInterrupt tells the user, when ctx is cancelled (Ctrl-C, SIGTERM),
+// what happens next. The returned function stops watching.
+func watchInterrupt(ctx context.Context, stderr io.Writer, prog *bench.Progress, quiet bool) func() {
+	stop := make(chan struct{})
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		select {
+		case <-ctx.Done():
+			if quiet {
+				return
+			}
+			if prog != nil {
+				prog.Clear()
+			}
+			fmt.Fprintln(stderr, "fringe: stopping: finishing the tasks in flight and keeping every finished task (interrupt again to stop at once; finished tasks are kept either way)")
+		case <-stop:
+		}
+	}()
+	return func() {
+		close(stop)
+		<-done
+	}
+}
+
+// isTerminal reports whether w is a terminal (for the progress bar).
+func isTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	return ok && term.IsTerminal(int(f.Fd()))
+}
+
+// runMerge is `fringe merge -out DIR PARTIAL_DIR...`.
+func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags(c, stdout)
+	out := fs.String("out", "", "directory of the merged run (default fringe-out/<spec name>)")
+	quiet := fs.Bool("quiet", false, "print nothing but errors")
+	pos, err := parse(fs, args, stderr)
+	if err != nil {
+		return helpOK(err)
+	}
+	if len(pos) == 0 {
+		return usagef("merge takes the partial run directories of every shard (see 'fringe merge -h')")
+	}
+	start := time.Now()
+	m, err := bench.Merge(pos)
+	if err != nil {
+		return err
+	}
+	dir := *out
+	if dir == "" {
+		dir = filepath.Join("fringe-out", m.Plan.Spec.Name)
+	}
+	for _, p := range pos {
+		if sameDir(p, dir) {
+			return usagef("-out %s is one of the partial run directories being merged; choose another", dir)
+		}
+	}
+	info := bench.RunInfo{Command: append([]string{"fringe", "merge"}, args...), Workers: m.Workers, Start: m.Start, End: time.Now()}
+	if info.Start.IsZero() {
+		info.Start = start
+	}
+	if err := m.Plan.Write(dir, m.Results, info, nil); err != nil {
+		return err
+	}
+	if !*quiet {
+		if err := results.WriteSummaryText(stdout, m.Plan.Summarise(m.Results)); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "\nmerged %d shards (%d tasks) in %.1f s; run directory: %s\n", m.Shards, len(m.Results), time.Since(start).Seconds(), dir)
+	}
+	return nil
+}
+
+// sameDir reports whether two paths name the same place.
+func sameDir(a, b string) bool {
+	aa, err1 := filepath.Abs(a)
+	bb, err2 := filepath.Abs(b)
+	if err1 == nil && err2 == nil && aa == bb {
+		return true
+	}
+	sa, err1 := os.Stat(a)
+	sb, err2 := os.Stat(b)
+	return err1 == nil && err2 == nil && os.SameFile(sa, sb)
+}
+
+// runSlurm is `fringe slurm SPEC -shards N`: it writes the cluster job.
+func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags(c, stdout)
+	o := bench.SlurmOptions{}
+	fs.IntVar(&o.Shards, "shards", 0, "number of shards = array tasks (required; at most the plan's units of work)")
+	out := fs.String("out", "", "directory of the merged run (default fringe-out/<spec name>); shards go to DIR.shards/")
+	fs.StringVar(&o.Fringe, "fringe", "fringe", "the fringe binary on the cluster's nodes: a path, or a name looked up on PATH")
+	fs.IntVar(&o.CPUs, "cpus", 4, "CPUs per array task (--cpus-per-task; also fringe's -workers)")
+	fs.StringVar(&o.Mem, "mem", "4G", "memory per array task (--mem)")
+	fs.StringVar(&o.Time, "time", "04:00:00", "time limit per array task and for the merge job (--time)")
+	fs.StringVar(&o.Partition, "partition", "", "partition (--partition; default: the cluster's default)")
+	fs.StringVar(&o.Account, "account", "", "account to charge (--account)")
+	script := fs.String("script", "", "write the script to this file (default: standard output)")
+	pos, err := parse(fs, args, stderr)
+	if err != nil {
+		return helpOK(err)
+	}
+	if len(pos) != 1 {
+		return usagef("slurm takes exactly one spec file (see 'fringe slurm -h')")
+	}
+	if o.Shards == 0 {
+		return usagef("slurm needs -shards N (see 'fringe slurm -h')")
+	}
+	spec, err := bench.LoadSpec(pos[0])
+	if err != nil {
+		return err
+	}
+	plan, err := bench.NewPlan(spec)
+	if err != nil {
+		return err
+	}
+	if o.Shards >= 1 && o.Shards <= bench.MaxShards {
+		if _, err := plan.ShardTasks(bench.Shard{I: 1, N: o.Shards}); err != nil {
+			return err
+		}
+	}
+	o.Spec, o.JobName, o.Tasks = pos[0], "fringe-"+spec.Name, len(plan.Tasks)
+	o.Out = *out
+	if o.Out == "" {
+		o.Out = filepath.Join("fringe-out", spec.Name)
+	}
+	var b bytes.Buffer
+	if err := bench.WriteSlurmScript(&b, o); err != nil {
+		return err
+	}
+	if *script == "" {
+		_, err := stdout.Write(b.Bytes())
+		return err
+	}
+	if err := os.WriteFile(*script, b.Bytes(), 0o755); err != nil {
+		return fmt.Errorf("write %s: %w", *script, err)
+	}
+	fmt.Fprintf(stdout, "wrote %s (%d tasks in %d shards); submit it with: bash %s\n", *script, len(plan.Tasks), o.Shards, *script)
+	return nil
+}

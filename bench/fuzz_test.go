@@ -1,0 +1,213 @@
+package bench
+
+import (
+	"context"
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+)
+
+var fixedTime = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
+
+// hangLimit bounds the time one fuzz input may take. The fuzzing engine
+// does not notice a hang; a panic from the watchdog crashes the worker,
+// which makes the engine record the input as a failure.
+const hangLimit = 10 * time.Second
+
+// watchdog panics if the calling fuzz input runs longer than hangLimit;
+// the returned function stops it.
+func watchdog(what string) func() bool {
+	t := time.AfterFunc(hangLimit, func() { panic("fuzz: " + what + " took more than " + hangLimit.String() + " (a hang)") })
+	return t.Stop
+}
+
+func executeForFuzz(p *Plan) ([]TaskResult, error) {
+	return Execute(context.Background(), p, Options{Workers: 1})
+}
+
+// FuzzParseSpec feeds arbitrary text to the spec parser. It must never
+// panic or hang; every error must be an input error with a one-line
+// message; an accepted spec must name at least one dataset, pipeline and
+// model, with distinct model names. Accepted specs over embedded data and
+// a modest grid are also planned (NewPlan), which checks parameters
+// against the data, under the same rules.
+func FuzzParseSpec(f *testing.F) {
+	seeds, _ := filepath.Glob("../examples/*.toml")
+	bad, _ := filepath.Glob("cmd/fringe/testdata/bad/*.toml")
+	for _, path := range append(append(seeds, bad...), "demo.toml", "cmd/fringe/testdata/cluster/grid.toml") {
+		if b, err := os.ReadFile(path); err == nil {
+			f.Add(b)
+		}
+	}
+	f.Add([]byte(clusterSpec))
+	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"svm\"\ngamma = \"scale\"\n"))
+	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[cv]\nmethod = \"holdout\"\ntest_fraction = 0.5\n[[model]]\nkind = \"interference\"\nmode = \"noisy\"\nnoise = { readout = [0.1, 0.2] }\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		defer watchdog("ParseSpec/NewPlan")()
+		s, err := ParseSpec("fuzz.toml", data)
+		if err != nil {
+			checkInputError(t, err)
+			return
+		}
+		if s.Name == "" || len(s.Datasets) == 0 || len(s.Pipelines) == 0 || len(s.Models) == 0 {
+			t.Fatalf("accepted an incomplete spec: %+v", s)
+		}
+		seen := map[string]bool{}
+		for _, m := range s.Models {
+			if m.Name == "" || seen[m.Name] {
+				t.Fatalf("empty or repeated model name %q", m.Name)
+			}
+			seen[m.Name] = true
+		}
+		// Plan only small grids over embedded data: a spec may ask for
+		// any number of repeats, and files are not the fuzzer's to read.
+		if s.CV.Repeats > 2 || s.CV.Folds > 10 || len(s.Datasets) > 2 || len(s.Pipelines) > 3 {
+			return
+		}
+		for _, d := range s.Datasets {
+			if isPath(d.Name) {
+				return
+			}
+		}
+		if _, err := NewPlan(s); err != nil {
+			checkInputError(t, err)
+		}
+	})
+}
+
+func checkInputError(t *testing.T, err error) {
+	t.Helper()
+	if !errors.Is(err, ErrInput) {
+		t.Fatalf("error %v (%T) is not an input error", err, err)
+	}
+	if msg := err.Error(); strings.Contains(msg, "\n") || msg == "" {
+		t.Fatalf("message is empty or spans lines: %q", msg)
+	}
+}
+
+// FuzzModelParams feeds one [[model]] table with a fuzzed kind and one
+// fuzzed key of every TOML value type a spec can hold to the model
+// parameter parser. It must never panic; an accepted table must build a
+// model with a non-empty name.
+func FuzzModelParams(f *testing.F) {
+	for _, kind := range []string{"knn", "svm", "logreg", "centroid", "interference", "forest", ""} {
+		for _, key := range []string{"k", "metric", "weights", "kernel", "C", "gamma", "degree", "coef0", "tol", "max_iter",
+			"mode", "balance", "shots", "train_subset", "noise", "method", "trajectories", "name", "kind", "bogus"} {
+			f.Add(kind, key, int64(3), 0.5, "rbf", true, uint8(0))
+		}
+	}
+	f.Add("interference", "noise", int64(1), 0.01, "depolarizing", false, uint8(4))
+	f.Add("interference", "noise", int64(1), 0.01, "readout", false, uint8(5))
+	f.Add("svm", "gamma", int64(1), math.Inf(1), "scale", false, uint8(1))
+	f.Add("knn", "k", int64(-1<<40), math.NaN(), "", false, uint8(2))
+	f.Fuzz(func(t *testing.T, kind, key string, i int64, x float64, s string, b bool, which uint8) {
+		defer watchdog("parseModel")()
+		var v any
+		switch which % 8 {
+		case 0:
+			v = i
+		case 1:
+			v = x
+		case 2:
+			v = s
+		case 3:
+			v = b
+		case 4:
+			v = map[string]any{s: x}
+		case 5:
+			v = map[string]any{s: []any{x, float64(i)}}
+		case 6:
+			v = []any{x, i, s}
+		case 7:
+			v = map[string]any{s: map[string]any{"deep": i}}
+		}
+		table := map[string]any{"kind": kind, key: v}
+		if key == "kind" {
+			table = map[string]any{"kind": v}
+		}
+		ms, err := parseModel(table)
+		if err != nil {
+			if err.Error() == "" {
+				t.Fatal("empty error message")
+			}
+			return
+		}
+		if ms.Name == "" {
+			t.Fatalf("accepted %v with an empty name", table)
+		}
+		if m := ms.New(1); m == nil {
+			t.Fatalf("accepted %v but builds no model", table)
+		}
+	})
+}
+
+// FuzzTaskFile feeds arbitrary bytes to the task-file decoder of partial
+// run directories, checked against a fixed plan. It must never panic;
+// anything it accepts must be safe for the run writer, so the decoded
+// results are turned into records and summaries.
+func FuzzTaskFile(f *testing.F) {
+	p := clusterPlan(f, clusterSpec)
+	id := p.identity(Shard{}, len(p.Tasks), 1, fixedTime)
+	res, err := executeForFuzz(p)
+	if err != nil {
+		f.Fatal(err)
+	}
+	for _, batch := range [][]TaskResult{res[:1], res[1:3], res[3:6], res[40:50]} {
+		data, err := encodeTasks(p, id.digest(), batch)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(data)
+	}
+	f.Add([]byte(`{"run":"` + id.digest() + `","tasks":[]}`))
+	f.Add([]byte(`{"run":"` + id.digest() + `","tasks":[{"index":1,"key":"x","pred":[1e9]}]}`))
+	f.Add([]byte(`{"run":"` + id.digest() + `","tasks":[{"index":-1}]}`))
+	member := make([]bool, len(p.Tasks))
+	for i := range member {
+		member[i] = i%2 == 0
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		defer watchdog("decodeTasks")()
+		for _, m := range [][]bool{nil, member} {
+			rs, err := decodeTasks(p, id.digest(), m, data)
+			if err != nil {
+				continue
+			}
+			// What the run writer would see: the whole run with the
+			// decoded tasks in their places.
+			out := append([]TaskResult(nil), res...)
+			for _, r := range rs {
+				out[r.Task.Index] = *r
+			}
+			p.Records(out)
+			p.Summarise(out)
+		}
+	})
+}
+
+// FuzzParseShard feeds arbitrary text to the -shard parser.
+func FuzzParseShard(f *testing.F) {
+	for _, s := range []string{"1/1", "3/7", "0/1", "2/1", "1/0", "a/b", "1/2/3", "-1/-1", " 2/3", "99999999999999999999/1"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		defer watchdog("ParseShard")()
+		sh, err := ParseShard(s)
+		if err != nil {
+			if !errors.Is(err, ErrInput) || !errors.Is(err, ErrShard) {
+				t.Fatalf("%q: %v is not an input and shard error", s, err)
+			}
+			return
+		}
+		if sh.I < 1 || sh.I > sh.N || sh.N > MaxShards {
+			t.Fatalf("%q accepted as %d/%d", s, sh.I, sh.N)
+		}
+		if back, err := ParseShard(sh.String()); err != nil || back != sh {
+			t.Fatalf("%q: %v does not round-trip (%v)", s, sh, err)
+		}
+	})
+}
