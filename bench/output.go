@@ -7,10 +7,14 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"path"
 	"path/filepath"
 	"runtime"
 	"runtime/debug"
+	"strings"
 	"time"
+
+	"golang.org/x/sync/errgroup"
 
 	"fringe/bench/stats"
 	"fringe/results"
@@ -314,11 +318,42 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 	if err := os.Chmod(tmp, 0o755); err != nil {
 		return err
 	}
-	for _, f := range files {
-		var b bytes.Buffer
-		if err := f.write(&b); err != nil {
-			return fmt.Errorf("write %s: %w", f.name, err)
+	// Render the files concurrently (figures dominate the cost), each into
+	// its own buffer, and write them in order afterwards. The formats of one
+	// figure are drawn one after another in one goroutine: drawing a plot is
+	// not safe for concurrent use (drawing the same plot in two formats at
+	// once gave different bytes).
+	bufs := make([]bytes.Buffer, len(files))
+	var g errgroup.Group
+	g.SetLimit(runtime.NumCPU())
+	groups := map[string][]int{}
+	var order []string
+	for i, f := range files {
+		key := f.name
+		if strings.HasPrefix(f.name, "figures/") {
+			key = strings.TrimSuffix(f.name, path.Ext(f.name))
 		}
+		if _, ok := groups[key]; !ok {
+			order = append(order, key)
+		}
+		groups[key] = append(groups[key], i)
+	}
+	for _, key := range order {
+		idx := groups[key]
+		g.Go(func() error {
+			for _, i := range idx {
+				if err := files[i].write(&bufs[i]); err != nil {
+					return fmt.Errorf("write %s: %w", files[i].name, err)
+				}
+			}
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return err
+	}
+	for i, f := range files {
+		b := &bufs[i]
 		path := filepath.Join(tmp, filepath.FromSlash(f.name))
 		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 			return fmt.Errorf("write %s: %w", f.name, err)
