@@ -270,6 +270,9 @@ func (p *Plan) runModel(ctx context.Context, t Task, where string, Ztr *mat.Dens
 	sp := d.Splits[t.Split]
 	ms := p.Spec.Models[t.Model]
 	m := ms.New(p.modelSeed(t))
+	if ta, ok := m.(taskAware); ok {
+		ta.SetTask(p.taskContext(ctx, t, rowsTr, rowsTe))
+	}
 	if err := m.Fit(Ztr, ytr, len(d.Data.Classes)); err != nil {
 		return TaskResult{}, p.classifyModel(err, where, ms.Name, rowsTr)
 	}

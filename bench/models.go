@@ -30,6 +30,8 @@ func ModelInfos() []ModelInfo {
 		{"svm", "kernel, C, gamma, degree, coef0, tol", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; one-vs-one"},
 		{"logreg", "C, max_iter", "multinomial logistic regression, L2 penalty 1/C (intercept unpenalised), fitted by L-BFGS"},
 		{"centroid", "", "nearest centroid (Euclidean), a sanity baseline"},
+		{"command", "run, timeout", "your own classifier as a program, run once per task: run = [\"python3\", \"mine.py\"] gets the paths of TRAIN (row,label,<features>), TEST (row,<features>) and OUT, and writes OUT as row,predicted[,prob_<class>...]; FRINGE_SEED holds the task's seed; timeout in seconds"},
+		{"counts", "file, balance, train_subset", "outcomes measured on a device for the circuits of `fringe circuit -export` (file = CSV with dataset,repeat,fold,row,ancilla,class,count[,pipeline]), decided by post-selection as shot mode does; balance and train_subset as the exported circuits"},
 	}
 }
 
@@ -153,6 +155,10 @@ func parseModel(m map[string]any) (ModelSpec, error) {
 		ms.build = func(uint64) baselines.Model {
 			return &baselines.LogReg{C: c, MaxIter: maxIter}
 		}
+	case "command":
+		label = parseCommand(p, &ms)
+	case "counts":
+		label = parseCounts(p, &ms)
 	case "centroid":
 		label = "centroid"
 		ms.build = func(uint64) baselines.Model { return &baselines.Centroid{} }

@@ -2,8 +2,10 @@ package main
 
 import (
 	"context"
+	"flag"
 	"fmt"
 	"io"
+	"runtime"
 	"strings"
 	"text/tabwriter"
 
@@ -22,9 +24,18 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 	row := fs.Int("row", 0, "dataset row (0-based) of the test instance")
 	qasm := fs.Bool("qasm", false, "print the OpenQASM 3 program of the circuit instead of its resources")
 	seed := fs.Uint64("seed", 1, "seed for drawing the training subset")
+	export := fs.String("export", "", "write the OpenQASM 3 program of every test instance of a spec's splits into folder `DIR`, with index.csv mapping files to (dataset, pipeline, repeat, fold, row): fringe circuit -export DIR SPEC.toml")
+	model := fs.String("model", "", "with -export: the spec's interference or counts model whose balance and train_subset the circuits use (default: the first counts model, else the first interference model)")
+	workers := fs.Int("workers", runtime.NumCPU(), "with -export: splits compiled at once")
 	pos, err := parse(fs, args, stderr)
 	if err != nil {
 		return helpOK(err)
+	}
+	if *export != "" {
+		return runExport(ctx, fs, pos, *export, *model, *workers, stdout)
+	}
+	if *model != "" {
+		return usagef("-model applies with -export only")
 	}
 	if len(pos) > 0 {
 		return usagef("circuit takes no arguments, got %q (see 'fringe circuit -h')", pos[0])
@@ -60,6 +71,57 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 	fmt.Fprintf(tw, "measurements\t%d\n", r.Measurements)
 	fmt.Fprintf(tw, "depth\t%d (gates in the longest path, measurements excluded)\n", r.Depth)
 	return tw.Flush()
+}
+
+// runExport is `fringe circuit -export DIR SPEC.toml`: the circuits of
+// every test instance of the spec, for a device or simulator of the
+// user's choice, whose counts a model of kind counts reads back.
+func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model string, workers int, stdout io.Writer) error {
+	var clash []string
+	fs.Visit(func(f *flag.Flag) {
+		switch f.Name {
+		case "export", "model", "workers":
+		default:
+			clash = append(clash, "-"+f.Name)
+		}
+	})
+	if len(clash) > 0 {
+		return usagef("-export takes datasets, pipelines and settings from the spec; %s do(es) not apply", strings.Join(clash, ", "))
+	}
+	if len(pos) != 1 {
+		return usagef("-export needs exactly one spec file: fringe circuit -export DIR SPEC.toml")
+	}
+	if workers < 1 {
+		return usagef("-workers must be at least 1, got %d", workers)
+	}
+	spec, err := bench.LoadSpec(pos[0])
+	if err != nil {
+		return err
+	}
+	plan, err := bench.NewPlan(spec)
+	if err != nil {
+		return err
+	}
+	sum, err := bench.ExportCircuits(ctx, plan, dir, bench.ExportOptions{Model: model, Workers: workers})
+	if err != nil {
+		return err
+	}
+	settings := "uniform weights on the whole training part (the spec has no interference or counts model)"
+	if sum.Model != "" {
+		w := "uniform weights"
+		if sum.Balance {
+			w = "class-balancing weights"
+		}
+		sub := "the whole training part"
+		if sum.TrainSubset > 0 {
+			sub = fmt.Sprintf("class-balanced subsets of %d training vectors", sum.TrainSubset)
+		}
+		settings = fmt.Sprintf("settings of model %s: %s, %s", sum.Model, w, sub)
+	}
+	fmt.Fprintf(stdout, "wrote %d OpenQASM 3 programs (%.1f MB, at most %d qubits) and index.csv to %s\n", sum.Circuits, float64(sum.Bytes)/1e6, sum.MaxQubits, sum.Dir)
+	fmt.Fprintf(stdout, "circuits: %s\n", settings)
+	fmt.Fprintf(stdout, "report outcomes as CSV with columns %s (and pipeline when the spec has several); class is the bit string class_out[q-1]...class_out[0]\n", strings.Join(bench.CountsColumns, ","))
+	return nil
 }
 
 func splitList(s string) []string {
