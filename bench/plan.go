@@ -218,8 +218,8 @@ func (p *Plan) checkModels() error {
 		switch m.Kind {
 		case "knn":
 			key, k = "k", m.Params["k"].(int)
-		case "interference":
-			key, k = "train_subset", m.Params["train_subset"].(int)
+		case "interference", "counts":
+			key, k = "train_subset", paramInt(m.Params["train_subset"])
 		default:
 			continue
 		}
@@ -236,7 +236,7 @@ func (p *Plan) checkModels() error {
 					return bad(fmt.Errorf("%s = %d exceeds the %d training instances of dataset %s (repeat %d fold %d): %w",
 						key, k, len(sp.Train), d.Name, sp.Repeat, sp.Fold, baselines.ErrParam))
 				}
-				if m.Kind != "interference" {
+				if m.Kind == "knn" {
 					continue
 				}
 				seen := map[int]bool{}

@@ -155,7 +155,7 @@ func protocol(name string, seed uint64, cv CVSpec) results.Protocol {
 // numeric "strength" is read too.
 func (m ModelSpec) Variant() results.Variant {
 	v := results.Variant{Model: m.Name, Kind: m.Kind, Strength: math.NaN()}
-	if m.Kind != "interference" {
+	if m.Kind != "interference" && m.Kind != "counts" {
 		v.Family = m.Name
 		return v
 	}

@@ -284,7 +284,47 @@ func (p *Plan) Fingerprint() string {
 	for _, t := range p.Tasks {
 		str(p.Key(t))
 	}
+	// Files a model reads while it runs: a counts file, and the files an
+	// external program's command line names (its script, say). A change to
+	// one of them between sessions must not mix old and new results.
+	for _, f := range p.modelInputFiles() {
+		str(f)
+		if data, err := os.ReadFile(f); err == nil {
+			sum := sha256.Sum256(data)
+			h.Write(sum[:])
+		} else {
+			str("unreadable")
+		}
+	}
 	return hex.EncodeToString(h.Sum(nil))
+}
+
+// modelInputFiles lists, in model order, the files the run's models read
+// while they run: the counts file of a counts model and every argument of a
+// command model that names an existing regular file (relative to the spec's
+// folder, where the program runs).
+func (p *Plan) modelInputFiles() []string {
+	var out []string
+	for _, m := range p.Spec.Models {
+		switch m.Kind {
+		case "counts":
+			if f, ok := m.Params["file"].(string); ok {
+				out = append(out, countsPath(p, f))
+			}
+		case "command":
+			run, _ := m.Params["run"].([]string)
+			for _, arg := range run {
+				path := arg
+				if !filepath.IsAbs(path) && p.Spec.Dir != "" {
+					path = filepath.Join(p.Spec.Dir, path)
+				}
+				if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
+					out = append(out, path)
+				}
+			}
+		}
+	}
+	return out
 }
 
 // PartialOptions configure OpenPartial.

@@ -74,7 +74,7 @@ func commands() []*command {
 		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-json]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},
 		{name: "merge", args: "[-out DIR] PARTIAL_DIR...", short: "merge the partial run directories of all shards of a run (fringe run -shard i/n) into one run directory", run: runMerge},
 		{name: "slurm", args: "SPEC.toml -shards N [-out DIR] [-fringe PATH] [-cpus C] [-mem M] [-time T] [-partition P] [-account A] [-script FILE]", short: "write a Slurm job: an array with one shard per array task and a merge job that waits for it", run: runSlurm},
-		{name: "circuit", args: "[-dataset NAME] [-pipeline P] [-train N] [-row R] [-qasm]", short: "show the compiled circuit's resources, or its OpenQASM 3 text, for one test instance", run: runCircuit},
+		{name: "circuit", args: "[-dataset NAME] [-pipeline P] [-train N] [-row R] [-qasm] | -export DIR [-model NAME] SPEC.toml", short: "show the compiled circuit's resources or OpenQASM 3 text for one test instance, or export every test instance's circuit of a spec", run: runCircuit},
 		{name: "assess", args: "[-datasets a,b] [-pipelines p,q] [-subsets 8,16,32] [-out DIR] [SPEC.toml]", short: "report which datasets and pipelines suit the classifier: qubits, gates, noise budget, shots, norm loss, kernel alignment, accuracy against the baselines", run: runAssess},
 	}
 }
