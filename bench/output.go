@@ -210,6 +210,9 @@ type RunInfo struct {
 	Workers int
 	Start   time.Time
 	End     time.Time
+	// NoFigures leaves the figures out of the run directory (the tables
+	// and CSV files are unchanged).
+	NoFigures bool
 }
 
 // Manifest builds the run's manifest.
@@ -263,15 +266,18 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 	if err != nil {
 		return err
 	}
-	figs, err := ReportFigures(rep, preds)
-	if err != nil {
-		return err
+	var figs []results.Figure
+	if !info.NoFigures {
+		figs, err = ReportFigures(rep, preds)
+		if err != nil {
+			return err
+		}
+		kf, err := p.KernelFigure()
+		if err != nil {
+			return err
+		}
+		figs = append(figs, kf)
 	}
-	kf, err := p.KernelFigure()
-	if err != nil {
-		return err
-	}
-	figs = append(figs, kf)
 	for _, f := range figs {
 		rep.Figures = append(rep.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
 	}

@@ -228,3 +228,27 @@ func TestExamples(t *testing.T) {
 		})
 	}
 }
+
+// TestNoFigures checks that -figures=false leaves out the figures and
+// nothing else.
+func TestNoFigures(t *testing.T) {
+	dir := t.TempDir()
+	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
+	spec := "../../../examples/own-csv.toml"
+	if code, _, stderr := runCmd(t, "", "run", spec, "-out", a, "-quiet"); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if code, _, stderr := runCmd(t, "", "run", spec, "-out", b, "-quiet", "-figures=false"); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(b, "figures")); !os.IsNotExist(err) {
+		t.Errorf("-figures=false left a figures directory (%v)", err)
+	}
+	for _, f := range []string{"predictions.csv", "folds.csv", "summary.csv", "summary.tex", "comparisons.csv"} {
+		x, _ := os.ReadFile(filepath.Join(a, f))
+		y, err := os.ReadFile(filepath.Join(b, f))
+		if err != nil || !bytes.Equal(x, y) {
+			t.Errorf("%s differs with -figures=false (%v)", f, err)
+		}
+	}
+}

@@ -62,6 +62,7 @@ type runFlags struct {
 	quiet   bool
 	shard   string
 	fresh   bool
+	figures bool
 }
 
 func addRunFlags(fs *flag.FlagSet) *runFlags {
@@ -71,6 +72,7 @@ func addRunFlags(fs *flag.FlagSet) *runFlags {
 	fs.BoolVar(&rf.quiet, "quiet", false, "print nothing but errors and warnings (no progress, no summary)")
 	fs.StringVar(&rf.shard, "shard", "", "run only shard `i/n`, the i-th of n deterministic slices of the tasks, and write a partial run directory for 'fringe merge'")
 	fs.BoolVar(&rf.fresh, "fresh", false, "discard the unfinished run kept in the partial run directory instead of resuming it")
+	fs.BoolVar(&rf.figures, "figures", true, "write the figures (SVG, PDF, PNG); -figures=false keeps only tables and CSV files")
 	return rf
 }
 

@@ -122,7 +122,7 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 		}
 		return nil
 	}
-	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end}
+	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
 	if err := plan.Write(out, res, info, nil); err != nil {
 		return err
 	}
