@@ -277,7 +277,9 @@ func TestAssessBadInput(t *testing.T) {
 	if err := os.WriteFile(path, []byte(csvText), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	a, err := Assess(context.Background(), AssessOptions{Datasets: []DatasetSpec{{Name: path}}, Pipelines: []string{"std+l2"}, Repeats: 1, Subsets: []int{}})
+	// The display name is fixed (As): splits are seeded by the dataset's
+	// name, and the temporary path changes from run to run.
+	a, err := Assess(context.Background(), AssessOptions{Datasets: []DatasetSpec{{Name: path, As: "small"}}, Pipelines: []string{"std+l2"}, Repeats: 1, Subsets: []int{}})
 	if err != nil {
 		t.Fatal(err)
 	}
