@@ -4,8 +4,6 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
-	"os"
-	"path/filepath"
 
 	"fringe/results"
 )
@@ -48,11 +46,7 @@ func WriteAssessment(dir string, a *results.Assessment) error {
 		Ratio: a.Ratio, Confidence: a.Confidence, Subsets: a.Subsets, Classical: a.ClassicalPipeline,
 		Datasets: a.Datasets, Warnings: append([]string{}, a.Warnings...),
 	}
-	type file struct {
-		name  string
-		write func(*bytes.Buffer) error
-	}
-	files := []file{
+	files := []outFile{
 		{"assess.csv", func(b *bytes.Buffer) error { return results.WriteAssessCSV(b, a) }},
 		{"assess-resources.csv", func(b *bytes.Buffer) error { return results.WriteAssessResourcesCSV(b, a) }},
 		{"assess.md", func(b *bytes.Buffer) error { return results.WriteAssessMarkdown(b, a) }},
@@ -63,58 +57,6 @@ func WriteAssessment(dir string, a *results.Assessment) error {
 			return enc.Encode(man)
 		}},
 	}
-	for _, f := range figs {
-		for _, format := range results.FigureFormats {
-			files = append(files, file{f.Name + "." + format, func(b *bytes.Buffer) error {
-				data, err := f.Render(format)
-				b.Write(data)
-				return err
-			}})
-		}
-	}
-	parent := filepath.Dir(filepath.Clean(dir))
-	if err := os.MkdirAll(parent, 0o755); err != nil {
-		return fmt.Errorf("create output parent: %w", err)
-	}
-	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".partial-")
-	if err != nil {
-		return fmt.Errorf("create temporary output directory: %w", err)
-	}
-	ok := false
-	defer func() {
-		if !ok {
-			os.RemoveAll(tmp)
-		}
-	}()
-	if err := os.Chmod(tmp, 0o755); err != nil {
-		return err
-	}
-	for _, f := range files {
-		var b bytes.Buffer
-		if err := f.write(&b); err != nil {
-			return fmt.Errorf("write %s: %w", f.name, err)
-		}
-		path := filepath.Join(tmp, filepath.FromSlash(f.name))
-		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-			return fmt.Errorf("write %s: %w", f.name, err)
-		}
-		if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
-			return fmt.Errorf("write %s: %w", f.name, err)
-		}
-	}
-	if _, err := os.Stat(dir); err == nil {
-		old := tmp + ".old"
-		if err := os.Rename(dir, old); err != nil {
-			return fmt.Errorf("replace %s: %w", dir, err)
-		}
-		if err := os.Rename(tmp, dir); err != nil {
-			os.Rename(old, dir)
-			return fmt.Errorf("replace %s: %w", dir, err)
-		}
-		os.RemoveAll(old)
-	} else if err := os.Rename(tmp, dir); err != nil {
-		return fmt.Errorf("move output into %s: %w", dir, err)
-	}
-	ok = true
-	return nil
+	files = append(files, figureFiles(figs)...)
+	return writeDir(dir, files)
 }

@@ -7,14 +7,9 @@ import (
 	"fmt"
 	"math"
 	"os"
-	"path"
-	"path/filepath"
 	"runtime"
 	"runtime/debug"
-	"strings"
 	"time"
-
-	"golang.org/x/sync/errgroup"
 
 	"fringe/bench/stats"
 	"fringe/results"
@@ -282,10 +277,7 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 		rep.Figures = append(rep.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
 	}
 	allWarnings := append(append([]string(nil), warnings...), rep.Warnings...)
-	files := []struct {
-		name  string
-		write func(*bytes.Buffer) error
-	}{
+	files := []outFile{
 		{"predictions.csv", func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
 		{"folds.csv", func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
 		{"summary.csv", func(b *bytes.Buffer) error { return results.WriteSummary(b, summary) }},
@@ -295,92 +287,6 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 		{"timings.csv", func(b *bytes.Buffer) error { return results.WriteTimings(b, times) }},
 		{"manifest.json", func(b *bytes.Buffer) error { return results.WriteManifest(b, p.Manifest(info, allWarnings)) }},
 	}
-	for _, f := range figs {
-		for _, format := range results.FigureFormats {
-			files = append(files, struct {
-				name  string
-				write func(*bytes.Buffer) error
-			}{f.Name + "." + format, func(b *bytes.Buffer) error {
-				data, err := f.Render(format)
-				b.Write(data)
-				return err
-			}})
-		}
-	}
-	parent := filepath.Dir(filepath.Clean(dir))
-	if err := os.MkdirAll(parent, 0o755); err != nil {
-		return fmt.Errorf("create output parent: %w", err)
-	}
-	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".partial-")
-	if err != nil {
-		return fmt.Errorf("create temporary run directory: %w", err)
-	}
-	ok := false
-	defer func() {
-		if !ok {
-			os.RemoveAll(tmp)
-		}
-	}()
-	if err := os.Chmod(tmp, 0o755); err != nil {
-		return err
-	}
-	// Render the files concurrently (figures dominate the cost), each into
-	// its own buffer, and write them in order afterwards. The formats of one
-	// figure are drawn one after another in one goroutine: drawing a plot is
-	// not safe for concurrent use (drawing the same plot in two formats at
-	// once gave different bytes).
-	bufs := make([]bytes.Buffer, len(files))
-	var g errgroup.Group
-	g.SetLimit(runtime.NumCPU())
-	groups := map[string][]int{}
-	var order []string
-	for i, f := range files {
-		key := f.name
-		if strings.HasPrefix(f.name, "figures/") {
-			key = strings.TrimSuffix(f.name, path.Ext(f.name))
-		}
-		if _, ok := groups[key]; !ok {
-			order = append(order, key)
-		}
-		groups[key] = append(groups[key], i)
-	}
-	for _, key := range order {
-		idx := groups[key]
-		g.Go(func() error {
-			for _, i := range idx {
-				if err := files[i].write(&bufs[i]); err != nil {
-					return fmt.Errorf("write %s: %w", files[i].name, err)
-				}
-			}
-			return nil
-		})
-	}
-	if err := g.Wait(); err != nil {
-		return err
-	}
-	for i, f := range files {
-		b := &bufs[i]
-		path := filepath.Join(tmp, filepath.FromSlash(f.name))
-		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-			return fmt.Errorf("write %s: %w", f.name, err)
-		}
-		if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
-			return fmt.Errorf("write %s: %w", f.name, err)
-		}
-	}
-	if _, err := os.Stat(dir); err == nil {
-		old := tmp + ".old"
-		if err := os.Rename(dir, old); err != nil {
-			return fmt.Errorf("replace %s: %w", dir, err)
-		}
-		if err := os.Rename(tmp, dir); err != nil {
-			os.Rename(old, dir)
-			return fmt.Errorf("replace %s: %w", dir, err)
-		}
-		os.RemoveAll(old)
-	} else if err := os.Rename(tmp, dir); err != nil {
-		return fmt.Errorf("move run into %s: %w", dir, err)
-	}
-	ok = true
-	return nil
+	files = append(files, figureFiles(figs)...)
+	return writeDir(dir, files)
 }
