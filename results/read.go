@@ -147,15 +147,14 @@ func (r row) number(col string) (float64, error) {
 	return v, nil
 }
 
-// ReadFolds reads folds.csv; file names the source in errors. Columns may
-// come in any order; extra columns are ignored; mean_p_acc is optional.
-func ReadFolds(r io.Reader, file string) ([]Fold, error) {
-	req := append([]string{"dataset", "pipeline", "model", "repeat", "fold", "n_train", "n_test"}, MetricNames...)
+// readRows reads a CSV table with the required columns and turns each data
+// row into a record with parse; the first error stops it.
+func readRows[T any](r io.Reader, file string, req []string, parse func(row) (T, error)) ([]T, error) {
 	t, err := newTable(r, file, req)
 	if err != nil {
 		return nil, err
 	}
-	var out []Fold
+	var out []T
 	for {
 		rw, ok, err := t.next()
 		if err != nil {
@@ -164,9 +163,23 @@ func ReadFolds(r io.Reader, file string) ([]Fold, error) {
 		if !ok {
 			return out, nil
 		}
+		rec, err := parse(rw)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, rec)
+	}
+}
+
+// ReadFolds reads folds.csv; file names the source in errors. Columns may
+// come in any order; extra columns are ignored; mean_p_acc is optional.
+func ReadFolds(r io.Reader, file string) ([]Fold, error) {
+	req := append([]string{"dataset", "pipeline", "model", "repeat", "fold", "n_train", "n_test"}, MetricNames...)
+	return readRows(r, file, req, func(rw row) (Fold, error) {
+		var err error
 		var f Fold
 		if f.Dataset, f.Pipeline, f.Model, err = cellKey(rw); err != nil {
-			return nil, err
+			return f, err
 		}
 		ints := []struct {
 			col string
@@ -175,71 +188,61 @@ func ReadFolds(r io.Reader, file string) ([]Fold, error) {
 		}{{"repeat", &f.Repeat, 0}, {"fold", &f.Fold, 0}, {"n_train", &f.NTrain, 1}, {"n_test", &f.NTest, 1}}
 		for _, c := range ints {
 			if *c.dst, err = rw.integer(c.col); err != nil {
-				return nil, err
+				return f, err
 			}
 			if *c.dst < c.min {
-				return nil, rw.errAt(c.col, "want at least %d, got %d", c.min, *c.dst)
+				return f, rw.errAt(c.col, "want at least %d, got %d", c.min, *c.dst)
 			}
 		}
 		vals := make([]float64, len(MetricNames))
 		for i, m := range MetricNames {
 			if vals[i], err = rw.number(m); err != nil {
-				return nil, err
+				return f, err
 			}
 			if math.IsNaN(vals[i]) {
-				return nil, rw.errAt(m, "empty metric in a fold record")
+				return f, rw.errAt(m, "empty metric in a fold record")
 			}
 		}
 		f.Scores = Scores{Accuracy: vals[0], BalancedAccuracy: vals[1], MacroF1: vals[2]}
 		if f.MeanPAcc, err = rw.number("mean_p_acc"); err != nil {
-			return nil, err
+			return f, err
 		}
-		out = append(out, f)
-	}
+		return f, nil
+	})
 }
 
 // ReadPredictions reads predictions.csv; p_acc is optional (NaN when
 // absent or empty), the correct column is ignored (it is derived).
 func ReadPredictions(r io.Reader, file string) ([]Prediction, error) {
-	t, err := newTable(r, file, []string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted"})
-	if err != nil {
-		return nil, err
-	}
-	var out []Prediction
-	for {
-		rw, ok, err := t.next()
-		if err != nil {
-			return nil, err
-		}
-		if !ok {
-			return out, nil
-		}
+	req := []string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted"}
+	return readRows(r, file, req, func(rw row) (Prediction, error) {
+		var err error
 		var p Prediction
 		if p.Dataset, p.Pipeline, p.Model, err = cellKey(rw); err != nil {
-			return nil, err
+			return p, err
 		}
 		for _, c := range []struct {
 			col string
 			dst *int
 		}{{"repeat", &p.Repeat}, {"fold", &p.Fold}, {"row", &p.Row}} {
 			if *c.dst, err = rw.integer(c.col); err != nil {
-				return nil, err
+				return p, err
 			}
 			if *c.dst < 0 {
-				return nil, rw.errAt(c.col, "negative value %d", *c.dst)
+				return p, rw.errAt(c.col, "negative value %d", *c.dst)
 			}
 		}
 		if p.Label, err = rw.str("label"); err != nil {
-			return nil, err
+			return p, err
 		}
 		if p.Predicted, err = rw.str("predicted"); err != nil {
-			return nil, err
+			return p, err
 		}
 		if p.PAcc, err = rw.number("p_acc"); err != nil {
-			return nil, err
+			return p, err
 		}
-		out = append(out, p)
-	}
+		return p, nil
+	})
 }
 
 // ReadSummary reads summary.csv; mean_p_acc is optional.
@@ -248,30 +251,19 @@ func ReadSummary(r io.Reader, file string) ([]Summary, error) {
 	for _, m := range MetricNames {
 		req = append(req, m+"_mean", m+"_std", m+"_lo", m+"_hi")
 	}
-	t, err := newTable(r, file, req)
-	if err != nil {
-		return nil, err
-	}
-	var out []Summary
-	for {
-		rw, ok, err := t.next()
-		if err != nil {
-			return nil, err
-		}
-		if !ok {
-			return out, nil
-		}
+	return readRows(r, file, req, func(rw row) (Summary, error) {
+		var err error
 		var s Summary
 		if s.Dataset, s.Pipeline, s.Model, err = cellKey(rw); err != nil {
-			return nil, err
+			return s, err
 		}
 		if s.Folds, err = rw.integer("n_scores"); err != nil {
-			return nil, err
+			return s, err
 		}
 		if s.Folds < 1 {
-			return nil, rw.errAt("n_scores", "want at least 1, got %d", s.Folds)
+			return s, rw.errAt("n_scores", "want at least 1, got %d", s.Folds)
 		}
-		s.Interval = rw.rec[t.col["interval"]]
+		s.Interval = rw.rec[rw.t.col["interval"]]
 		for _, m := range MetricNames {
 			var ms MetricSummary
 			for _, c := range []struct {
@@ -279,16 +271,16 @@ func ReadSummary(r io.Reader, file string) ([]Summary, error) {
 				dst    *float64
 			}{{"_mean", &ms.Mean}, {"_std", &ms.Std}, {"_lo", &ms.Lo}, {"_hi", &ms.Hi}} {
 				if *c.dst, err = rw.number(m + c.suffix); err != nil {
-					return nil, err
+					return s, err
 				}
 			}
 			s.Metrics = append(s.Metrics, ms)
 		}
 		if s.MeanPAcc, err = rw.number("mean_p_acc"); err != nil {
-			return nil, err
+			return s, err
 		}
-		out = append(out, s)
-	}
+		return s, nil
+	})
 }
 
 func cellKey(rw row) (ds, pipe, model string, err error) {
