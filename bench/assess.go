@@ -8,6 +8,7 @@ import (
 	"slices"
 	"strings"
 
+	"fringe/bench/input"
 	"fringe/bench/stats"
 	"fringe/datasets"
 	"fringe/qkernel/circuit"
@@ -76,7 +77,7 @@ func (o AssessOptions) withDefaults() (AssessOptions, error) {
 		o.File = "assess"
 	}
 	bad := func(key, format string, args ...any) error {
-		return &InputError{Key: key, Err: fmt.Errorf(format, args...)}
+		return &input.Error{Key: key, Err: fmt.Errorf(format, args...)}
 	}
 	switch {
 	case len(o.Datasets) == 0:
@@ -100,7 +101,7 @@ func (o AssessOptions) withDefaults() (AssessOptions, error) {
 	seenP := map[string]bool{}
 	for _, p := range o.Pipelines {
 		if err := checkPipeline(p); err != nil {
-			return o, &InputError{Key: "pipelines", Err: err}
+			return o, &input.Error{Key: "pipelines", Err: err}
 		}
 		if seenP[p] {
 			return o, bad("pipelines", "pipeline %q appears twice", p)
@@ -189,7 +190,7 @@ type assessDataset struct {
 // shots budget, the kernel-target alignments and the ranking. Every
 // dataset's splits depend only on the seed, its name and the repeat, so
 // all of its models see the same folds and the differences are paired.
-// Errors caused by the input satisfy errors.Is(err, ErrInput).
+// Errors caused by the input satisfy errors.Is(err, input.ErrBad).
 func Assess(ctx context.Context, opt AssessOptions) (*results.Assessment, error) {
 	o, err := opt.withDefaults()
 	if err != nil {
@@ -257,11 +258,11 @@ func assessRun(ctx context.Context, o AssessOptions, ds DatasetSpec) (*assessDat
 		}
 	}
 	if present < 2 {
-		return nil, &InputError{File: o.File, Err: fmt.Errorf("dataset %s: needs at least two classes with members, has %d", ds.Display(), present)}
+		return nil, &input.Error{File: o.File, Err: fmt.Errorf("dataset %s: needs at least two classes with members, has %d", ds.Display(), present)}
 	}
 	folds := min(o.Folds, smallest)
 	if folds < 2 {
-		return nil, &InputError{File: o.File, Err: fmt.Errorf("dataset %s: a class has a single member; cross-validation needs at least two per class", ds.Display())}
+		return nil, &input.Error{File: o.File, Err: fmt.Errorf("dataset %s: a class has a single member; cross-validation needs at least two per class", ds.Display())}
 	}
 	cvs := CVSpec{Method: CVStratified, Folds: folds, Repeats: o.Repeats, TestFraction: 0.3}
 	spec := func(pipes []string, models ...map[string]any) *Spec {
@@ -278,7 +279,7 @@ func assessRun(ctx context.Context, o AssessOptions, ds DatasetSpec) (*assessDat
 	for _, p := range o.Pipelines {
 		before, lift, err := beforeNorm(p)
 		if err != nil {
-			return nil, &InputError{Key: "pipelines", Err: err}
+			return nil, &input.Error{Key: "pipelines", Err: err}
 		}
 		for _, q := range []string{before, then(before, "l2"), then(before, lift), then(before, "norm")} {
 			if !seen[q] {
@@ -442,7 +443,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 	// What unit-norm scaling throws away.
 	before, lift, err := beforeNorm(pipe)
 	if err != nil {
-		return row, nil, nil, &InputError{Key: "pipelines", Err: err}
+		return row, nil, nil, &input.Error{Key: "pipelines", Err: err}
 	}
 	row.Before, row.Lift = before, lift
 	nsum := ad.norm.Summarise(ad.nres)
@@ -467,7 +468,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 	sp := ad.quantum.Datasets[0].Splits[0]
 	pl, err := datasets.ParsePipeline(pipe)
 	if err != nil {
-		return row, nil, nil, &InputError{Key: "pipelines", Err: err}
+		return row, nil, nil, &input.Error{Key: "pipelines", Err: err}
 	}
 	where := fmt.Sprintf("dataset %s, pipeline %s, repeat 0 fold 0", row.Dataset, pipe)
 	Xtr, ytr, rowsTr := gather(data, sp.Train)
@@ -483,7 +484,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 	T := TargetKernel(ytr)
 	K, err := InterferenceGram(Ztr)
 	if err != nil {
-		return row, nil, nil, &InputError{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
+		return row, nil, nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
 	}
 	row.KTAInterference = CenteredAlignment(K, T)
 	row.RBFGamma = scaleGamma(Ztr)
@@ -526,7 +527,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 			}
 			c, err := circuit.Compile(Zte.RawRowView(0), train, y, C, w)
 			if err != nil {
-				return row, nil, nil, &InputError{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
+				return row, nil, nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
 			}
 			r = c.Resources()
 			cache[key] = r

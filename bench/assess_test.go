@@ -14,6 +14,7 @@ import (
 
 	"gonum.org/v1/gonum/floats/scalar"
 
+	"fringe/bench/input"
 	"fringe/qkernel/circuit"
 	"fringe/results"
 )
@@ -260,7 +261,7 @@ func TestAssessBadInput(t *testing.T) {
 	}
 	for _, c := range cases {
 		_, err := Assess(context.Background(), c.opt)
-		if !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), c.want) {
+		if !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%+v: error %v, want an input error naming %q", c.opt, err, c.want)
 		}
 	}
@@ -288,7 +289,7 @@ func TestAssessBadInput(t *testing.T) {
 	}
 	one := filepath.Join(dir, "one.csv")
 	os.WriteFile(one, []byte("x,label\n1,a\n2,a\n3,b\n"), 0o644)
-	if _, err := Assess(context.Background(), AssessOptions{Datasets: []DatasetSpec{{Name: one}}}); !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), "single member") {
+	if _, err := Assess(context.Background(), AssessOptions{Datasets: []DatasetSpec{{Name: one}}}); !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "single member") {
 		t.Errorf("class of one: %v", err)
 	}
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"sort"
 
+	"fringe/bench/input"
 	"fringe/datasets"
 	"fringe/qkernel/circuit"
 )
@@ -39,7 +40,7 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 		return nil, err
 	}
 	bad := func(format string, args ...any) error {
-		return &InputError{Err: fmt.Errorf(format, args...)}
+		return &input.Error{Err: fmt.Errorf(format, args...)}
 	}
 	pos := -1
 	for i, r := range data.Rows {
@@ -66,17 +67,17 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	}
 	pipe, err := datasets.ParsePipeline(req.Pipeline)
 	if err != nil {
-		return nil, &InputError{Key: "pipeline", Err: err}
+		return nil, &input.Error{Key: "pipeline", Err: err}
 	}
 	Xtr, ytr, rowsTr := gather(data, train)
 	Xte, _, rowsTe := gather(data, []int{pos})
 	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
 	if err != nil {
-		return nil, &InputError{Err: fmt.Errorf("dataset %s, pipeline %s: %w", req.Dataset.Display(), req.Pipeline, err)}
+		return nil, &input.Error{Err: fmt.Errorf("dataset %s, pipeline %s: %w", req.Dataset.Display(), req.Pipeline, err)}
 	}
 	Zte, err := pipe.Transform(Xte, rowsTe)
 	if err != nil {
-		return nil, &InputError{Err: fmt.Errorf("dataset %s, pipeline %s: %w", req.Dataset.Display(), req.Pipeline, err)}
+		return nil, &input.Error{Err: fmt.Errorf("dataset %s, pipeline %s: %w", req.Dataset.Display(), req.Pipeline, err)}
 	}
 	rows := make([][]float64, len(train))
 	for i := range rows {
@@ -86,12 +87,12 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	if req.Balance {
 		w, err = circuit.BalancedWeights(ytr, len(data.Classes))
 		if err != nil {
-			return nil, &InputError{Err: err}
+			return nil, &input.Error{Err: err}
 		}
 	}
 	c, err := circuit.Compile(Zte.RawRowView(0), rows, ytr, len(data.Classes), w)
 	if err != nil {
-		return nil, &InputError{Err: fmt.Errorf("dataset %s row %d: %w", req.Dataset.Display(), req.Row, err)}
+		return nil, &input.Error{Err: fmt.Errorf("dataset %s row %d: %w", req.Dataset.Display(), req.Row, err)}
 	}
 	sort.Ints(rowsTr)
 	_, f := Ztr.Dims()

@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"fringe/bench/input"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -63,10 +64,10 @@ func Compare(base, cur *results.Run, opt CompareOptions) (*results.RunComparison
 		alpha = DefaultTestAlpha
 	}
 	if !(alpha > 0 && alpha < 0.5) {
-		return nil, &InputError{Key: "alpha", Err: fmt.Errorf("alpha must lie in (0, 0.5), got %v", opt.Alpha)}
+		return nil, &input.Error{Key: "alpha", Err: fmt.Errorf("alpha must lie in (0, 0.5), got %v", opt.Alpha)}
 	}
 	if !(opt.Tolerance >= 0) || math.IsInf(opt.Tolerance, 0) {
-		return nil, &InputError{Key: "tol", Err: fmt.Errorf("tolerance must be a finite number ≥ 0, got %v", opt.Tolerance)}
+		return nil, &input.Error{Key: "tol", Err: fmt.Errorf("tolerance must be a finite number ≥ 0, got %v", opt.Tolerance)}
 	}
 	gated := opt.Metrics
 	if len(gated) == 0 {
@@ -74,7 +75,7 @@ func Compare(base, cur *results.Run, opt CompareOptions) (*results.RunComparison
 	}
 	for _, m := range gated {
 		if !slices.Contains(results.MetricNames, m) {
-			return nil, &InputError{Key: "metric", Err: fmt.Errorf("unknown metric %q (want %s)", m, strings.Join(results.MetricNames, ", "))}
+			return nil, &input.Error{Key: "metric", Err: fmt.Errorf("unknown metric %q (want %s)", m, strings.Join(results.MetricNames, ", "))}
 		}
 	}
 	rc := &results.RunComparison{
@@ -101,7 +102,7 @@ func Compare(base, cur *results.Run, opt CompareOptions) (*results.RunComparison
 		}
 	}
 	if len(matched) == 0 {
-		return nil, &InputError{Err: fmt.Errorf("no cells in common between %s and %s (cells are matched by dataset, pipeline and model name)", base.Dir, cur.Dir)}
+		return nil, &input.Error{Err: fmt.Errorf("no cells in common between %s and %s (cells are matched by dataset, pipeline and model name)", base.Dir, cur.Dir)}
 	}
 	for _, m := range opt.Models {
 		found := false
@@ -109,7 +110,7 @@ func Compare(base, cur *results.Run, opt CompareOptions) (*results.RunComparison
 			found = found || id.model == m
 		}
 		if !found {
-			return nil, &InputError{Key: "models", Err: fmt.Errorf("model %q is in no cell common to both runs", m)}
+			return nil, &input.Error{Key: "models", Err: fmt.Errorf("model %q is in no cell common to both runs", m)}
 		}
 	}
 	manifestSame := sameManifests(base.Manifest, cur.Manifest)
@@ -269,7 +270,7 @@ func testChange(ch *results.CellChange, bs, ns results.Summary, bi, ni *runIndex
 	case "corrected-t":
 		fb, fn := bi.folds[id], ni.folds[id]
 		if len(fb) == 0 || len(fn) == 0 {
-			return &InputError{Err: fmt.Errorf("%s: the summary has the cell but folds.csv has no rows for it", id)}
+			return &input.Error{Err: fmt.Errorf("%s: the summary has the cell but folds.csv has no rows for it", id)}
 		}
 		if paired {
 			var keys []foldKey
@@ -350,7 +351,7 @@ func testChange(ch *results.CellChange, bs, ns results.Summary, bi, ni *runIndex
 		}
 		nb, nn := nTestTotal(bi.folds[id]), nTestTotal(ni.folds[id])
 		if nb == 0 || nn == 0 {
-			return &InputError{Err: fmt.Errorf("%s: the summary has the cell but folds.csv has no rows for it", id)}
+			return &input.Error{Err: fmt.Errorf("%s: the summary has the cell but folds.csv has no rows for it", id)}
 		}
 		kb := int(math.Round(bs.Metrics[0].Mean * float64(nb)))
 		kn := int(math.Round(ns.Metrics[0].Mean * float64(nn)))

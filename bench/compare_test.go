@@ -10,6 +10,7 @@ import (
 
 	"gonum.org/v1/gonum/floats/scalar"
 
+	"fringe/bench/input"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -214,11 +215,11 @@ func TestCompareRuns(t *testing.T) {
 		t.Errorf("only-in lists %v %v (%v)", rc.OnlyBase, rc.OnlyNew, err)
 	}
 	_, err = Compare(same, synthRun("new", 1, []synthCell{{"x", "raw", "y", 0.5, 0.1}}, true, 0), CompareOptions{})
-	if !errors.Is(err, ErrInput) {
+	if !errors.Is(err, input.ErrBad) {
 		t.Errorf("no common cell: error %v, want an input error", err)
 	}
 	for _, opt := range []CompareOptions{{Alpha: 0.7}, {Tolerance: -1}, {Metrics: []string{"auc"}}, {Models: []string{"forest"}}} {
-		if _, err := Compare(same, same, opt); !errors.Is(err, ErrInput) {
+		if _, err := Compare(same, same, opt); !errors.Is(err, input.ErrBad) {
 			t.Errorf("options %+v: error %v, want an input error", opt, err)
 		}
 	}

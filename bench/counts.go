@@ -3,7 +3,6 @@ package bench
 import (
 	"bytes"
 	"encoding/csv"
-	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -15,6 +14,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/baselines"
+	"fringe/bench/input"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
 )
@@ -189,17 +189,17 @@ func countsPath(p *Plan, file string) string {
 
 // readCounts reads a counts file and checks it against every test instance
 // of the plan: each needs at least one shot, and nothing else may appear.
-// All errors are *InputError naming the file and, where there is one, the
+// All errors are *input.Error naming the file and, where there is one, the
 // line.
 func readCounts(p *Plan, file string) (*countsTable, error) {
 	path := countsPath(p, file)
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, &InputError{File: path, Err: fmt.Errorf("read counts file: %w", err)}
+		return nil, &input.Error{File: path, Err: fmt.Errorf("read counts file: %w", err)}
 	}
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
 	bad := func(line int, format string, args ...any) error {
-		return &InputError{File: path, Line: line, Err: fmt.Errorf(format, args...)}
+		return &input.Error{File: path, Line: line, Err: fmt.Errorf(format, args...)}
 	}
 	cr := csv.NewReader(bytes.NewReader(data))
 	cr.FieldsPerRecord = -1
@@ -209,7 +209,7 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 		return nil, bad(0, "empty counts file (want a header %s)", strings.Join(CountsColumns, ","))
 	}
 	if err != nil {
-		return nil, csvError(path, err)
+		return nil, input.CSV(path, err)
 	}
 	want := strings.Join(CountsColumns, ",") + " (optionally pipeline)"
 	col := map[string]int{}
@@ -282,7 +282,7 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 			break
 		}
 		if err != nil {
-			return nil, csvError(path, err)
+			return nil, input.CSV(path, err)
 		}
 		line, _ := cr.FieldPos(0)
 		if len(rec) == 1 && strings.TrimSpace(rec[0]) == "" {
@@ -449,15 +449,6 @@ func formatBits(k, n int) string {
 		b[n-1-i] = byte('0' + (k>>i)&1)
 	}
 	return string(b)
-}
-
-// csvError turns an encoding/csv error into an input error with its line.
-func csvError(path string, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		return &InputError{File: path, Line: pe.Line, Err: fmt.Errorf("column %d: %v", pe.Column, pe.Err)}
-	}
-	return &InputError{File: path, Err: err}
 }
 
 // datasetByName returns the planned dataset with the display name, or nil.

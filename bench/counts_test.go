@@ -16,6 +16,7 @@ import (
 
 	"gonum.org/v1/gonum/floats/scalar"
 
+	"fringe/bench/input"
 	"fringe/qkernel/sim"
 )
 
@@ -345,7 +346,7 @@ func TestCountsBadInput(t *testing.T) {
 			if err == nil {
 				t.Fatal("run succeeded")
 			}
-			if !errors.Is(err, ErrInput) {
+			if !errors.Is(err, input.ErrBad) {
 				t.Errorf("not an input error: %v", err)
 			}
 			msg := err.Error()
@@ -369,7 +370,7 @@ func TestCountsBadInput(t *testing.T) {
 	}
 	p2 := loopPlan(t, dir, `"std", "l2"`, "iris", `classes = ["setosa", "versicolor"]`, "")
 	_, err := Execute(context.Background(), p2, Options{Workers: 2})
-	if err == nil || !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), "measured.csv:1") || !strings.Contains(err.Error(), "add a pipeline column") {
+	if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "measured.csv:1") || !strings.Contains(err.Error(), "add a pipeline column") {
 		t.Errorf("two pipelines, no pipeline column: %v", err)
 	}
 	if err := os.WriteFile(filepath.Join(dir, "measured.csv"), []byte(validCounts(p2, true)), 0o644); err != nil {

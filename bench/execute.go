@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/baselines"
+	"fringe/bench/input"
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/results"
@@ -68,7 +69,7 @@ type detailer interface {
 // On the first error (or when ctx is cancelled) tasks not yet started are
 // skipped, tasks in flight finish (models are not interruptible), finished
 // ones are handed to opt.Save, and the error is returned; errors caused by
-// the input satisfy errors.Is(err, ErrInput).
+// the input satisfy errors.Is(err, input.ErrBad).
 //
 // Tasks that share a dataset, pipeline and split are scheduled together as
 // one unit of work, so the pipeline is fitted and applied once for all the
@@ -231,7 +232,7 @@ func (p *Plan) runUnit(ctx context.Context, unit []int, finished func(int, TaskR
 	sp := d.Splits[t0.Split]
 	pipe, err := datasets.ParsePipeline(p.Spec.Pipelines[t0.Pipeline])
 	if err != nil {
-		return &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+		return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 	}
 	where := fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, p.Spec.Pipelines[t0.Pipeline], sp.Repeat, sp.Fold)
 	Xtr, ytr, rowsTr := gather(d.Data, sp.Train)
@@ -251,7 +252,7 @@ func (p *Plan) runUnit(ctx context.Context, unit []int, finished func(int, TaskR
 		}
 		r, err := p.runModel(ctx, p.Tasks[i], where, Ztr, ytr, rowsTr, Zte, rowsTe)
 		if err != nil {
-			if errors.Is(err, ErrInput) {
+			if errors.Is(err, input.ErrBad) {
 				return err
 			}
 			return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
@@ -317,7 +318,7 @@ func gather(d *datasets.Dataset, idx []int) (*mat.Dense, []int, []int) {
 func (p *Plan) classify(err error, where string) error {
 	if errors.Is(err, datasets.ErrZeroVector) || errors.Is(err, datasets.ErrUnknownStep) ||
 		errors.Is(err, datasets.ErrStepParam) || errors.Is(err, datasets.ErrNotFiniteValue) {
-		return &InputError{File: p.Spec.File, Err: fmt.Errorf("%s: %w", where, err)}
+		return &input.Error{File: p.Spec.File, Err: fmt.Errorf("%s: %w", where, err)}
 	}
 	return fmt.Errorf("%s: %w", where, err)
 }
@@ -333,7 +334,7 @@ func (p *Plan) classifyModel(err error, where, model string, rows []int) error {
 	if errors.Is(err, baselines.ErrParam) || errors.Is(err, baselines.ErrData) ||
 		errors.Is(err, qkernel.ErrZeroVector) || errors.Is(err, qkernel.ErrOneClass) ||
 		errors.Is(err, qkernel.ErrTooLarge) || errors.Is(err, qkernel.ErrSubset) || errors.Is(err, qkernel.ErrOption) {
-		return &InputError{File: p.Spec.File, Err: err}
+		return &input.Error{File: p.Spec.File, Err: err}
 	}
 	return err
 }

@@ -13,6 +13,7 @@ import (
 
 	"golang.org/x/sync/errgroup"
 
+	"fringe/bench/input"
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
@@ -63,7 +64,7 @@ func (p *Plan) resolveExport(name string) (exportSettings, error) {
 				continue
 			}
 			if m.Kind != "interference" && m.Kind != "counts" {
-				return exportSettings{}, &InputError{File: p.Spec.File, Err: fmt.Errorf("model %s is of kind %s; the circuits take their settings from a model of kind interference or counts", name, m.Kind)}
+				return exportSettings{}, &input.Error{File: p.Spec.File, Err: fmt.Errorf("model %s is of kind %s; the circuits take their settings from a model of kind interference or counts", name, m.Kind)}
 			}
 			return pick(m), nil
 		}
@@ -73,7 +74,7 @@ func (p *Plan) resolveExport(name string) (exportSettings, error) {
 				names = append(names, m.Name)
 			}
 		}
-		return exportSettings{}, &InputError{File: p.Spec.File, Err: fmt.Errorf("no model named %q (interference and counts models of the spec: %s)", name, orNoneList(names))}
+		return exportSettings{}, &input.Error{File: p.Spec.File, Err: fmt.Errorf("no model named %q (interference and counts models of the spec: %s)", name, orNoneList(names))}
 	}
 	for _, kind := range []string{"counts", "interference"} {
 		for _, m := range p.Spec.Models {
@@ -113,7 +114,7 @@ func (p *Plan) exportUnit(di, pi, si int, set exportSettings, fn func(exportItem
 	ps := p.Spec.Pipelines[pi]
 	pipe, err := datasets.ParsePipeline(ps)
 	if err != nil {
-		return &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+		return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 	}
 	where := fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, ps, sp.Repeat, sp.Fold)
 	Xtr, ytr, rowsTr := gather(d.Data, sp.Train)
@@ -167,7 +168,7 @@ func (p *Plan) exportUnit(di, pi, si int, set exportSettings, fn func(exportItem
 // The export is written into a temporary folder beside dir and renamed
 // into place when complete; an existing dir is replaced only if it is an
 // earlier export (it holds index.csv) or empty, else ExportCircuits
-// refuses. Errors caused by the input satisfy errors.Is(err, ErrInput).
+// refuses. Errors caused by the input satisfy errors.Is(err, input.ErrBad).
 func ExportCircuits(ctx context.Context, p *Plan, dir string, opt ExportOptions) (*ExportSummary, error) {
 	set, err := p.resolveExport(opt.Model)
 	if err != nil {
@@ -282,7 +283,7 @@ func exportText(it exportItem, set exportSettings) ([]byte, error) {
 	nc := len(it.Circuit.Regs.Class)
 	var b bytes.Buffer
 	fmt.Fprintf(&b, "// fringe: interference circuit of dataset %s, pipeline %s, repeat %d, fold %d, test row %d\n",
-		oneLine(it.Dataset), oneLine(it.Pipeline), it.Repeat, it.Fold, it.Row)
+		input.OneLine(it.Dataset), input.OneLine(it.Pipeline), it.Repeat, it.Fold, it.Row)
 	weights := "uniform weights 1/M"
 	if set.balance {
 		weights = "class-balancing weights 1/(C*M_k)"
@@ -294,7 +295,7 @@ func exportText(it exportItem, set exportSettings) ([]byte, error) {
 	fmt.Fprintf(&b, "// %d training vectors (%s), dataset rows %s\n", len(it.TrainRows), weights, strings.Join(rows, " "))
 	var cls []string
 	for k, c := range it.Classes {
-		cls = append(cls, fmt.Sprintf("%s = %s", formatBits(k, nc), oneLine(c)))
+		cls = append(cls, fmt.Sprintf("%s = %s", formatBits(k, nc), input.OneLine(c)))
 	}
 	order := "class_out[0]"
 	if nc > 1 {
@@ -315,14 +316,14 @@ func checkExportDir(dir string) error {
 		return nil
 	}
 	if err != nil {
-		return &InputError{File: dir, Err: err}
+		return &input.Error{File: dir, Err: err}
 	}
 	if !st.IsDir() {
-		return &InputError{File: dir, Err: fmt.Errorf("exists and is not a folder")}
+		return &input.Error{File: dir, Err: fmt.Errorf("exists and is not a folder")}
 	}
 	entries, err := os.ReadDir(dir)
 	if err != nil {
-		return &InputError{File: dir, Err: err}
+		return &input.Error{File: dir, Err: err}
 	}
 	if len(entries) == 0 {
 		return nil
@@ -335,7 +336,7 @@ func checkExportDir(dir string) error {
 			return nil
 		}
 	}
-	return &InputError{File: dir, Err: fmt.Errorf("folder exists and is not a circuit export of fringe (no index.csv); choose a new folder")}
+	return &input.Error{File: dir, Err: fmt.Errorf("folder exists and is not a circuit export of fringe (no index.csv); choose a new folder")}
 }
 
 // replaceDir renames tmp to dir, replacing an existing dir only once tmp

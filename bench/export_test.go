@@ -13,6 +13,7 @@ import (
 
 	"gonum.org/v1/gonum/floats/scalar"
 
+	"fringe/bench/input"
 	"fringe/qkernel/sim"
 )
 
@@ -189,7 +190,7 @@ func TestExportSettings(t *testing.T) {
 	} {
 		set, err := p.resolveExport(c.model)
 		if c.err != "" {
-			if err == nil || !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), c.err) {
+			if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), c.err) {
 				t.Errorf("model %q: error %v, want one naming %q", c.model, err, c.err)
 			}
 			continue
@@ -225,7 +226,7 @@ func TestExportSettings(t *testing.T) {
 	other := filepath.Join(dir, "mine")
 	os.MkdirAll(other, 0o755)
 	os.WriteFile(filepath.Join(other, "notes.txt"), []byte("keep"), 0o644)
-	if _, err := ExportCircuits(context.Background(), p, other, ExportOptions{Model: "sub"}); err == nil || !errors.Is(err, ErrInput) {
+	if _, err := ExportCircuits(context.Background(), p, other, ExportOptions{Model: "sub"}); err == nil || !errors.Is(err, input.ErrBad) {
 		t.Errorf("export into a folder of other files: %v", err)
 	}
 	if b, err := os.ReadFile(filepath.Join(other, "notes.txt")); err != nil || string(b) != "keep" {

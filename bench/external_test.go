@@ -15,6 +15,7 @@ import (
 
 	"gonum.org/v1/gonum/floats/scalar"
 
+	"fringe/bench/input"
 	"fringe/datasets"
 )
 
@@ -369,7 +370,7 @@ func TestCommandFailures(t *testing.T) {
 			if time.Since(start) > 20*time.Second {
 				t.Errorf("failure took %v", time.Since(start))
 			}
-			if errors.Is(err, ErrInput) {
+			if errors.Is(err, input.ErrBad) {
 				t.Errorf("a failing program is a failed run, not bad input: %v", err)
 			}
 			var ce *CommandError
@@ -467,7 +468,7 @@ func TestExternalSpecErrors(t *testing.T) {
 	} {
 		src := "name = \"e\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\n" + c.model + "\n"
 		_, err := ParseSpec("e.toml", []byte(src))
-		if err == nil || !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), c.want) {
+		if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("model %q: error %v, want an input error naming %s", c.model, err, c.want)
 		}
 	}

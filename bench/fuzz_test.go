@@ -9,6 +9,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"fringe/bench/input"
 )
 
 var fixedTime = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
@@ -81,7 +83,7 @@ func FuzzParseSpec(f *testing.F) {
 
 func checkInputError(t *testing.T, err error) {
 	t.Helper()
-	if !errors.Is(err, ErrInput) {
+	if !errors.Is(err, input.ErrBad) {
 		t.Fatalf("error %v (%T) is not an input error", err, err)
 	}
 	if msg := err.Error(); strings.Contains(msg, "\n") || msg == "" {
@@ -198,7 +200,7 @@ func FuzzParseShard(f *testing.F) {
 		defer watchdog("ParseShard")()
 		sh, err := ParseShard(s)
 		if err != nil {
-			if !errors.Is(err, ErrInput) || !errors.Is(err, ErrShard) {
+			if !errors.Is(err, input.ErrBad) || !errors.Is(err, ErrShard) {
 				t.Fatalf("%q: %v is not an input and shard error", s, err)
 			}
 			return

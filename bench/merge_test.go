@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"fringe/bench/input"
 )
 
 // writeShards runs every shard of n into dir/shard-i and returns the
@@ -102,7 +104,7 @@ func TestMergeRefuses(t *testing.T) {
 			t.Errorf("%s: merged, want a refusal", c.name)
 			continue
 		}
-		if !errors.Is(err, ErrInput) || !errors.Is(err, ErrPartial) {
+		if !errors.Is(err, input.ErrBad) || !errors.Is(err, ErrPartial) {
 			t.Errorf("%s: %v is not an input error", c.name, err)
 		}
 		if strings.Contains(err.Error(), "\n") {

@@ -11,6 +11,7 @@ import (
 
 	"fringe/baselines"
 	"fringe/bench/cv"
+	"fringe/bench/input"
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
@@ -73,7 +74,7 @@ func NewRand(seed uint64, parts ...string) *rand.Rand {
 
 // NewPlan loads the spec's datasets, draws the splits and lists the tasks in
 // order (dataset, pipeline, model, repeat, fold). All errors are input
-// errors (errors.Is(err, ErrInput)).
+// errors (errors.Is(err, input.ErrBad)).
 func NewPlan(s *Spec) (*Plan, error) {
 	p := &Plan{Spec: s}
 	for _, ds := range s.Datasets {
@@ -100,7 +101,7 @@ func NewPlan(s *Spec) (*Plan, error) {
 
 func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
 	inErr := func(err error) error {
-		return &InputError{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+		return &input.Error{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
 	data, err := loadDataset(s, ds)
 	if err != nil {
@@ -161,7 +162,7 @@ func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
 // class and feature selection.
 func loadDataset(s *Spec, ds DatasetSpec) (*datasets.Dataset, error) {
 	inErr := func(err error) error {
-		return &InputError{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+		return &input.Error{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
 	var data *datasets.Dataset
 	var err error
@@ -172,7 +173,7 @@ func loadDataset(s *Spec, ds DatasetSpec) (*datasets.Dataset, error) {
 		}
 		data, err = datasets.LoadCSV(path, datasets.CSVOptions{Label: ds.Label, DropInvalid: ds.DropInvalid})
 		if err != nil {
-			return nil, &InputError{Err: err} // the CSV error names file, line and column
+			return nil, &input.Error{Err: err} // the CSV error names file, line and column
 		}
 	} else {
 		if ds.Label != "" || ds.DropInvalid {
@@ -228,7 +229,7 @@ func (p *Plan) checkModels() error {
 		}
 		full := fmt.Sprintf("model[%d].%s", mi+1, key)
 		bad := func(err error) error {
-			return &InputError{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(full), Key: full, Err: err}
+			return &input.Error{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(full), Key: full, Err: err}
 		}
 		for _, d := range p.Datasets {
 			for _, sp := range d.Splits {
@@ -277,7 +278,7 @@ func (p *Plan) checkQubits() error {
 			for _, ps := range p.Spec.Pipelines {
 				pipe, err := datasets.ParsePipeline(ps)
 				if err != nil {
-					return &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+					return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 				}
 				dim := len(pipe.FeatureNames(d.Data.Features))
 				mTrain := 0
@@ -290,7 +291,7 @@ func (p *Plan) checkQubits() error {
 				ni, nd, nc := circuit.RegisterSizes(mTrain, dim, len(d.Data.Classes))
 				if n := 1 + ni + nd + nc; n > limit {
 					key := fmt.Sprintf("model[%d]", mi+1)
-					return &InputError{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(key), Key: key,
+					return &input.Error{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(key), Key: key,
 						Err: fmt.Errorf("model %s on dataset %s, pipeline %s: the circuit needs %d qubits (%d training vectors, %d features); the %s at most %d; %s: %w",
 							m.Name, d.Name, ps, n, mTrain, dim, simName, limit, alt, qkernel.ErrTooLarge)}
 				}

@@ -2,13 +2,13 @@ package bench
 
 import (
 	"encoding/csv"
-	"errors"
 	"fmt"
 	"io"
 	"math"
 	"strconv"
 	"strings"
 
+	"fringe/bench/input"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -28,7 +28,7 @@ type ScoreTable struct {
 // errors naming the file, line and column at fault.
 func ReadScores(r io.Reader, file string) (*ScoreTable, error) {
 	bad := func(line int, key string, format string, args ...any) error {
-		return &InputError{File: file, Line: line, Key: key, Err: fmt.Errorf(format, args...)}
+		return &input.Error{File: file, Line: line, Key: key, Err: fmt.Errorf(format, args...)}
 	}
 	cr := csv.NewReader(r)
 	cr.Comment = '#'
@@ -38,7 +38,7 @@ func ReadScores(r io.Reader, file string) (*ScoreTable, error) {
 		return nil, bad(0, "", "empty file: want a header with the columns dataset, model, score")
 	}
 	if err != nil {
-		return nil, csvInputError(file, err)
+		return nil, input.CSV(file, err)
 	}
 	headLine, _ := cr.FieldPos(0)
 	col := map[string]int{}
@@ -68,7 +68,7 @@ func ReadScores(r io.Reader, file string) (*ScoreTable, error) {
 			break
 		}
 		if err != nil {
-			return nil, csvInputError(file, err)
+			return nil, input.CSV(file, err)
 		}
 		line, _ := cr.FieldPos(0)
 		if len(rec) != len(head) {
@@ -125,15 +125,6 @@ func ReadScores(r io.Reader, file string) (*ScoreTable, error) {
 		}
 	}
 	return t, nil
-}
-
-// csvInputError turns an encoding/csv error into a located input error.
-func csvInputError(file string, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		return &InputError{File: file, Line: pe.Line, Err: fmt.Errorf("column %d: %w", pe.Column, pe.Err)}
-	}
-	return &InputError{File: file, Err: err}
 }
 
 // Rank ranks the models of a score table across its datasets: average

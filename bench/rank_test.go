@@ -6,6 +6,8 @@ import (
 	"strings"
 	"testing"
 
+	"fringe/bench/input"
+
 	"gonum.org/v1/gonum/floats/scalar"
 )
 
@@ -50,8 +52,8 @@ func TestReadScoresErrors(t *testing.T) {
 		{"empty name", "dataset,model,score\n,a,1\n", 2, "empty dataset name"},
 	} {
 		_, err := ReadScores(strings.NewReader(c.text), "scores.csv")
-		var ie *InputError
-		if !errors.As(err, &ie) || !errors.Is(err, ErrInput) {
+		var ie *input.Error
+		if !errors.As(err, &ie) || !errors.Is(err, input.ErrBad) {
 			t.Errorf("%s: error %v is not an input error", c.name, err)
 			continue
 		}

@@ -11,6 +11,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/plot/vg"
 
+	"fringe/bench/input"
 	"fringe/datasets"
 	"fringe/results"
 )
@@ -333,7 +334,7 @@ func (p *Plan) KernelFigure() (results.Figure, error) {
 		seen["scale"] = true
 		pl, err := datasets.ParsePipeline(pipe)
 		if err != nil {
-			return results.Figure{}, &InputError{File: p.Spec.File, Key: "pipelines", Err: err}
+			return results.Figure{}, &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 		}
 		for _, d := range p.Datasets {
 			Z, err := pl.FitTransform(d.Data.X, d.Data.Rows)

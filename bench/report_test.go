@@ -15,6 +15,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 	"gonum.org/v1/gonum/mat"
 
+	"fringe/bench/input"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -406,7 +407,7 @@ func TestSpecTestKeys(t *testing.T) {
 		{"reference = \"forest\"", "cv.reference", 5},
 	} {
 		_, err := ParseSpec("t.toml", []byte(strings.Replace(base, "%s", c.cv, 1)))
-		var ie *InputError
+		var ie *input.Error
 		if !errors.As(err, &ie) || ie.Key != c.key || ie.Line != c.line {
 			t.Errorf("%q: error %v, want key %s on line %d", c.cv, err, c.key, c.line)
 		}

@@ -19,6 +19,8 @@ import (
 	"sync"
 	"time"
 
+	"fringe/bench/input"
+
 	"github.com/BurntSushi/toml"
 )
 
@@ -56,7 +58,7 @@ func (e *partialError) Is(target error) bool { return target == ErrPartial }
 
 // partialErr makes an input error about a partial run directory.
 func partialErr(file, format string, args ...any) error {
-	return &InputError{File: file, Err: &partialError{fmt.Sprintf(format, args...)}}
+	return &input.Error{File: file, Err: &partialError{fmt.Sprintf(format, args...)}}
 }
 
 const (

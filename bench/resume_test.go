@@ -10,6 +10,8 @@ import (
 	"strings"
 	"sync/atomic"
 	"testing"
+
+	"fringe/bench/input"
 )
 
 // TestJSONFloatRoundTrip checks that the task-file float encoding gives
@@ -139,7 +141,7 @@ func TestPartialIdentity(t *testing.T) {
 		{"shard", clusterSpec, Shard{1, 2}, "shard 1/1, not 1/2"},
 	} {
 		_, err := OpenPartial(dir, clusterPlan(t, c.spec), c.shard, PartialOptions{})
-		if err == nil || !errors.Is(err, ErrInput) || !errors.Is(err, ErrPartial) {
+		if err == nil || !errors.Is(err, input.ErrBad) || !errors.Is(err, ErrPartial) {
 			t.Errorf("%s change: err %v, want a refusal", c.name, err)
 			continue
 		}
@@ -223,7 +225,7 @@ func TestPartialDamage(t *testing.T) {
 		"duplicate":          func(tf *taskFile) { tf.Tasks = append(tf.Tasks, tf.Tasks[0]) },
 	} {
 		err := tamper(edit)
-		if err == nil || !errors.Is(err, ErrInput) {
+		if err == nil || !errors.Is(err, input.ErrBad) {
 			t.Errorf("%s: err %v, want an input error", name, err)
 		}
 	}

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+
+	"fringe/bench/input"
 )
 
 // ErrShard marks a bad shard selection (syntax, range, or more shards than
@@ -42,10 +44,10 @@ func (s Shard) String() string {
 }
 
 // ParseShard parses "i/n" with 1 <= i <= n. Errors wrap ErrShard and
-// ErrInput.
+// input.ErrBad.
 func ParseShard(text string) (Shard, error) {
 	bad := func(format string, args ...any) (Shard, error) {
-		return Shard{}, &InputError{Err: fmt.Errorf("-shard %s: %w: %s", text, ErrShard, fmt.Sprintf(format, args...))}
+		return Shard{}, &input.Error{Err: fmt.Errorf("-shard %s: %w: %s", text, ErrShard, fmt.Sprintf(format, args...))}
 	}
 	a, b, ok := strings.Cut(strings.TrimSpace(text), "/")
 	if !ok {
@@ -107,10 +109,10 @@ func (p *Plan) ShardTasks(s Shard) ([]int, error) {
 	s = s.norm()
 	units := p.Units()
 	if s.I < 1 || s.I > s.N {
-		return nil, &InputError{Err: fmt.Errorf("-shard %s: %w: out of range", s, ErrShard)}
+		return nil, &input.Error{Err: fmt.Errorf("-shard %s: %w: out of range", s, ErrShard)}
 	}
 	if s.N > len(units) {
-		return nil, &InputError{File: p.Spec.File, Err: fmt.Errorf("-shard %s: %w: the plan has %d units of work (dataset x pipeline x split), so it can be cut into at most %d shards",
+		return nil, &input.Error{File: p.Spec.File, Err: fmt.Errorf("-shard %s: %w: the plan has %d units of work (dataset x pipeline x split), so it can be cut into at most %d shards",
 			s, ErrShard, len(units), len(units))}
 	}
 	in := make([]bool, len(p.Tasks))

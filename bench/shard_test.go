@@ -8,6 +8,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"fringe/bench/input"
 )
 
 // clusterSpec is a small grid for the shard, resume and merge tests: 2
@@ -76,7 +78,7 @@ func TestParseShard(t *testing.T) {
 			continue
 		}
 		if err != nil {
-			if !errors.Is(err, ErrInput) || !errors.Is(err, ErrShard) {
+			if !errors.Is(err, input.ErrBad) || !errors.Is(err, ErrShard) {
 				t.Errorf("ParseShard(%q): %v is not an input and shard error", c.in, err)
 			}
 			continue
@@ -158,7 +160,7 @@ func TestShardTasks(t *testing.T) {
 	}
 	// More shards than units: refused, with the number of units.
 	_, err := p.ShardTasks(Shard{1, 33})
-	if err == nil || !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), "at most 32 shards") {
+	if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "at most 32 shards") {
 		t.Errorf("33 shards of 32 units: %v", err)
 	}
 	whole, err := p.ShardTasks(Shard{})

@@ -6,6 +6,8 @@ import (
 	"path/filepath"
 	"regexp"
 	"strings"
+
+	"fringe/bench/input"
 )
 
 // SlurmOptions describe the cluster job that `fringe slurm` writes: a job
@@ -37,7 +39,7 @@ var (
 // check validates the options; errors are input errors naming the flag.
 func (o *SlurmOptions) check() error {
 	bad := func(flag, format string, args ...any) error {
-		return &InputError{Err: fmt.Errorf("%s: %s", flag, fmt.Sprintf(format, args...))}
+		return &input.Error{Err: fmt.Errorf("%s: %s", flag, fmt.Sprintf(format, args...))}
 	}
 	switch {
 	case o.Shards < 1 || o.Shards > MaxShards:

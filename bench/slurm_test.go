@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"fringe/bench/input"
 )
 
 // stub writes an executable shell script.
@@ -152,7 +154,7 @@ func TestSlurmOptionsRefused(t *testing.T) {
 		o := good
 		c.edit(&o)
 		err := WriteSlurmScript(&bytes.Buffer{}, o)
-		if err == nil || !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), c.flag) {
+		if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), c.flag) {
 			t.Errorf("%s: err %v, want an input error naming the flag", c.flag, err)
 		}
 	}

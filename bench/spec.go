@@ -13,49 +13,9 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"fringe/bench/input"
 	"fringe/qkernel"
 )
-
-// ErrInput marks every error caused by the user's input: the spec, a data
-// file, a data value or a parameter that does not fit the data. The command
-// exits with status 2 on such errors and 1 on any other failure.
-var ErrInput = errors.New("bad input")
-
-// InputError is an error in the user's input. File, Line and Key locate it
-// where known (Line 0 and Key "" mean unknown).
-type InputError struct {
-	File string
-	Line int
-	Key  string
-	Err  error
-}
-
-func (e *InputError) Error() string {
-	var b strings.Builder
-	if e.File != "" {
-		b.WriteString(e.File)
-		if e.Line > 0 {
-			fmt.Fprintf(&b, ":%d", e.Line)
-		}
-		b.WriteString(": ")
-	}
-	if e.Key != "" {
-		fmt.Fprintf(&b, "key %s: ", e.Key)
-	}
-	b.WriteString(e.Err.Error())
-	return oneLine(b.String())
-}
-
-// oneLine escapes line breaks, which can reach a message by quoting the
-// user's input, so that every input error stays on one line.
-func oneLine(s string) string {
-	if !strings.ContainsAny(s, "\r\n") {
-		return s
-	}
-	return strings.NewReplacer("\r\n", `\n`, "\n", `\n`, "\r", `\r`).Replace(s)
-}
-
-func (e *InputError) Unwrap() []error { return []error{ErrInput, e.Err} }
 
 // Spec is a parsed experiment specification (see DESIGN.md for the format).
 type Spec struct {
@@ -168,7 +128,7 @@ type rawCV struct {
 func LoadSpec(path string) (*Spec, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, &InputError{File: path, Err: fmt.Errorf("read spec: %w", err)}
+		return nil, &input.Error{File: path, Err: fmt.Errorf("read spec: %w", err)}
 	}
 	s, err := ParseSpec(path, data)
 	if err != nil {
@@ -185,13 +145,13 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
-			return nil, &InputError{File: file, Line: pe.Position.Line, Err: fmt.Errorf("spec syntax: %s", pe.Message)}
+			return nil, &input.Error{File: file, Line: pe.Position.Line, Err: fmt.Errorf("spec syntax: %s", pe.Message)}
 		}
-		return nil, &InputError{File: file, Err: fmt.Errorf("spec: %w", err)}
+		return nil, &input.Error{File: file, Err: fmt.Errorf("spec: %w", err)}
 	}
 	lines := newKeyLines(data)
 	bad := func(key string, format string, args ...any) error {
-		return &InputError{File: file, Line: lines.find(key), Key: key, Err: fmt.Errorf(format, args...)}
+		return &input.Error{File: file, Line: lines.find(key), Key: key, Err: fmt.Errorf(format, args...)}
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		for _, k := range und {
@@ -329,9 +289,9 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 			var ke *keyError
 			if errors.As(err, &ke) {
 				k := key + "." + ke.key
-				return nil, &InputError{File: file, Line: lines.find(k), Key: k, Err: ke.err}
+				return nil, &input.Error{File: file, Line: lines.find(k), Key: k, Err: ke.err}
 			}
-			return nil, &InputError{File: file, Line: lines.find(key), Key: key, Err: err}
+			return nil, &input.Error{File: file, Line: lines.find(key), Key: key, Err: err}
 		}
 		ms.line = lines.find(key)
 		if j, dup := names[ms.Name]; dup {

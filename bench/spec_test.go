@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strings"
 	"testing"
+
+	"fringe/bench/input"
 )
 
 func TestParseSpecFull(t *testing.T) {
@@ -106,9 +108,9 @@ func TestParseSpecErrors(t *testing.T) {
 		{base + "[[dataset]]\nclasses = [\"a\"]\n" + model, "dataset[1].name", 4},
 	} {
 		_, err := ParseSpec("s.toml", []byte(c.src))
-		var ie *InputError
-		if !errors.As(err, &ie) || !errors.Is(err, ErrInput) {
-			t.Errorf("spec %q: error %v, want an InputError", c.src, err)
+		var ie *input.Error
+		if !errors.As(err, &ie) || !errors.Is(err, input.ErrBad) {
+			t.Errorf("spec %q: error %v, want an input.Error", c.src, err)
 			continue
 		}
 		if ie.Key != c.key || ie.Line != c.line {

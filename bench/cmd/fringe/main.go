@@ -11,7 +11,7 @@ import (
 	"os/signal"
 	"syscall"
 
-	"fringe/bench"
+	"fringe/bench/input"
 )
 
 func main() {
@@ -53,7 +53,7 @@ func exitCode(err error) int {
 	switch {
 	case err == nil:
 		return 0
-	case errors.Is(err, errUsage), errors.Is(err, bench.ErrInput):
+	case errors.Is(err, errUsage), errors.Is(err, input.ErrBad):
 		return 2
 	}
 	return 1

@@ -13,6 +13,7 @@ import (
 	"golang.org/x/term"
 
 	"fringe/bench"
+	"fringe/bench/input"
 	"fringe/results"
 )
 
@@ -97,7 +98,7 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 					return fmt.Errorf("interrupted before any task finished; nothing was kept")
 				}
 				return fmt.Errorf("interrupted: %d of %d tasks are finished and kept in %s; run the same command again to resume", pr.Finished(), pr.Total(), partialDir)
-			case errors.Is(err, bench.ErrInput):
+			case errors.Is(err, input.ErrBad):
 				// The run cannot complete with this input: its partial
 				// directory would only be refused or mixed up later.
 				if rerr := pr.Remove(); rerr != nil {

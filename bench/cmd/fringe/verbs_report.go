@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"fringe/bench"
+	"fringe/bench/input"
 	"fringe/results"
 )
 
@@ -46,7 +47,7 @@ func runRank(ctx context.Context, c *command, args []string, stdout, stderr io.W
 		if errors.As(err, &pe) {
 			err = pe.Err
 		}
-		return &bench.InputError{File: path, Err: fmt.Errorf("cannot read the scores: %w", err)}
+		return &input.Error{File: path, Err: fmt.Errorf("cannot read the scores: %w", err)}
 	}
 	t, err := bench.ReadScores(f, path)
 	f.Close()
@@ -130,7 +131,7 @@ func runCompare(ctx context.Context, c *command, args []string, stdout, stderr i
 	for i, dir := range pos {
 		r, err := results.ReadRun(dir)
 		if err != nil {
-			return &bench.InputError{Err: err}
+			return &input.Error{Err: err}
 		}
 		runs[i] = r
 	}
