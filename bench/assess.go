@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/bench/stats"
 	"fringe/datasets"
 	"fringe/qkernel/circuit"
@@ -162,8 +163,8 @@ const (
 	assessKNN      = "knn-k5"
 )
 
-func mustModel(m map[string]any) ModelSpec {
-	ms, err := parseModel(m)
+func mustModel(m map[string]any) modelkit.Spec {
+	ms, err := modelkit.Parse(m)
 	if err != nil {
 		// The tables below are fixed and valid.
 		panic("bench: assessment model: " + err.Error())

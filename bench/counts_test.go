@@ -17,6 +17,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/qkernel/sim"
 )
 
@@ -88,7 +89,7 @@ func measure(t *testing.T, p *Plan, exportDir string, shots int, withPipeline bo
 	}
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
-	head := append([]string(nil), CountsColumns...)
+	head := append([]string(nil), modelkit.CountsColumns...)
 	if withPipeline {
 		head = append(head, "pipeline")
 	}
@@ -141,7 +142,7 @@ func measure(t *testing.T, p *Plan, exportDir string, shots int, withPipeline bo
 								continue // leave some zero outcomes out, as a device does
 							}
 							rec := []string{it.Dataset, strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold), strconv.Itoa(it.Row),
-								strconv.Itoa(a), formatBits(k, q), strconv.Itoa(c)}
+								strconv.Itoa(a), modelkit.FormatBits(k, q), strconv.Itoa(c)}
 							if withPipeline {
 								rec = append(rec, it.Pipeline)
 							}
@@ -248,7 +249,7 @@ func TestCountsClosesLoop(t *testing.T) {
 // instance of the plan (the counts are arbitrary but valid).
 func validCounts(p *Plan, withPipeline bool) string {
 	var b strings.Builder
-	b.WriteString(strings.Join(CountsColumns, ","))
+	b.WriteString(strings.Join(modelkit.CountsColumns, ","))
 	if withPipeline {
 		b.WriteString(",pipeline")
 	}

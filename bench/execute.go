@@ -15,6 +15,7 @@ import (
 
 	"fringe/baselines"
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/results"
@@ -54,11 +55,6 @@ type TaskResult struct {
 	Details []qkernel.Detail // per test instance, for models that report them; else nil
 	Scores  results.Scores
 	Elapsed time.Duration
-}
-
-// detailer is implemented by models that report post-selection details.
-type detailer interface {
-	PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, error)
 }
 
 // Execute runs the tasks of the plan (all, or opt.Tasks) on a worker pool
@@ -271,7 +267,7 @@ func (p *Plan) runModel(ctx context.Context, t Task, where string, Ztr *mat.Dens
 	sp := d.Splits[t.Split]
 	ms := p.Spec.Models[t.Model]
 	m := ms.New(p.modelSeed(t))
-	if ta, ok := m.(taskAware); ok {
+	if ta, ok := m.(modelkit.TaskAware); ok {
 		ta.SetTask(p.taskContext(ctx, t, rowsTr, rowsTe))
 	}
 	if err := m.Fit(Ztr, ytr, len(d.Data.Classes)); err != nil {
@@ -279,7 +275,7 @@ func (p *Plan) runModel(ctx context.Context, t Task, where string, Ztr *mat.Dens
 	}
 	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test)}
 	var err error
-	if dm, ok := m.(detailer); ok {
+	if dm, ok := m.(modelkit.Detailer); ok {
 		r.Pred, r.Details, err = dm.PredictDetail(Zte)
 	} else {
 		r.Pred, err = m.Predict(Zte)

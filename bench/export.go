@@ -14,6 +14,7 @@ import (
 	"golang.org/x/sync/errgroup"
 
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
@@ -53,7 +54,7 @@ type exportSettings struct {
 
 // resolveExport picks the model whose settings the circuits use.
 func (p *Plan) resolveExport(name string) (exportSettings, error) {
-	pick := func(m ModelSpec) exportSettings {
+	pick := func(m modelkit.Spec) exportSettings {
 		b, _ := m.Params["balance"].(bool)
 		k, _ := m.Params["train_subset"].(int)
 		return exportSettings{model: m.Name, balance: b, subset: k}
@@ -295,7 +296,7 @@ func exportText(it exportItem, set exportSettings) ([]byte, error) {
 	fmt.Fprintf(&b, "// %d training vectors (%s), dataset rows %s\n", len(it.TrainRows), weights, strings.Join(rows, " "))
 	var cls []string
 	for k, c := range it.Classes {
-		cls = append(cls, fmt.Sprintf("%s = %s", formatBits(k, nc), input.OneLine(c)))
+		cls = append(cls, fmt.Sprintf("%s = %s", modelkit.FormatBits(k, nc), input.OneLine(c)))
 	}
 	order := "class_out[0]"
 	if nc > 1 {

@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/qkernel/sim"
 )
 
@@ -245,16 +246,16 @@ func TestBits(t *testing.T) {
 		k, n int
 		s    string
 	}{{0, 1, "0"}, {1, 1, "1"}, {2, 2, "10"}, {1, 2, "01"}, {5, 3, "101"}, {6, 3, "110"}} {
-		if got := formatBits(c.k, c.n); got != c.s {
-			t.Errorf("formatBits(%d, %d) = %s, want %s", c.k, c.n, got, c.s)
+		if got := modelkit.FormatBits(c.k, c.n); got != c.s {
+			t.Errorf("modelkit.FormatBits(%d, %d) = %s, want %s", c.k, c.n, got, c.s)
 		}
-		if k, ok := parseBits(c.s, c.n); !ok || k != c.k {
-			t.Errorf("parseBits(%s, %d) = %d %v, want %d", c.s, c.n, k, ok, c.k)
+		if k, ok := modelkit.ParseBits(c.s, c.n); !ok || k != c.k {
+			t.Errorf("modelkit.ParseBits(%s, %d) = %d %v, want %d", c.s, c.n, k, ok, c.k)
 		}
 	}
 	for _, s := range []string{"", "2", "0b1", " 1"} {
-		if _, ok := parseBits(s, 1); ok && s != "" {
-			t.Errorf("parseBits(%q, 1) accepted", s)
+		if _, ok := modelkit.ParseBits(s, 1); ok && s != "" {
+			t.Errorf("modelkit.ParseBits(%q, 1) accepted", s)
 		}
 	}
 }

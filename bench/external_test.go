@@ -16,6 +16,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/datasets"
 )
 
@@ -373,9 +374,9 @@ func TestCommandFailures(t *testing.T) {
 			if errors.Is(err, input.ErrBad) {
 				t.Errorf("a failing program is a failed run, not bad input: %v", err)
 			}
-			var ce *CommandError
+			var ce *modelkit.CommandError
 			if !errors.As(err, &ce) {
-				t.Fatalf("error %v is not a *CommandError", err)
+				t.Fatalf("error %v is not a *modelkit.CommandError", err)
 			}
 			msg := err.Error()
 			want := append([]string{"model helper", "task iris/std/helper/0/"}, c.want...)

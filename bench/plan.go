@@ -12,6 +12,7 @@ import (
 	"fringe/baselines"
 	"fringe/bench/cv"
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
@@ -25,6 +26,8 @@ type Plan struct {
 	Spec     *Spec
 	Datasets []*PlannedDataset
 	Tasks    []Task
+
+	layout *modelkit.Layout // what models may know of the run (TaskContext.Layout)
 }
 
 // PlannedDataset is a loaded dataset with its splits (all repeats).
@@ -96,6 +99,7 @@ func NewPlan(s *Spec) (*Plan, error) {
 			}
 		}
 	}
+	p.layout = p.newLayout()
 	return p, nil
 }
 
@@ -220,7 +224,7 @@ func (p *Plan) checkModels() error {
 		case "knn":
 			key, k = "k", m.Params["k"].(int)
 		case "interference", "counts":
-			key, k = "train_subset", paramInt(m.Params["train_subset"])
+			key, k = "train_subset", modelkit.ParamInt(m.Params["train_subset"])
 		default:
 			continue
 		}
@@ -262,7 +266,7 @@ func (p *Plan) checkModels() error {
 // immediate and the same on every run.
 func (p *Plan) checkQubits() error {
 	for mi, m := range p.Spec.Models {
-		q := m.qk
+		q := m.Interference
 		if q == nil || q.Mode == qkernel.ModeExact || q.Mode == qkernel.ModeShots {
 			continue
 		}

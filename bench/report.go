@@ -7,6 +7,7 @@ import (
 	"slices"
 	"strings"
 
+	"fringe/bench/modelkit"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -153,7 +154,7 @@ func protocol(name string, seed uint64, cv CVSpec) results.Protocol {
 // their names joined by "+" and no strength (such a variant appears in
 // the per-mode table but in no noise sweep). A string "noise" with a
 // numeric "strength" is read too.
-func (m ModelSpec) Variant() results.Variant {
+func VariantOf(m modelkit.Spec) results.Variant {
 	v := results.Variant{Model: m.Name, Kind: m.Kind, Strength: math.NaN()}
 	if m.Kind != "interference" && m.Kind != "counts" {
 		v.Family = m.Name
@@ -164,11 +165,11 @@ func (m ModelSpec) Variant() results.Variant {
 	if v.Mode == "" {
 		v.Mode = "exact"
 	}
-	v.Shots = paramInt(m.Params["shots"])
+	v.Shots = modelkit.ParamInt(m.Params["shots"])
 	switch nz := m.Params["noise"].(type) {
 	case string:
 		v.Noise = nz
-		v.Strength = paramFloat(m.Params["strength"])
+		v.Strength = modelkit.ParamFloat(m.Params["strength"])
 	case map[string]any:
 		var keys []string
 		for k := range nz {
@@ -181,41 +182,17 @@ func (m ModelSpec) Variant() results.Variant {
 			if arr, ok := x.([]any); ok && len(arr) > 0 {
 				x = arr[0]
 			}
-			v.Strength = paramFloat(x)
+			v.Strength = modelkit.ParamFloat(x)
 		}
 	}
 	v.Family = "interference"
-	if k := paramInt(m.Params["train_subset"]); k > 0 {
+	if k := modelkit.ParamInt(m.Params["train_subset"]); k > 0 {
 		v.Family += fmt.Sprintf("-k%d", k)
 	}
 	if b, _ := m.Params["balance"].(bool); b {
 		v.Family += "-balanced"
 	}
 	return v
-}
-
-func paramInt(x any) int {
-	switch v := x.(type) {
-	case int:
-		return v
-	case int64:
-		return int(v)
-	case float64:
-		return int(v)
-	}
-	return 0
-}
-
-func paramFloat(x any) float64 {
-	switch v := x.(type) {
-	case int:
-		return float64(v)
-	case int64:
-		return float64(v)
-	case float64:
-		return v
-	}
-	return math.NaN()
 }
 
 // ReportInput is what Analyse needs: the records of a run, its protocol
@@ -244,7 +221,7 @@ func (p *Plan) reportInput(res []TaskResult, preds []results.Prediction, folds [
 		Label: "tab:" + p.Spec.Name,
 	}
 	for _, m := range p.Spec.Models {
-		in.Variants = append(in.Variants, m.Variant())
+		in.Variants = append(in.Variants, VariantOf(m))
 	}
 	return in
 }

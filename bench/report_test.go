@@ -16,6 +16,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -67,7 +68,7 @@ func spec(t *testing.T, text string) *Spec {
 
 // modeVariants describes the interference classifier exact, with three
 // shot budgets and under one noise model at three strengths, and two
-// baselines, as ModelSpec.Variant would from a spec with those modes.
+// baselines, as modelkit.Spec.Variant would from a spec with those modes.
 func modeVariants() []results.Variant {
 	nan := math.NaN()
 	q := func(model, mode string, shots int, noise string, strength float64) results.Variant {
@@ -269,12 +270,12 @@ func TestVariantFromParams(t *testing.T) {
 		{map[string]any{"mode": "noisy", "noise": "amplitude_damping", "strength": 0.2}, "interference", "amplitude_damping 0.2", 0.2},
 	}
 	for _, c := range cases {
-		v := ModelSpec{Kind: "interference", Name: "q", Params: c.params}.Variant()
+		v := VariantOf(modelkit.Spec{Kind: "interference", Name: "q", Params: c.params})
 		if !v.Interference || v.Family != c.family || v.Describe() != c.describe || !(v.Strength == c.strength || math.IsNaN(v.Strength) && math.IsNaN(c.strength)) {
 			t.Errorf("%v: got family %q, %q, strength %v; want %q, %q, %v", c.params, v.Family, v.Describe(), v.Strength, c.family, c.describe, c.strength)
 		}
 	}
-	if v := (ModelSpec{Kind: "knn", Name: "knn-k5", Params: map[string]any{"k": 5}}).Variant(); v.Interference || v.Describe() != "" {
+	if v := VariantOf(modelkit.Spec{Kind: "knn", Name: "knn-k5", Params: map[string]any{"k": 5}}); v.Interference || v.Describe() != "" {
 		t.Errorf("knn variant %+v", v)
 	}
 }

@@ -302,29 +302,11 @@ func (p *Plan) Fingerprint() string {
 }
 
 // modelInputFiles lists, in model order, the files the run's models read
-// while they run: the counts file of a counts model and every argument of a
-// command model that names an existing regular file (relative to the spec's
-// folder, where the program runs).
+// while they run (Spec.InputFiles).
 func (p *Plan) modelInputFiles() []string {
 	var out []string
 	for _, m := range p.Spec.Models {
-		switch m.Kind {
-		case "counts":
-			if f, ok := m.Params["file"].(string); ok {
-				out = append(out, countsPath(p, f))
-			}
-		case "command":
-			run, _ := m.Params["run"].([]string)
-			for _, arg := range run {
-				path := arg
-				if !filepath.IsAbs(path) && p.Spec.Dir != "" {
-					path = filepath.Join(p.Spec.Dir, path)
-				}
-				if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
-					out = append(out, path)
-				}
-			}
-		}
+		out = append(out, m.InputFiles(p.Spec.Dir)...)
 	}
 	return out
 }

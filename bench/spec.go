@@ -4,17 +4,16 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"math"
 	"os"
 	"path/filepath"
-	"sort"
 	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 
 	"fringe/bench/input"
-	"fringe/qkernel"
+	"fringe/bench/modelkit"
+	"fringe/datasets"
 )
 
 // Spec is a parsed experiment specification (see DESIGN.md for the format).
@@ -24,7 +23,7 @@ type Spec struct {
 	Datasets  []DatasetSpec
 	Pipelines []string
 	CV        CVSpec
-	Models    []ModelSpec
+	Models    []modelkit.Spec
 
 	File   string // path the spec was read from, or a description of a built-in spec
 	Dir    string // directory relative CSV paths are resolved against ("" = working directory)
@@ -81,18 +80,6 @@ type CVSpec struct {
 	Test         TestKind // paired test of two models on a dataset (report.go)
 	Alpha        float64  // significance level of the tests; 0 means DefaultTestAlpha
 	Reference    string   // model the others are tested against; "" = best classical baseline per dataset
-}
-
-// ModelSpec is one model configuration: its kind, its display name and its
-// validated parameters. New builds a fresh, unfitted model from it.
-type ModelSpec struct {
-	Kind   string
-	Name   string // display name (the spec's `name`, or a label built from kind and params)
-	Params map[string]any
-
-	line  int
-	build builder
-	qk    *qkernel.Classifier // interference models: the configuration
 }
 
 type rawSpec struct {
@@ -284,16 +271,16 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 	names := map[string]int{}
 	for i, m := range raw.Model {
 		key := fmt.Sprintf("model[%d]", i+1)
-		ms, err := parseModel(m)
+		ms, err := modelkit.Parse(m)
 		if err != nil {
-			var ke *keyError
+			var ke *modelkit.KeyError
 			if errors.As(err, &ke) {
-				k := key + "." + ke.key
-				return nil, &input.Error{File: file, Line: lines.find(k), Key: k, Err: ke.err}
+				k := key + "." + ke.Key
+				return nil, &input.Error{File: file, Line: lines.find(k), Key: k, Err: ke.Err}
 			}
 			return nil, &input.Error{File: file, Line: lines.find(key), Key: key, Err: err}
 		}
-		ms.line = lines.find(key)
+		ms.Line = lines.find(key)
 		if j, dup := names[ms.Name]; dup {
 			return nil, bad(key, "model name %q is also used by model[%d]; give one of them a distinct `name`", ms.Name, j)
 		}
@@ -306,143 +293,6 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 		}
 	}
 	return s, nil
-}
-
-// keyError is a problem with one key of a table.
-type keyError struct {
-	key string
-	err error
-}
-
-func (e *keyError) Error() string { return e.key + ": " + e.err.Error() }
-func (e *keyError) Unwrap() error { return e.err }
-
-func keyErr(key, format string, args ...any) error {
-	return &keyError{key: key, err: fmt.Errorf(format, args...)}
-}
-
-// params reads typed values from a model table and remembers which keys
-// were used, so that unknown keys can be reported.
-type params struct {
-	m    map[string]any
-	used map[string]bool
-	err  error
-}
-
-func newParams(m map[string]any) *params {
-	return &params{m: m, used: map[string]bool{"kind": true, "name": true}}
-}
-
-func (p *params) fail(key, format string, args ...any) {
-	if p.err == nil {
-		p.err = keyErr(key, format, args...)
-	}
-}
-
-func (p *params) has(key string) bool { _, ok := p.m[key]; return ok }
-
-func (p *params) str(key, def string) string {
-	p.used[key] = true
-	v, ok := p.m[key]
-	if !ok {
-		return def
-	}
-	s, ok := v.(string)
-	if !ok {
-		p.fail(key, "want a string, got %v", v)
-		return def
-	}
-	return s
-}
-
-func (p *params) integer(key string, def int) int {
-	p.used[key] = true
-	v, ok := p.m[key]
-	if !ok {
-		return def
-	}
-	i, ok := v.(int64)
-	if !ok {
-		p.fail(key, "want an integer, got %v", v)
-		return def
-	}
-	if i > math.MaxInt32 || i < math.MinInt32 {
-		p.fail(key, "integer %d out of range", i)
-		return def
-	}
-	return int(i)
-}
-
-func (p *params) number(key string, def float64) float64 {
-	p.used[key] = true
-	v, ok := p.m[key]
-	if !ok {
-		return def
-	}
-	switch x := v.(type) {
-	case int64:
-		return float64(x)
-	case float64:
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			p.fail(key, "want a finite number, got %v", x)
-			return def
-		}
-		return x
-	}
-	p.fail(key, "want a number, got %v", v)
-	return def
-}
-
-func (p *params) boolean(key string, def bool) bool {
-	p.used[key] = true
-	v, ok := p.m[key]
-	if !ok {
-		return def
-	}
-	b, ok := v.(bool)
-	if !ok {
-		p.fail(key, "want true or false, got %v", v)
-		return def
-	}
-	return b
-}
-
-// table returns a sub-table (e.g. noise = {...}).
-func (p *params) table(key string) map[string]any {
-	p.used[key] = true
-	v, ok := p.m[key]
-	if !ok {
-		return nil
-	}
-	t, ok := v.(map[string]any)
-	if !ok {
-		p.fail(key, "want a table, got %v", v)
-		return nil
-	}
-	return t
-}
-
-// finish reports the first error or the first unknown key (sorted).
-func (p *params) finish(kind string) error {
-	if p.err != nil {
-		return p.err
-	}
-	var unknown []string
-	for k := range p.m {
-		if !p.used[k] {
-			unknown = append(unknown, k)
-		}
-	}
-	if len(unknown) > 0 {
-		sort.Strings(unknown)
-		var allowed []string
-		for k := range p.used {
-			allowed = append(allowed, k)
-		}
-		sort.Strings(allowed)
-		return keyErr(unknown[0], "unknown key for kind %q (allowed: %s)", kind, strings.Join(allowed, ", "))
-	}
-	return nil
 }
 
 // keyLines finds the line of a key path such as "model[2].gamma" or
@@ -508,4 +358,10 @@ func (kl keyLines) find(path string) int {
 		return n + 1
 	}
 	return headerLine
+}
+
+// checkPipeline validates a pipeline string without fitting anything.
+func checkPipeline(s string) error {
+	_, err := datasets.ParsePipeline(s)
+	return err
 }

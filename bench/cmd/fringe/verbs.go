@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"fringe/bench"
+	"fringe/bench/modelkit"
 	"fringe/datasets"
 )
 
@@ -160,12 +161,12 @@ func runList(ctx context.Context, c *command, args []string, stdout, stderr io.W
 		w.item(st.Syntax, st.Description)
 	}
 	w.head("MODELS ([[model]] kind = ...)")
-	for _, m := range bench.ModelInfos() {
+	for _, m := range modelkit.Infos() {
 		w.item(m.Kind, m.Description)
 		w.more("keys: " + orNone(m.Keys))
 	}
 	w.head("NOISE (interference models with mode = \"noisy\": noise = { ... })")
-	for _, n := range bench.NoiseKeys {
+	for _, n := range modelkit.NoiseKeys {
 		w.item(n.Key, n.Meaning)
 	}
 	return w.err

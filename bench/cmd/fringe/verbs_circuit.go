@@ -10,6 +10,7 @@ import (
 	"text/tabwriter"
 
 	"fringe/bench"
+	"fringe/bench/modelkit"
 	"fringe/qkernel/circuit"
 )
 
@@ -120,7 +121,7 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 	}
 	fmt.Fprintf(stdout, "wrote %d OpenQASM 3 programs (%.1f MB, at most %d qubits) and index.csv to %s\n", sum.Circuits, float64(sum.Bytes)/1e6, sum.MaxQubits, sum.Dir)
 	fmt.Fprintf(stdout, "circuits: %s\n", settings)
-	fmt.Fprintf(stdout, "report outcomes as CSV with columns %s (and pipeline when the spec has several); class is the bit string class_out[q-1]...class_out[0]\n", strings.Join(bench.CountsColumns, ","))
+	fmt.Fprintf(stdout, "report outcomes as CSV with columns %s (and pipeline when the spec has several); class is the bit string class_out[q-1]...class_out[0]\n", strings.Join(modelkit.CountsColumns, ","))
 	return nil
 }
 

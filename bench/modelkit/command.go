@@ -1,4 +1,4 @@
-package bench
+package modelkit
 
 import (
 	"bytes"
@@ -19,76 +19,8 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/baselines"
-	"fringe/datasets"
 	"fringe/qkernel"
 )
-
-// TaskContext is what a model learns about its task beyond the matrices
-// that Fit and Predict receive: where the rows come from, how the features
-// and classes are named, the task's seeds and the run's context. Models
-// that run outside the process (kind "command") or read measured outcomes
-// (kind "counts") need it; the runner hands it to every model that
-// implements taskAware, right after building the model and before Fit.
-type TaskContext struct {
-	Ctx      context.Context // cancelled when the run stops
-	Key      string          // the task key dataset/pipeline/model/repeat/fold
-	Model    string          // the model's display name
-	Dataset  string          // the dataset's display name
-	Pipeline string
-	Repeat   int
-	Fold     int
-	Features []string // feature names after the pipeline
-	Classes  []string // the dataset's classes, in class order
-	// TrainRows and TestRows are the dataset rows (0-based, as loaded) of
-	// the rows of the matrices passed to Fit and Predict, in that order.
-	TrainRows, TestRows []int
-	// Seed is the task's model seed (the one Spec.Models[i].New receives).
-	Seed uint64
-	// InterferenceSeed is the seed every interference model of the run
-	// gets on this split; the circuits of `fringe circuit -export` draw
-	// their training subsets from it, and so does a counts model.
-	InterferenceSeed uint64
-	// Dir is the folder relative paths of the spec are resolved against
-	// ("" is the working directory).
-	Dir string
-
-	plan *Plan
-}
-
-// taskAware is implemented by models that need their TaskContext.
-type taskAware interface {
-	SetTask(TaskContext)
-}
-
-// taskContext describes task t for a taskAware model; rowsTr and rowsTe are
-// the dataset rows of the task's training and test matrices.
-func (p *Plan) taskContext(ctx context.Context, t Task, rowsTr, rowsTe []int) TaskContext {
-	d := p.Datasets[t.Dataset]
-	sp := d.Splits[t.Split]
-	ps := p.Spec.Pipelines[t.Pipeline]
-	features := d.Data.Features
-	if pipe, err := datasets.ParsePipeline(ps); err == nil { // runUnit parsed it already
-		features = pipe.FeatureNames(d.Data.Features)
-	}
-	return TaskContext{
-		Ctx: ctx, Key: p.Key(t), Model: p.Spec.Models[t.Model].Name,
-		Dataset: d.Name, Pipeline: ps, Repeat: sp.Repeat, Fold: sp.Fold,
-		Features: features, Classes: d.Data.Classes,
-		TrainRows: rowsTr, TestRows: rowsTe,
-		Seed: p.modelSeed(t), InterferenceSeed: p.interferenceSeed(t.Dataset, t.Split),
-		Dir: p.Spec.Dir, plan: p,
-	}
-}
-
-// interferenceSeed is the seed of the interference models on split si of
-// dataset di: the value modelSeed gives them (tested), so that exported
-// circuits, counts models and simulated shots draw the same training
-// subsets and random streams.
-func (p *Plan) interferenceSeed(di, si int) uint64 {
-	d := p.Datasets[di]
-	sp := d.Splits[si]
-	return Seed(p.Spec.Seed, "interference", d.Name, fmt.Sprint(sp.Repeat), fmt.Sprint(sp.Fold))
-}
 
 // CommandStderrLines is how many of the last lines of a failed program's
 // standard error its error message quotes.
@@ -98,7 +30,7 @@ const CommandStderrLines = 10
 // program and its first arguments, a non-empty array of strings) and
 // timeout (seconds, optional). It sets the model's params and builder and
 // returns its default label.
-func parseCommand(p *params, ms *ModelSpec) string {
+func parseCommand(p *params, ms *Spec) string {
 	run := stringList(p, "run")
 	timeout := p.number("timeout", 0)
 	if p.err != nil {
@@ -131,30 +63,6 @@ func parseCommand(p *params, ms *ModelSpec) string {
 	return "command-" + labelSafe(base)
 }
 
-// stringList reads an array of strings.
-func stringList(p *params, key string) []string {
-	p.used[key] = true
-	v, ok := p.m[key]
-	if !ok {
-		return nil
-	}
-	arr, ok := v.([]any)
-	if !ok {
-		p.fail(key, "want an array of strings, got %v", v)
-		return nil
-	}
-	out := make([]string, len(arr))
-	for i, x := range arr {
-		s, ok := x.(string)
-		if !ok {
-			p.fail(key, "want an array of strings, element %d is %v", i+1, x)
-			return nil
-		}
-		out[i] = s
-	}
-	return out
-}
-
 // labelSafe replaces the characters a model label may not hold (commas,
 // quotes, line breaks) and spaces by '_'.
 func labelSafe(s string) string {
@@ -184,23 +92,23 @@ type commandModel struct {
 
 var (
 	_ baselines.Model = (*commandModel)(nil)
-	_ taskAware       = (*commandModel)(nil)
-	_ detailer        = (*commandModel)(nil)
+	_ TaskAware       = (*commandModel)(nil)
+	_ Detailer        = (*commandModel)(nil)
 )
 
-// SetTask implements taskAware.
+// SetTask implements TaskAware.
 func (m *commandModel) SetTask(tc TaskContext) { m.task, m.hasCtx = tc, true }
 
 // Fit keeps the training part for Predict (which runs the program).
 func (m *commandModel) Fit(X *mat.Dense, y []int, nClass int) error {
 	if !m.hasCtx {
-		return fmt.Errorf("bench: command model: no task context (the model runs only inside a run)")
+		return fmt.Errorf("modelkit: command model: no task context (the model runs only inside a run)")
 	}
 	r, c := X.Dims()
 	if r != len(y) || r != len(m.task.TrainRows) || c != len(m.task.Features) || nClass != len(m.task.Classes) {
 		// The runner builds the context from the same split, so this is
 		// an internal error, reported rather than written into TRAIN.
-		return fmt.Errorf("bench: command model: %dx%d training matrix, %d labels, %d classes; the task has %d rows, %d feature names, %d classes",
+		return fmt.Errorf("modelkit: command model: %dx%d training matrix, %d labels, %d classes; the task has %d rows, %d feature names, %d classes",
 			r, c, len(y), nClass, len(m.task.TrainRows), len(m.task.Features), len(m.task.Classes))
 	}
 	m.Xtr, m.ytr = X, y
@@ -220,11 +128,11 @@ func (m *commandModel) Predict(X *mat.Dense) ([]int, error) {
 // 0 and Exact the prediction. Without such columns the details are nil.
 func (m *commandModel) PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, error) {
 	if m.Xtr == nil {
-		return nil, nil, fmt.Errorf("bench: command model: %w", baselines.ErrNotFitted)
+		return nil, nil, fmt.Errorf("modelkit: command model: %w", baselines.ErrNotFitted)
 	}
 	r, c := X.Dims()
 	if r != len(m.task.TestRows) || c != len(m.task.Features) {
-		return nil, nil, fmt.Errorf("bench: command model: %dx%d test matrix; the task has %d test rows, %d feature names", r, c, len(m.task.TestRows), len(m.task.Features))
+		return nil, nil, fmt.Errorf("modelkit: command model: %dx%d test matrix; the task has %d test rows, %d feature names", r, c, len(m.task.TestRows), len(m.task.Features))
 	}
 	ctx := m.task.Ctx
 	if ctx == nil {
@@ -232,7 +140,7 @@ func (m *commandModel) PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, err
 	}
 	dir, err := os.MkdirTemp("", "fringe-task-")
 	if err != nil {
-		return nil, nil, fmt.Errorf("bench: command model: temporary folder: %w", err)
+		return nil, nil, fmt.Errorf("modelkit: command model: temporary folder: %w", err)
 	}
 	keep := false
 	defer func() {
@@ -242,11 +150,11 @@ func (m *commandModel) PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, err
 	}()
 	train, test, out := filepath.Join(dir, "train.csv"), filepath.Join(dir, "test.csv"), filepath.Join(dir, "out.csv")
 	if err := m.writeInputs(train, test, X); err != nil {
-		return nil, nil, fmt.Errorf("bench: command model: %w", err)
+		return nil, nil, fmt.Errorf("modelkit: command model: %w", err)
 	}
 	stderr, runErr := m.exec(ctx, train, test, out)
 	if ctx.Err() != nil {
-		return nil, nil, fmt.Errorf("bench: command model: %w", ctx.Err())
+		return nil, nil, fmt.Errorf("modelkit: command model: %w", ctx.Err())
 	}
 	fail := func(reason string) error {
 		keep = true
@@ -275,7 +183,7 @@ type CommandError struct {
 
 func (e *CommandError) Error() string {
 	var b strings.Builder
-	fmt.Fprintf(&b, "bench: program %q: %s", e.Program, e.Reason)
+	fmt.Fprintf(&b, "modelkit: program %q: %s", e.Program, e.Reason)
 	if len(e.Stderr) > 0 {
 		fmt.Fprintf(&b, "; last lines of its stderr: %s", strings.Join(e.Stderr, " | "))
 	} else {

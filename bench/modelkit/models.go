@@ -1,30 +1,76 @@
-package bench
+package modelkit
 
 import (
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 
 	"fringe/baselines"
-	"fringe/datasets"
+	"fringe/qkernel"
 )
 
 // builder makes a fresh, unfitted model for one task. seed is the task's
 // seed, derived from the run seed and the task key.
 type builder func(seed uint64) baselines.Model
 
-// New builds a fresh, unfitted model for a task with the given seed.
-func (m ModelSpec) New(seed uint64) baselines.Model { return m.build(seed) }
+// Spec is one validated model configuration of a spec's [[model]] table:
+// its kind, its display name and its parameters. New builds a fresh,
+// unfitted model from it.
+type Spec struct {
+	Kind   string
+	Name   string         // display name (the table's `name`, or a label built from kind and params)
+	Params map[string]any // the validated parameters, by key
+	Line   int            // line of the table in the spec file (0 if unknown); set by the spec parser
 
-// ModelInfo describes a model kind for `fringe list`.
-type ModelInfo struct {
+	// Interference is the configuration of an interference model (nil for
+	// other kinds); its Seed is set per task by New.
+	Interference *qkernel.Classifier
+
+	build builder
+}
+
+// New builds a fresh, unfitted model for a task with the given seed.
+func (m Spec) New(seed uint64) baselines.Model { return m.build(seed) }
+
+// InputFiles lists the files the model reads while it runs, resolved
+// against dir (the spec's folder): the counts file of a counts model, and
+// every argument of a command model that names an existing regular file
+// (its script, say; the program runs in dir). A change to one of them
+// between sessions must not mix old and new results, so the run's
+// fingerprint covers them.
+func (m Spec) InputFiles(dir string) []string {
+	var out []string
+	switch m.Kind {
+	case "counts":
+		if f, ok := m.Params["file"].(string); ok {
+			out = append(out, countsPath(dir, f))
+		}
+	case "command":
+		run, _ := m.Params["run"].([]string)
+		for _, arg := range run {
+			path := arg
+			if !filepath.IsAbs(path) && dir != "" {
+				path = filepath.Join(dir, path)
+			}
+			if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
+				out = append(out, path)
+			}
+		}
+	}
+	return out
+}
+
+// Info describes a model kind for `fringe list`.
+type Info struct {
 	Kind, Keys, Description string
 }
 
-// ModelInfos lists the model kinds a spec may use.
-func ModelInfos() []ModelInfo {
-	return []ModelInfo{
+// Infos lists the model kinds a spec may use.
+func Infos() []Info {
+	return []Info{
 		{"interference", "mode, balance, shots, train_subset, noise, method, trajectories", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise); balance = true weights the index register by 1/(C*M_k)"},
 		{"knn", "k, metric, weights", "k-nearest neighbours; metric euclidean|manhattan|cosine; weights uniform|distance; ties: nearer then lower index, vote ties to the first class"},
 		{"svm", "kernel, C, gamma, degree, coef0, tol", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; one-vs-one"},
@@ -35,18 +81,21 @@ func ModelInfos() []ModelInfo {
 	}
 }
 
-// parseModel validates one [[model]] table.
-func parseModel(m map[string]any) (ModelSpec, error) {
+// Parse validates one [[model]] table (as decoded from TOML: strings,
+// int64, float64, bool, []any and map[string]any values) and returns its
+// Spec. Errors about one key are a *KeyError naming the key (for a noise
+// key, "noise.<key>"); the spec parser adds the file, line and table.
+func Parse(m map[string]any) (Spec, error) {
 	p := newParams(m)
 	kind := p.str("kind", "")
 	if p.err != nil {
-		return ModelSpec{}, p.err
+		return Spec{}, p.err
 	}
 	name := p.str("name", "")
 	if p.err != nil {
-		return ModelSpec{}, p.err
+		return Spec{}, p.err
 	}
-	ms := ModelSpec{Kind: kind, Params: map[string]any{}}
+	ms := Spec{Kind: kind, Params: map[string]any{}}
 	var label string
 	switch kind {
 	case "":
@@ -64,7 +113,7 @@ func parseModel(m map[string]any) (ModelSpec, error) {
 			c.Seed = seed
 			return &c
 		}
-		ms.qk = &q
+		ms.Interference = &q
 	case "knn":
 		k := p.integer("k", 5)
 		metricS := p.str("metric", "euclidean")
@@ -180,7 +229,7 @@ func parseModel(m map[string]any) (ModelSpec, error) {
 
 func kindList() string {
 	var ks []string
-	for _, mi := range ModelInfos() {
+	for _, mi := range Infos() {
 		ks = append(ks, mi.Kind)
 	}
 	return strings.Join(ks, ", ")
@@ -194,8 +243,30 @@ func fmtNum(v float64) string {
 	return strconv.FormatFloat(v, 'g', -1, 64)
 }
 
-// checkPipeline validates a pipeline string without fitting anything.
-func checkPipeline(s string) error {
-	_, err := datasets.ParsePipeline(s)
-	return err
+// ParamInt reads an integer parameter value as Spec.Params holds it (int,
+// or int64/float64 as TOML decodes it); anything else is 0.
+func ParamInt(x any) int {
+	switch v := x.(type) {
+	case int:
+		return v
+	case int64:
+		return int(v)
+	case float64:
+		return int(v)
+	}
+	return 0
+}
+
+// ParamFloat reads a numeric parameter value (int, int64 or float64);
+// anything else is NaN.
+func ParamFloat(x any) float64 {
+	switch v := x.(type) {
+	case int:
+		return float64(v)
+	case int64:
+		return float64(v)
+	case float64:
+		return v
+	}
+	return math.NaN()
 }

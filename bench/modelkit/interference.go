@@ -1,4 +1,4 @@
-package bench
+package modelkit
 
 import (
 	"errors"
@@ -103,9 +103,9 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 		q.Channels.GlobalDepolarizing = one("global_depolarizing", "gdep")
 		q.Channels.AncillaDephasing = one("ancilla_dephasing", "adeph")
 		if err := np.finish("noise"); err != nil {
-			var ke *keyError
+			var ke *KeyError
 			if errors.As(err, &ke) {
-				p.fail("noise."+ke.key, "%v", ke.err)
+				p.fail("noise."+ke.Key, "%v", ke.Err)
 			} else {
 				p.fail("noise", "%v", err)
 			}

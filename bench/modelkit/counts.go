@@ -1,4 +1,4 @@
-package bench
+package modelkit
 
 import (
 	"bytes"
@@ -28,7 +28,7 @@ var CountsColumns = []string{"dataset", "repeat", "fold", "row", "ancilla", "cla
 // the circuits that were run; they decide the exact-mode decision reported
 // beside every prediction). It sets the model's params and builder and
 // returns its default label.
-func parseCounts(p *params, ms *ModelSpec) string {
+func parseCounts(p *params, ms *Spec) string {
 	file := p.str("file", "")
 	balance := p.boolean("balance", false)
 	subset := p.integer("train_subset", 0)
@@ -80,15 +80,15 @@ type countsModel struct {
 
 var (
 	_ baselines.Model = (*countsModel)(nil)
-	_ taskAware       = (*countsModel)(nil)
-	_ detailer        = (*countsModel)(nil)
+	_ TaskAware       = (*countsModel)(nil)
+	_ Detailer        = (*countsModel)(nil)
 )
 
-// SetTask implements taskAware: it loads the counts file (once per plan)
-// and checks it against the whole plan.
+// SetTask implements TaskAware: it loads the counts file (once per run)
+// and checks it against the whole run (tc.Layout).
 func (m *countsModel) SetTask(tc TaskContext) {
 	m.task = tc
-	m.table, m.err = m.src.load(tc.plan)
+	m.table, m.err = m.src.load(tc.Layout)
 }
 
 // Fit fits the exact classifier on the training part (for the exact-mode
@@ -100,7 +100,7 @@ func (m *countsModel) Fit(X *mat.Dense, y []int, nClass int) error {
 		return m.err
 	}
 	if m.table == nil {
-		return fmt.Errorf("bench: counts model: no task context (the model runs only inside a run)")
+		return fmt.Errorf("modelkit: counts model: no task context (the model runs only inside a run)")
 	}
 	q := &qkernel.Classifier{Balance: m.balance, TrainSubset: m.subset, Seed: m.task.InterferenceSeed}
 	if err := q.Fit(X, y, nClass); err != nil {
@@ -120,7 +120,7 @@ func (m *countsModel) Predict(X *mat.Dense) ([]int, error) {
 // probabilities and the exact-mode decision.
 func (m *countsModel) PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, error) {
 	if m.qk == nil {
-		return nil, nil, fmt.Errorf("bench: counts model: %w", baselines.ErrNotFitted)
+		return nil, nil, fmt.Errorf("modelkit: counts model: %w", baselines.ErrNotFitted)
 	}
 	tc := m.task
 	counts := make([][]int, len(tc.TestRows))
@@ -129,7 +129,7 @@ func (m *countsModel) PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, erro
 		if !ok {
 			// readCounts checked every test instance of the plan: an
 			// internal error.
-			return nil, nil, fmt.Errorf("bench: counts model: no counts for task %s, row %d, after the check", tc.Key, row)
+			return nil, nil, fmt.Errorf("modelkit: counts model: no counts for task %s, row %d, after the check", tc.Key, row)
 		}
 		counts[i] = c
 	}
@@ -141,10 +141,10 @@ func (m *countsModel) PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, erro
 type countsSource struct {
 	file string // as written in the spec
 
-	mu    sync.Mutex
-	plan  *Plan
-	table *countsTable
-	err   error
+	mu     sync.Mutex
+	layout *Layout
+	table  *countsTable
+	err    error
 }
 
 // countsKey identifies a test instance (pipeline "" when the file has no
@@ -168,21 +168,24 @@ func (t *countsTable) pipelineOf(p string) string {
 	return ""
 }
 
-// load reads and checks the file for plan p (cached for the last plan).
-func (s *countsSource) load(p *Plan) (*countsTable, error) {
+// load reads and checks the file for the run l (cached for the last run).
+func (s *countsSource) load(l *Layout) (*countsTable, error) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	if s.plan != p {
-		s.plan = p
-		s.table, s.err = readCounts(p, s.file)
+	if l == nil {
+		return nil, fmt.Errorf("modelkit: counts model: no run layout (the model runs only inside a run)")
+	}
+	if s.layout != l {
+		s.layout = l
+		s.table, s.err = readCounts(l, s.file)
 	}
 	return s.table, s.err
 }
 
 // countsPath resolves a counts file name against the spec's folder.
-func countsPath(p *Plan, file string) string {
-	if !filepath.IsAbs(file) && p.Spec.Dir != "" {
-		return filepath.Join(p.Spec.Dir, file)
+func countsPath(dir, file string) string {
+	if !filepath.IsAbs(file) && dir != "" {
+		return filepath.Join(dir, file)
 	}
 	return file
 }
@@ -191,8 +194,8 @@ func countsPath(p *Plan, file string) string {
 // of the plan: each needs at least one shot, and nothing else may appear.
 // All errors are *input.Error naming the file and, where there is one, the
 // line.
-func readCounts(p *Plan, file string) (*countsTable, error) {
-	path := countsPath(p, file)
+func readCounts(p *Layout, file string) (*countsTable, error) {
+	path := countsPath(p.Dir, file)
 	data, err := os.ReadFile(path)
 	if err != nil {
 		return nil, &input.Error{File: path, Err: fmt.Errorf("read counts file: %w", err)}
@@ -238,8 +241,8 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 	}
 	t := &countsTable{counts: map[countsKey][]int{}}
 	_, t.hasPipeline = col["pipeline"]
-	if !t.hasPipeline && len(p.Spec.Pipelines) > 1 {
-		return nil, bad(1, "the spec has %d pipelines (%s) and each has its own circuits: add a pipeline column", len(p.Spec.Pipelines), strings.Join(p.Spec.Pipelines, ", "))
+	if !t.hasPipeline && len(p.Pipelines) > 1 {
+		return nil, bad(1, "the spec has %d pipelines (%s) and each has its own circuits: add a pipeline column", len(p.Pipelines), strings.Join(p.Pipelines, ", "))
 	}
 
 	// What the plan allows: per dataset, its class bits and, per repeat,
@@ -268,7 +271,7 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 		names = append(names, d.Name)
 	}
 	pipes := map[string]bool{}
-	for _, ps := range p.Spec.Pipelines {
+	for _, ps := range p.Pipelines {
 		pipes[ps] = true
 	}
 	type outcomeKey struct {
@@ -308,7 +311,7 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 		if t.hasPipeline {
 			key.pipeline = field("pipeline")
 			if !pipes[key.pipeline] {
-				return nil, bad(line, "column pipeline: %q is not a pipeline of the spec (%s)", key.pipeline, strings.Join(p.Spec.Pipelines, ", "))
+				return nil, bad(line, "column pipeline: %q is not a pipeline of the spec (%s)", key.pipeline, strings.Join(p.Pipelines, ", "))
 			}
 		}
 		if key.repeat, err = integer("repeat"); err != nil {
@@ -342,9 +345,9 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 			return nil, bad(line, "column ancilla: %q is not a measured bit (0 or 1)", field("ancilla"))
 		}
 		bitsS := field("class")
-		k, ok := parseBits(bitsS, di.bits)
+		k, ok := ParseBits(bitsS, di.bits)
 		if !ok {
-			return nil, bad(line, "column class: %q is not a %d-bit string: dataset %s has %d classes, so its class register has %s; %s", bitsS, di.bits, key.dataset, len(p.datasetByName(key.dataset).Data.Classes), plural(di.bits, "qubit"), bitOrder(di.bits))
+			return nil, bad(line, "column class: %q is not a %d-bit string: dataset %s has %d classes, so its class register has %s; %s", bitsS, di.bits, key.dataset, len(p.dataset(key.dataset).Data.Classes), plural(di.bits, "qubit"), bitOrder(di.bits))
 		}
 		n, err := integer("count")
 		if err != nil {
@@ -368,7 +371,7 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 	var lacking []string
 	pipelines := []string{""}
 	if t.hasPipeline {
-		pipelines = p.Spec.Pipelines
+		pipelines = p.Pipelines
 	}
 	for _, d := range p.Datasets {
 		for _, ps := range pipelines {
@@ -406,9 +409,9 @@ func readCounts(p *Plan, file string) (*countsTable, error) {
 	return t, nil
 }
 
-// parseBits reads a bit string of exactly n characters, most significant
+// ParseBits reads a bit string of exactly n characters, most significant
 // bit first.
-func parseBits(s string, n int) (int, bool) {
+func ParseBits(s string, n int) (int, bool) {
 	if len(s) != n || n == 0 {
 		return 0, false
 	}
@@ -442,21 +445,11 @@ func bitOrder(n int) string {
 	return fmt.Sprintf("write class_out[%d] first and class_out[0] last", n-1)
 }
 
-// formatBits writes k as an n-bit string, most significant bit first.
-func formatBits(k, n int) string {
+// FormatBits writes k as an n-bit string, most significant bit first.
+func FormatBits(k, n int) string {
 	b := make([]byte, n)
 	for i := range b {
 		b[n-1-i] = byte('0' + (k>>i)&1)
 	}
 	return string(b)
-}
-
-// datasetByName returns the planned dataset with the display name, or nil.
-func (p *Plan) datasetByName(name string) *PlannedDataset {
-	for _, d := range p.Datasets {
-		if d.Name == name {
-			return d
-		}
-	}
-	return nil
 }
