@@ -10,6 +10,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/datasets"
 	"fringe/qkernel/circuit"
@@ -32,9 +33,9 @@ const AssessClassicalPipeline = "std"
 // Load accepts with DefaultAssessPipelines, seed 0, 10 folds, 3 repeats,
 // the class-balanced form of the classifier, p1 = p2/10 and 95% confidence.
 type AssessOptions struct {
-	Datasets  []DatasetSpec // nil: every name of datasets.Names()
-	Pipelines []string      // nil: DefaultAssessPipelines
-	Subsets   []int         // nil: DefaultAssessSubsets; sizes below the class count or at least the training size are skipped
+	Datasets  []spec.Dataset // nil: every name of datasets.Names()
+	Pipelines []string       // nil: DefaultAssessPipelines
+	Subsets   []int          // nil: DefaultAssessSubsets; sizes below the class count or at least the training size are skipped
 	Seed      uint64
 	Folds     int     // 0: 10; capped per dataset at its smallest class
 	Repeats   int     // 0: 3
@@ -56,7 +57,7 @@ const (
 func (o AssessOptions) withDefaults() (AssessOptions, error) {
 	if o.Datasets == nil {
 		for _, n := range datasets.Names() {
-			o.Datasets = append(o.Datasets, DatasetSpec{Name: n})
+			o.Datasets = append(o.Datasets, spec.Dataset{Name: n})
 		}
 	}
 	if o.Pipelines == nil {
@@ -101,7 +102,7 @@ func (o AssessOptions) withDefaults() (AssessOptions, error) {
 	}
 	seenP := map[string]bool{}
 	for _, p := range o.Pipelines {
-		if err := checkPipeline(p); err != nil {
+		if err := spec.CheckPipeline(p); err != nil {
 			return o, &input.Error{Key: "pipelines", Err: err}
 		}
 		if seenP[p] {
@@ -174,7 +175,7 @@ func mustModel(m map[string]any) modelkit.Spec {
 
 // assessDataset is everything computed for one dataset.
 type assessDataset struct {
-	spec                 DatasetSpec
+	spec                 spec.Dataset
 	data                 *datasets.Dataset
 	folds                int
 	quantum, norm, class *Plan
@@ -244,8 +245,8 @@ func Assess(ctx context.Context, opt AssessOptions) (*results.Assessment, error)
 }
 
 // assessRun loads one dataset and runs its three plans.
-func assessRun(ctx context.Context, o AssessOptions, ds DatasetSpec) (*assessDataset, error) {
-	base := &Spec{Name: "assess", Seed: o.Seed, File: o.File, Dir: o.Dir, Datasets: []DatasetSpec{ds}}
+func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDataset, error) {
+	base := &spec.Spec{Name: "assess", Seed: o.Seed, File: o.File, Dir: o.Dir, Datasets: []spec.Dataset{ds}}
 	data, err := loadDataset(base, ds)
 	if err != nil {
 		return nil, err
@@ -265,8 +266,8 @@ func assessRun(ctx context.Context, o AssessOptions, ds DatasetSpec) (*assessDat
 	if folds < 2 {
 		return nil, &input.Error{File: o.File, Err: fmt.Errorf("dataset %s: a class has a single member; cross-validation needs at least two per class", ds.Display())}
 	}
-	cvs := CVSpec{Method: CVStratified, Folds: folds, Repeats: o.Repeats, TestFraction: 0.3}
-	spec := func(pipes []string, models ...map[string]any) *Spec {
+	cvs := spec.CV{Method: spec.CVStratified, Folds: folds, Repeats: o.Repeats, TestFraction: 0.3}
+	mkSpec := func(pipes []string, models ...map[string]any) *spec.Spec {
 		s := *base
 		s.Pipelines = pipes
 		s.CV = cvs
@@ -292,15 +293,15 @@ func assessRun(ctx context.Context, o AssessOptions, ds DatasetSpec) (*assessDat
 	ad := &assessDataset{spec: ds, data: data, folds: folds}
 	knn := map[string]any{"kind": "knn", "k": int64(5), "name": assessKNN}
 	plans := []struct {
-		s   *Spec
+		s   *spec.Spec
 		dst **Plan
 		res *[]TaskResult
 	}{
-		{spec(o.Pipelines,
+		{mkSpec(o.Pipelines,
 			map[string]any{"kind": "interference", "name": assessUniform},
 			map[string]any{"kind": "interference", "balance": true, "name": assessBalanced}), &ad.quantum, &ad.qres},
-		{spec(normPipes, knn), &ad.norm, &ad.nres},
-		{spec([]string{AssessClassicalPipeline}, knn,
+		{mkSpec(normPipes, knn), &ad.norm, &ad.nres},
+		{mkSpec([]string{AssessClassicalPipeline}, knn,
 			map[string]any{"kind": "svm", "kernel": "rbf"},
 			map[string]any{"kind": "logreg"},
 			map[string]any{"kind": "centroid"}), &ad.class, &ad.cres},

@@ -15,6 +15,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"fringe/bench/input"
+	"fringe/bench/spec"
 	"fringe/qkernel/circuit"
 	"fringe/results"
 )
@@ -23,7 +24,7 @@ import (
 func smallAssessment(t *testing.T, workers int) *results.Assessment {
 	t.Helper()
 	a, err := Assess(context.Background(), AssessOptions{
-		Datasets:  []DatasetSpec{{Name: "iris"}, {Name: "cats"}},
+		Datasets:  []spec.Dataset{{Name: "iris"}, {Name: "cats"}},
 		Pipelines: []string{"std+l2", "std+lift"},
 		Subsets:   []int{2, 8, 16},
 		Seed:      11, Repeats: 1, Workers: workers,
@@ -252,12 +253,12 @@ func TestAssessBadInput(t *testing.T) {
 		opt  AssessOptions
 		want string
 	}{
-		{AssessOptions{Datasets: []DatasetSpec{{Name: "irises"}}}, "irises"},
-		{AssessOptions{Datasets: []DatasetSpec{{Name: "iris"}}, Pipelines: []string{"std+whiten"}}, "whiten"},
-		{AssessOptions{Datasets: []DatasetSpec{{Name: "iris"}}, Folds: 1}, "folds"},
-		{AssessOptions{Datasets: []DatasetSpec{{Name: "iris"}}, Ratio: 0.5}, "ratio"},
-		{AssessOptions{Datasets: []DatasetSpec{{Name: "iris"}, {Name: "iris"}}}, "twice"},
-		{AssessOptions{Datasets: []DatasetSpec{{Name: "iris"}}, Subsets: []int{0}}, "subset"},
+		{AssessOptions{Datasets: []spec.Dataset{{Name: "irises"}}}, "irises"},
+		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Pipelines: []string{"std+whiten"}}, "whiten"},
+		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Folds: 1}, "folds"},
+		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Ratio: 0.5}, "ratio"},
+		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}, {Name: "iris"}}}, "twice"},
+		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Subsets: []int{0}}, "subset"},
 	}
 	for _, c := range cases {
 		_, err := Assess(context.Background(), c.opt)
@@ -280,7 +281,7 @@ func TestAssessBadInput(t *testing.T) {
 	}
 	// The display name is fixed (As): splits are seeded by the dataset's
 	// name, and the temporary path changes from run to run.
-	a, err := Assess(context.Background(), AssessOptions{Datasets: []DatasetSpec{{Name: path, As: "small"}}, Pipelines: []string{"std+l2"}, Repeats: 1, Subsets: []int{}})
+	a, err := Assess(context.Background(), AssessOptions{Datasets: []spec.Dataset{{Name: path, As: "small"}}, Pipelines: []string{"std+l2"}, Repeats: 1, Subsets: []int{}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -289,7 +290,7 @@ func TestAssessBadInput(t *testing.T) {
 	}
 	one := filepath.Join(dir, "one.csv")
 	os.WriteFile(one, []byte("x,label\n1,a\n2,a\n3,b\n"), 0o644)
-	if _, err := Assess(context.Background(), AssessOptions{Datasets: []DatasetSpec{{Name: one}}}); !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "single member") {
+	if _, err := Assess(context.Background(), AssessOptions{Datasets: []spec.Dataset{{Name: one}}}); !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "single member") {
 		t.Errorf("class of one: %v", err)
 	}
 }

@@ -3,6 +3,8 @@ package bench
 import (
 	"context"
 	"testing"
+
+	"fringe/bench/spec"
 )
 
 // BenchmarkDemoGrid plans and executes the built-in demo (all tasks, no
@@ -10,14 +12,14 @@ import (
 func BenchmarkDemoGrid(b *testing.B) {
 	for _, workers := range []int{1, 2} {
 		b.Run("workers="+string(rune('0'+workers)), func(b *testing.B) {
-			spec, err := DemoSpec()
+			demo, err := spec.Demo()
 			if err != nil {
 				b.Fatal(err)
 			}
 			b.ReportAllocs()
 			var tasks int
 			for b.Loop() {
-				p, err := NewPlan(spec)
+				p, err := NewPlan(demo)
 				if err != nil {
 					b.Fatal(err)
 				}

@@ -5,6 +5,7 @@ import (
 	"sort"
 
 	"fringe/bench/input"
+	"fringe/bench/spec"
 	"fringe/datasets"
 	"fringe/qkernel/circuit"
 )
@@ -12,7 +13,7 @@ import (
 // CircuitRequest asks for the compiled interference circuit of one test
 // instance of a dataset.
 type CircuitRequest struct {
-	Dataset  DatasetSpec
+	Dataset  spec.Dataset
 	Pipeline string
 	Train    int  // training-set size; 0 = every row but the test instance
 	Balance  bool // class-balancing index weights 1/(C * M_k)
@@ -34,8 +35,8 @@ type CircuitResult struct {
 // derived from Seed), fits the pipeline on the training rows only, and
 // compiles the circuit for the test row. Errors are input errors.
 func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
-	spec := &Spec{File: "", Seed: req.Seed}
-	data, err := loadDataset(spec, req.Dataset)
+	base := &spec.Spec{File: "", Seed: req.Seed}
+	data, err := loadDataset(base, req.Dataset)
 	if err != nil {
 		return nil, err
 	}

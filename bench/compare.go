@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"fringe/bench/input"
+	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -17,7 +18,7 @@ import (
 // CompareOptions configure Compare. The zero value gates accuracy at
 // alpha 0.05 with no tolerance and Holm's correction.
 type CompareOptions struct {
-	Alpha     float64  // significance level; 0 means DefaultTestAlpha
+	Alpha     float64  // significance level; 0 means spec.DefaultTestAlpha
 	Tolerance float64  // drops up to this much (in metric units) never count as regressions; ≥ 0
 	Metrics   []string // metrics that may flag a regression; nil means accuracy only
 	Models    []string // models whose cells may flag a regression; nil means every model
@@ -61,7 +62,7 @@ type CompareOptions struct {
 func Compare(base, cur *results.Run, opt CompareOptions) (*results.RunComparison, error) {
 	alpha := opt.Alpha
 	if alpha == 0 {
-		alpha = DefaultTestAlpha
+		alpha = spec.DefaultTestAlpha
 	}
 	if !(alpha > 0 && alpha < 0.5) {
 		return nil, &input.Error{Key: "alpha", Err: fmt.Errorf("alpha must lie in (0, 0.5), got %v", opt.Alpha)}

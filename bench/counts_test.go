@@ -18,6 +18,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/qkernel/sim"
 )
 
@@ -48,7 +49,7 @@ name = "device"
 // loopPlan plans loopSpec with its files resolved against dir.
 func loopPlan(t *testing.T, dir, pipelines, dataset, classes, settings string) *Plan {
 	t.Helper()
-	s, err := ParseSpec(filepath.Join(dir, "loop.toml"), []byte(fmt.Sprintf(loopSpec, pipelines, dataset, classes, settings, settings)))
+	s, err := spec.Parse(filepath.Join(dir, "loop.toml"), []byte(fmt.Sprintf(loopSpec, pipelines, dataset, classes, settings, settings)))
 	if err != nil {
 		t.Fatal(err)
 	}

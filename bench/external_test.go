@@ -17,6 +17,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/datasets"
 )
 
@@ -468,12 +469,12 @@ func TestExternalSpecErrors(t *testing.T) {
 		{`kind = "counts"` + "\nfile = \"m.csv\"\nshots = 10", "model[1].shots"},
 	} {
 		src := "name = \"e\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\n" + c.model + "\n"
-		_, err := ParseSpec("e.toml", []byte(src))
+		_, err := spec.Parse("e.toml", []byte(src))
 		if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("model %q: error %v, want an input error naming %s", c.model, err, c.want)
 		}
 	}
-	s, err := ParseSpec("ok.toml", []byte(`name = "ok"
+	s, err := spec.Parse("ok.toml", []byte(`name = "ok"
 seed = 1
 datasets = ["iris"]
 [[model]]

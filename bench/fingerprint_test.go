@@ -4,6 +4,8 @@ import (
 	"os"
 	"path/filepath"
 	"testing"
+
+	"fringe/bench/spec"
 )
 
 // TestFingerprintCoversModelFiles checks that a run's identity changes when
@@ -13,7 +15,7 @@ func TestFingerprintCoversModelFiles(t *testing.T) {
 	dir := t.TempDir()
 	counts := filepath.Join(dir, "measured.csv")
 	script := filepath.Join(dir, "mine.py")
-	spec := filepath.Join(dir, "s.toml")
+	specPath := filepath.Join(dir, "s.toml")
 	write := func(path, text string) {
 		t.Helper()
 		if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
@@ -22,7 +24,7 @@ func TestFingerprintCoversModelFiles(t *testing.T) {
 	}
 	write(counts, "dataset,repeat,fold,row,ancilla,class,count\n")
 	write(script, "print('v1')\n")
-	write(spec, `name = "fp"
+	write(specPath, `name = "fp"
 seed = 1
 datasets = ["iris"]
 [cv]
@@ -36,7 +38,7 @@ run = ["python3", "mine.py"]
 `)
 	fp := func() string {
 		t.Helper()
-		s, err := LoadSpec(spec)
+		s, err := spec.Load(specPath)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -3,8 +3,6 @@ package bench
 import (
 	"context"
 	"errors"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -28,56 +26,6 @@ func watchdog(what string) func() bool {
 
 func executeForFuzz(p *Plan) ([]TaskResult, error) {
 	return Execute(context.Background(), p, Options{Workers: 1})
-}
-
-// FuzzParseSpec feeds arbitrary text to the spec parser. It must never
-// panic or hang; every error must be an input error with a one-line
-// message; an accepted spec must name at least one dataset, pipeline and
-// model, with distinct model names. Accepted specs over embedded data and
-// a modest grid are also planned (NewPlan), which checks parameters
-// against the data, under the same rules.
-func FuzzParseSpec(f *testing.F) {
-	seeds, _ := filepath.Glob("../examples/*.toml")
-	bad, _ := filepath.Glob("cmd/fringe/testdata/bad/*.toml")
-	for _, path := range append(append(seeds, bad...), "demo.toml", "cmd/fringe/testdata/cluster/grid.toml") {
-		if b, err := os.ReadFile(path); err == nil {
-			f.Add(b)
-		}
-	}
-	f.Add([]byte(clusterSpec))
-	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"svm\"\ngamma = \"scale\"\n"))
-	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[cv]\nmethod = \"holdout\"\ntest_fraction = 0.5\n[[model]]\nkind = \"interference\"\nmode = \"noisy\"\nnoise = { readout = [0.1, 0.2] }\n"))
-	f.Fuzz(func(t *testing.T, data []byte) {
-		defer watchdog("ParseSpec/NewPlan")()
-		s, err := ParseSpec("fuzz.toml", data)
-		if err != nil {
-			checkInputError(t, err)
-			return
-		}
-		if s.Name == "" || len(s.Datasets) == 0 || len(s.Pipelines) == 0 || len(s.Models) == 0 {
-			t.Fatalf("accepted an incomplete spec: %+v", s)
-		}
-		seen := map[string]bool{}
-		for _, m := range s.Models {
-			if m.Name == "" || seen[m.Name] {
-				t.Fatalf("empty or repeated model name %q", m.Name)
-			}
-			seen[m.Name] = true
-		}
-		// Plan only small grids over embedded data: a spec may ask for
-		// any number of repeats, and files are not the fuzzer's to read.
-		if s.CV.Repeats > 2 || s.CV.Folds > 10 || len(s.Datasets) > 2 || len(s.Pipelines) > 3 {
-			return
-		}
-		for _, d := range s.Datasets {
-			if isPath(d.Name) {
-				return
-			}
-		}
-		if _, err := NewPlan(s); err != nil {
-			checkInputError(t, err)
-		}
-	})
 }
 
 func checkInputError(t *testing.T, err error) {

@@ -11,6 +11,8 @@ import (
 	"strings"
 	"testing"
 
+	"fringe/bench/spec"
+
 	"gonum.org/v1/gonum/floats/scalar"
 )
 
@@ -72,11 +74,11 @@ name = "interference-balanced"
 // double precision.
 func TestIrisLOOAgainstSklearn(t *testing.T) {
 	ref := readIrisLOOReference(t)
-	spec, err := ParseSpec("iris-loo-check.toml", []byte(irisLOOSpec))
+	s, err := spec.Parse("iris-loo-check.toml", []byte(irisLOOSpec))
 	if err != nil {
 		t.Fatal(err)
 	}
-	plan, err := NewPlan(spec)
+	plan, err := NewPlan(s)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+
+	"fringe/bench/spec"
 )
 
 // Merged is a run rebuilt from the partial run directories of all its
@@ -97,17 +99,17 @@ func Merge(dirs []string) (*Merged, error) {
 		return nil, partialErr("", "merge: missing shard(s) %s of %d (given: %s)", strings.Join(missing, ", "), n, strings.Join(have, ", "))
 	}
 
-	spec, err := ParseSpec(first.SpecFile, []byte(first.SpecText))
+	sp, err := spec.Parse(first.SpecFile, []byte(first.SpecText))
 	if err != nil {
 		return nil, bad(dirs[0], "the recorded spec does not parse: %v", err)
 	}
-	spec.Dir = first.SpecDir
-	if CanonicalSpecSHA(spec.Source) != first.SpecSHA {
+	sp.Dir = first.SpecDir
+	if spec.CanonicalSHA(sp.Source) != first.SpecSHA {
 		return nil, bad(dirs[0], "%s is inconsistent: its spec text does not match its spec_sha256", identityFile)
 	}
-	plan, err := NewPlan(spec)
+	plan, err := NewPlan(sp)
 	if err != nil {
-		return nil, fmt.Errorf("merge: rebuild the plan of spec %q recorded in %s: %w", spec.Name, dirs[0], err)
+		return nil, fmt.Errorf("merge: rebuild the plan of spec %q recorded in %s: %w", sp.Name, dirs[0], err)
 	}
 	if fp := plan.Fingerprint(); fp != first.PlanSHA {
 		return nil, bad(dirs[0], "the data the shards were computed on has changed since (plan sha256 %.12s, now %.12s): run the shards again", first.PlanSHA, fp)

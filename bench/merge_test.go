@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"fringe/bench/input"
+	"fringe/bench/spec"
 )
 
 // writeShards runs every shard of n into dir/shard-i and returns the
@@ -125,7 +126,7 @@ func TestMergeRefuses(t *testing.T) {
 	os.WriteFile(filepath.Join(csvDir, "d.csv"), []byte(csv), 0o644)
 	specPath := filepath.Join(csvDir, "s.toml")
 	os.WriteFile(specPath, []byte("name = \"csv\"\nseed = 1\ndatasets = [\"d.csv\"]\n[cv]\nmethod = \"holdout\"\ntest_fraction = 0.5\nrepeats = 2\n[[model]]\nkind = \"knn\"\nk = 1\n"), 0o644)
-	s, err := LoadSpec(specPath)
+	s, err := spec.Load(specPath)
 	if err != nil {
 		t.Fatal(err)
 	}

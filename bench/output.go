@@ -11,6 +11,7 @@ import (
 	"runtime/debug"
 	"time"
 
+	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -100,7 +101,7 @@ func (p *Plan) Summarise(res []TaskResult) []results.Summary {
 		}
 		cells[k] = append(cells[k], r)
 	}
-	pooled := p.Spec.CV.Method == CVLeaveOneOut || (p.Spec.CV.Method == CVHoldout && p.Spec.CV.Repeats == 1)
+	pooled := p.Spec.CV.Method == spec.CVLeaveOneOut || (p.Spec.CV.Method == spec.CVHoldout && p.Spec.CV.Repeats == 1)
 	var out []results.Summary
 	for _, k := range order {
 		rs := cells[k]
@@ -189,11 +190,11 @@ func (p *Plan) Caption() string {
 	s := p.Spec
 	var proto string
 	switch s.CV.Method {
-	case CVStratified:
+	case spec.CVStratified:
 		proto = fmt.Sprintf("stratified %d-fold cross-validation, %d repeat(s)", s.CV.Folds, s.CV.Repeats)
-	case CVLeaveOneOut:
+	case spec.CVLeaveOneOut:
 		proto = "leave-one-out cross-validation"
-	case CVHoldout:
+	case spec.CVHoldout:
 		proto = fmt.Sprintf("stratified holdout (test fraction %g), %d repeat(s)", s.CV.TestFraction, s.CV.Repeats)
 	}
 	return fmt.Sprintf("Run %s: mean and standard deviation over folds; %s; seed %d. Best mean per dataset in bold.", s.Name, proto, s.Seed)

@@ -7,12 +7,12 @@ import (
 	"hash/fnv"
 	"math/rand/v2"
 	"path/filepath"
-	"strings"
 
 	"fringe/baselines"
 	"fringe/bench/cv"
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
@@ -23,7 +23,7 @@ import (
 // Building a plan checks all input that can be checked before any model is
 // fitted, so bad input fails fast and leaves nothing behind.
 type Plan struct {
-	Spec     *Spec
+	Spec     *spec.Spec
 	Datasets []*PlannedDataset
 	Tasks    []Task
 
@@ -32,7 +32,7 @@ type Plan struct {
 
 // PlannedDataset is a loaded dataset with its splits (all repeats).
 type PlannedDataset struct {
-	Spec   DatasetSpec
+	Spec   spec.Dataset
 	Name   string // display name
 	Data   *datasets.Dataset
 	Splits []cv.Split // in (repeat, fold) order
@@ -78,7 +78,7 @@ func NewRand(seed uint64, parts ...string) *rand.Rand {
 // NewPlan loads the spec's datasets, draws the splits and lists the tasks in
 // order (dataset, pipeline, model, repeat, fold). All errors are input
 // errors (errors.Is(err, input.ErrBad)).
-func NewPlan(s *Spec) (*Plan, error) {
+func NewPlan(s *spec.Spec) (*Plan, error) {
 	p := &Plan{Spec: s}
 	for _, ds := range s.Datasets {
 		pd, err := planDataset(s, ds)
@@ -103,9 +103,9 @@ func NewPlan(s *Spec) (*Plan, error) {
 	return p, nil
 }
 
-func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
+func planDataset(s *spec.Spec, ds spec.Dataset) (*PlannedDataset, error) {
 	inErr := func(err error) error {
-		return &input.Error{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+		return &input.Error{File: s.File, Line: ds.Line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
 	data, err := loadDataset(s, ds)
 	if err != nil {
@@ -123,9 +123,9 @@ func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
 	}
 	pd := &PlannedDataset{Spec: ds, Name: ds.Display(), Data: data}
 	switch s.CV.Method {
-	case CVLeaveOneOut:
+	case spec.CVLeaveOneOut:
 		pd.Splits = cv.LeaveOneOut(data.Len())
-	case CVStratified:
+	case spec.CVStratified:
 		for r := 0; r < s.CV.Repeats; r++ {
 			rng := NewRand(s.Seed, "split", pd.Name, fmt.Sprint(r))
 			sp, err := cv.Stratified(data.Y, len(data.Classes), s.CV.Folds, rng)
@@ -137,7 +137,7 @@ func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
 			}
 			pd.Splits = append(pd.Splits, sp...)
 		}
-	case CVHoldout:
+	case spec.CVHoldout:
 		for r := 0; r < s.CV.Repeats; r++ {
 			rng := NewRand(s.Seed, "split", pd.Name, fmt.Sprint(r))
 			sp, err := cv.Holdout(data.Y, len(data.Classes), s.CV.TestFraction, rng)
@@ -164,13 +164,13 @@ func planDataset(s *Spec, ds DatasetSpec) (*PlannedDataset, error) {
 // loadDataset loads a dataset named in a spec (embedded, synthetic or CSV,
 // relative paths resolved against the spec's directory) and applies its
 // class and feature selection.
-func loadDataset(s *Spec, ds DatasetSpec) (*datasets.Dataset, error) {
+func loadDataset(s *spec.Spec, ds spec.Dataset) (*datasets.Dataset, error) {
 	inErr := func(err error) error {
-		return &input.Error{File: s.File, Line: ds.line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+		return &input.Error{File: s.File, Line: ds.Line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
 	var data *datasets.Dataset
 	var err error
-	if isPath(ds.Name) {
+	if spec.IsPath(ds.Name) {
 		path := ds.Name
 		if !filepath.IsAbs(path) && s.Dir != "" {
 			path = filepath.Join(s.Dir, path)
@@ -233,7 +233,7 @@ func (p *Plan) checkModels() error {
 		}
 		full := fmt.Sprintf("model[%d].%s", mi+1, key)
 		bad := func(err error) error {
-			return &input.Error{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(full), Key: full, Err: err}
+			return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(full), Key: full, Err: err}
 		}
 		for _, d := range p.Datasets {
 			for _, sp := range d.Splits {
@@ -295,7 +295,7 @@ func (p *Plan) checkQubits() error {
 				ni, nd, nc := circuit.RegisterSizes(mTrain, dim, len(d.Data.Classes))
 				if n := 1 + ni + nd + nc; n > limit {
 					key := fmt.Sprintf("model[%d]", mi+1)
-					return &input.Error{File: p.Spec.File, Line: newKeyLines(p.Spec.Source).find(key), Key: key,
+					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
 						Err: fmt.Errorf("model %s on dataset %s, pipeline %s: the circuit needs %d qubits (%d training vectors, %d features); the %s at most %d; %s: %w",
 							m.Name, d.Name, ps, n, mTrain, dim, simName, limit, alt, qkernel.ErrTooLarge)}
 				}
@@ -303,12 +303,4 @@ func (p *Plan) checkQubits() error {
 		}
 	}
 	return nil
-}
-
-// isPath reports whether a dataset name refers to a file rather than an
-// embedded or synthetic dataset: it contains a path separator or ends in
-// .csv, .tsv or .txt (write ./name for other files).
-func isPath(name string) bool {
-	l := strings.ToLower(name)
-	return strings.ContainsAny(name, `/\`) || strings.HasSuffix(l, ".csv") || strings.HasSuffix(l, ".tsv") || strings.HasSuffix(l, ".txt")
 }

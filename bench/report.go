@@ -8,133 +8,16 @@ import (
 	"strings"
 
 	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
 )
 
-// TestKind is the paired test used to compare two models on one dataset.
-type TestKind int
-
-const (
-	// TestAuto: McNemar for leave-one-out and a single holdout (scores on
-	// pooled predictions), the corrected resampled t-test otherwise.
-	TestAuto TestKind = iota
-	// TestCorrectedT: the corrected resampled t-test of Nadeau & Bengio
-	// (2003) on paired fold scores.
-	TestCorrectedT
-	// Test5x2CV: Dietterich's (1998) 5x2cv paired t-test; the protocol must
-	// be 5 repeats of stratified 2-fold cross-validation.
-	Test5x2CV
-	// TestMcNemar: McNemar's test on paired predictions, each instance
-	// predicted once per model (leave-one-out, one holdout, or k-fold
-	// cross-validation without repeats).
-	TestMcNemar
-)
-
-var testNames = []string{"auto", "corrected-t", "5x2cv", "mcnemar"}
-
-func (t TestKind) String() string {
-	if int(t) >= 0 && int(t) < len(testNames) {
-		return testNames[t]
-	}
-	return fmt.Sprintf("TestKind(%d)", int(t))
-}
-
-// ParseTestKind returns the test named s: auto, corrected-t, 5x2cv or
-// mcnemar.
-func ParseTestKind(s string) (TestKind, error) {
-	for i, n := range testNames {
-		if s == n {
-			return TestKind(i), nil
-		}
-	}
-	return 0, fmt.Errorf("unknown test %q (want %s)", s, strings.Join(testNames, ", "))
-}
-
-// DefaultTestAlpha is the significance level of the tests when the spec
-// sets none.
-const DefaultTestAlpha = 0.05
-
-// pooled reports whether the protocol scores each model on pooled
-// predictions (one interval per cell from all its predictions).
-func (cv CVSpec) pooled() bool {
-	return cv.Method == CVLeaveOneOut || (cv.Method == CVHoldout && cv.Repeats == 1)
-}
-
-// resolvedTest returns the test actually used.
-func (cv CVSpec) resolvedTest() TestKind {
-	if cv.Test != TestAuto {
-		return cv.Test
-	}
-	if cv.pooled() {
-		return TestMcNemar
-	}
-	return TestCorrectedT
-}
-
-func (cv CVSpec) alpha() float64 {
-	if cv.Alpha > 0 {
-		return cv.Alpha
-	}
-	return DefaultTestAlpha
-}
-
-// checkTest validates the test against the resampling scheme; it returns
-// a message for the spec error, or "".
-func (cv CVSpec) checkTest() string {
-	switch cv.Test {
-	case Test5x2CV:
-		if cv.Method != CVStratified || cv.Folds != 2 || cv.Repeats != 5 {
-			return `test = "5x2cv" needs method = "stratified", folds = 2, repeats = 5 (Dietterich 1998)`
-		}
-	case TestMcNemar:
-		if cv.Repeats > 1 {
-			return `test = "mcnemar" needs each instance predicted once: repeats = 1`
-		}
-	case TestCorrectedT:
-		if cv.pooled() {
-			return `test = "corrected-t" needs several splits with more than one test instance (stratified k-fold, or holdout with repeats > 1); leave-one-out and a single holdout use "mcnemar"`
-		}
-	}
-	return ""
-}
-
-// describe returns the protocol's resampling scheme in words.
-func (cv CVSpec) describe() string {
-	plural := func(n int, w string) string {
-		if n == 1 {
-			return fmt.Sprintf("%d %s", n, w)
-		}
-		return fmt.Sprintf("%d %ss", n, w)
-	}
-	switch cv.Method {
-	case CVStratified:
-		return fmt.Sprintf("stratified %d-fold cross-validation, %s", cv.Folds, plural(cv.Repeats, "repeat"))
-	case CVLeaveOneOut:
-		return "leave-one-out cross-validation"
-	case CVHoldout:
-		return fmt.Sprintf("stratified holdout (test fraction %g), %s", cv.TestFraction, plural(cv.Repeats, "repeat"))
-	}
-	return cv.Method.String()
-}
-
-func (t TestKind) describe() string {
-	switch t {
-	case TestCorrectedT:
-		return "corrected resampled t-test, Nadeau & Bengio 2003"
-	case Test5x2CV:
-		return "5x2cv paired t-test, Dietterich 1998"
-	case TestMcNemar:
-		return "McNemar's test with continuity correction, exact binomial p-value when fewer than 25 discordant pairs"
-	}
-	return t.String()
-}
-
 // protocol describes the spec's protocol for captions.
-func protocol(name string, seed uint64, cv CVSpec) results.Protocol {
+func protocol(name string, seed uint64, cv spec.CV) results.Protocol {
 	p := results.Protocol{
-		Run: name, Seed: seed, CV: cv.describe(), Level: 1 - Alpha,
-		Test: cv.resolvedTest().describe(), Alpha: cv.alpha(), Correction: "Holm", Pooled: cv.pooled(),
+		Run: name, Seed: seed, CV: cv.Describe(), Level: 1 - Alpha,
+		Test: cv.ResolvedTest().Describe(), Alpha: cv.TestAlpha(), Correction: "Holm", Pooled: cv.Pooled(),
 	}
 	if p.Pooled {
 		p.Interval = "Wilson score interval of the accuracy of the pooled predictions; the other metrics have none"
@@ -200,7 +83,7 @@ func VariantOf(m modelkit.Spec) results.Variant {
 type ReportInput struct {
 	Name        string
 	Seed        uint64
-	CV          CVSpec
+	CV          spec.CV
 	Summary     []results.Summary
 	Folds       []results.Fold
 	Predictions []results.Prediction
@@ -237,7 +120,7 @@ type instKey struct{ repeat, row int }
 
 type analyser struct {
 	in      ReportInput
-	test    TestKind
+	test    spec.TestKind
 	alpha   float64
 	folds   map[cellID]map[foldKey]results.Fold
 	correct map[cellID]map[instKey]bool
@@ -263,7 +146,7 @@ type analyser struct {
 // or a statistic rejects its input.
 func Analyse(in ReportInput) (*results.Report, error) {
 	a := &analyser{
-		in: in, test: in.CV.resolvedTest(), alpha: in.CV.alpha(),
+		in: in, test: in.CV.ResolvedTest(), alpha: in.CV.TestAlpha(),
 		folds: map[cellID]map[foldKey]results.Fold{}, correct: map[cellID]map[instKey]bool{},
 		cells: map[cellID]int{}, variant: map[string]results.Variant{},
 	}
@@ -362,7 +245,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 	}
 	where := fmt.Sprintf("%s/%s/%s vs %s/%s (%s)", x.Dataset, x.Pipeline, x.Model, ref.Pipeline, ref.Model, c.Metric)
 	switch a.test {
-	case TestMcNemar:
+	case spec.TestMcNemar:
 		if mi != 0 {
 			return c, false, nil
 		}
@@ -404,7 +287,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 			c.Diff = float64(b-cc) / float64(n)
 		}
 		c.Warnings = r.Warnings
-	case TestCorrectedT, Test5x2CV:
+	case spec.TestCorrectedT, spec.Test5x2CV:
 		fx, fr := a.folds[idOf(x)], a.folds[idOf(ref)]
 		if len(fx) == 0 || len(fr) == 0 {
 			return c, false, fmt.Errorf("bench: report: no fold records for %s", where)
@@ -422,7 +305,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 		if len(keys) == 0 {
 			return c, false, fmt.Errorf("bench: report: %s: no folds in common", where)
 		}
-		if a.test == Test5x2CV {
+		if a.test == spec.Test5x2CV {
 			var diff [5][2]float64
 			seen := 0
 			var sum float64
@@ -736,34 +619,4 @@ func (a *analyser) acrossDatasets() ([]results.RankTable, []results.PairAcross, 
 		}
 	}
 	return tables, pairs, nil
-}
-
-// parseCVTests reads the optional [cv] keys test, alpha and reference
-// into cv (after method, folds and repeats); bad builds a located spec
-// error. The reference is checked against the model names later.
-func parseCVTests(cv *CVSpec, raw *rawCV, bad func(key, format string, args ...any) error) error {
-	if raw.Test != nil {
-		t, err := ParseTestKind(*raw.Test)
-		if err != nil {
-			return bad("cv.test", "%v", err)
-		}
-		cv.Test = t
-		if msg := cv.checkTest(); msg != "" {
-			return bad("cv.test", "%s", msg)
-		}
-	}
-	if raw.Alpha != nil {
-		a := *raw.Alpha
-		if !(a > 0 && a < 0.5) {
-			return bad("cv.alpha", "alpha must lie in (0, 0.5), got %v", a)
-		}
-		cv.Alpha = a
-	}
-	if raw.Reference != nil {
-		if *raw.Reference == "" {
-			return bad("cv.reference", "empty reference (omit the key to test against the best classical baseline)")
-		}
-		cv.Reference = *raw.Reference
-	}
-	return nil
 }

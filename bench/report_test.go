@@ -3,7 +3,6 @@ package bench
 import (
 	"bytes"
 	"context"
-	"errors"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -15,8 +14,8 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 	"gonum.org/v1/gonum/mat"
 
-	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
 )
@@ -57,9 +56,9 @@ func synthRecords(cells []synthCell, repeats, folds int) ([]results.Fold, []resu
 	return fs, ss
 }
 
-func spec(t *testing.T, text string) *Spec {
+func mustSpec(t *testing.T, text string) *spec.Spec {
 	t.Helper()
-	s, err := ParseSpec("test.toml", []byte(text))
+	s, err := spec.Parse("test.toml", []byte(text))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -103,7 +102,7 @@ func modeCells() []synthCell {
 
 func TestAnalyseModes(t *testing.T) {
 	folds, sum := synthRecords(modeCells(), 3, 5)
-	cv := CVSpec{Method: CVStratified, Folds: 5, Repeats: 3}
+	cv := spec.CV{Method: spec.CVStratified, Folds: 5, Repeats: 3}
 	rep, err := Analyse(ReportInput{Name: "modes", Seed: 1, CV: cv, Summary: sum, Folds: folds, Variants: modeVariants()})
 	if err != nil {
 		t.Fatal(err)
@@ -316,7 +315,7 @@ func TestAnalyseMcNemar(t *testing.T) {
 			Metrics: []results.MetricSummary{{Mean: acc, Std: nan, Lo: lo, Hi: hi}, {Mean: acc, Std: nan, Lo: nan, Hi: nan}, {Mean: acc, Std: nan, Lo: nan, Hi: nan}}, MeanPAcc: nan})
 	}
 	vs := []results.Variant{{Model: "knn", Kind: "knn"}, {Model: "q", Kind: "interference", Interference: true, Mode: "exact"}, {Model: "svm", Kind: "svm"}}
-	rep, err := Analyse(ReportInput{Name: "loo", CV: CVSpec{Method: CVLeaveOneOut, Repeats: 1}, Summary: sum, Folds: folds, Predictions: preds, Variants: vs})
+	rep, err := Analyse(ReportInput{Name: "loo", CV: spec.CV{Method: spec.CVLeaveOneOut, Repeats: 1}, Summary: sum, Folds: folds, Predictions: preds, Variants: vs})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -357,7 +356,7 @@ func TestAnalyseMcNemar(t *testing.T) {
 func TestAnalyse5x2(t *testing.T) {
 	folds, sum := synthRecords([]synthCell{{"d", "raw", "a", 0.8, 0.05}, {"d", "raw", "b", 0.75, 0.05}, {"e", "raw", "a", 0.7, 0.05}, {"e", "raw", "b", 0.72, 0.05}}, 5, 2)
 	vs := []results.Variant{{Model: "a", Kind: "knn"}, {Model: "b", Kind: "svm"}}
-	rep, err := Analyse(ReportInput{Name: "x", CV: CVSpec{Method: CVStratified, Folds: 2, Repeats: 5, Test: Test5x2CV, Reference: "a"}, Summary: sum, Folds: folds, Variants: vs})
+	rep, err := Analyse(ReportInput{Name: "x", CV: spec.CV{Method: spec.CVStratified, Folds: 2, Repeats: 5, Test: spec.Test5x2CV, Reference: "a"}, Summary: sum, Folds: folds, Variants: vs})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -385,33 +384,8 @@ func TestAnalyse5x2(t *testing.T) {
 		t.Errorf("5x2cv t = %v p = %v, want %v %v", c.Statistic, c.P, want.Statistic, want.P)
 	}
 	// Missing folds are an error, not a silent fallback.
-	if _, err := Analyse(ReportInput{Name: "x", CV: CVSpec{Method: CVStratified, Folds: 2, Repeats: 5, Test: Test5x2CV}, Summary: sum, Folds: folds[:len(folds)-1], Variants: vs}); err == nil {
+	if _, err := Analyse(ReportInput{Name: "x", CV: spec.CV{Method: spec.CVStratified, Folds: 2, Repeats: 5, Test: spec.Test5x2CV}, Summary: sum, Folds: folds[:len(folds)-1], Variants: vs}); err == nil {
 		t.Error("5x2cv with a fold missing: no error")
-	}
-}
-
-func TestSpecTestKeys(t *testing.T) {
-	base := "name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[cv]\n%s\n[[model]]\nkind = \"knn\"\n[[model]]\nkind = \"centroid\"\n"
-	ok := spec(t, strings.Replace(base, "%s", "method = \"stratified\"\nfolds = 2\nrepeats = 5\ntest = \"5x2cv\"\nalpha = 0.1\nreference = \"centroid\"", 1))
-	if ok.CV.Test != Test5x2CV || ok.CV.Alpha != 0.1 || ok.CV.Reference != "centroid" {
-		t.Errorf("cv = %+v", ok.CV)
-	}
-	for _, c := range []struct {
-		cv, key string
-		line    int
-	}{
-		{"folds = 10\ntest = \"5x2cv\"", "cv.test", 6},
-		{"test = \"bootstrap\"", "cv.test", 5},
-		{"method = \"loo\"\ntest = \"corrected-t\"", "cv.test", 6},
-		{"repeats = 3\ntest = \"mcnemar\"", "cv.test", 6},
-		{"alpha = 0.7", "cv.alpha", 5},
-		{"reference = \"forest\"", "cv.reference", 5},
-	} {
-		_, err := ParseSpec("t.toml", []byte(strings.Replace(base, "%s", c.cv, 1)))
-		var ie *input.Error
-		if !errors.As(err, &ie) || ie.Key != c.key || ie.Line != c.line {
-			t.Errorf("%q: error %v, want key %s on line %d", c.cv, err, c.key, c.line)
-		}
 	}
 }
 
@@ -419,7 +393,7 @@ func TestSpecTestKeys(t *testing.T) {
 // that every file but the manifest and timings is byte-identical,
 // figures included, and that the report files and figures exist.
 func TestWriteRunDirectory(t *testing.T) {
-	s := spec(t, `
+	s := mustSpec(t, `
 name = "small"
 seed = 5
 datasets = ["iris", "wine"]

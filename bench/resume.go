@@ -13,15 +13,12 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
-	"sort"
-	"strconv"
 	"strings"
 	"sync"
 	"time"
 
 	"fringe/bench/input"
-
-	"github.com/BurntSushi/toml"
+	"fringe/bench/spec"
 )
 
 // A partial run directory holds the finished tasks of a run that is not
@@ -120,7 +117,7 @@ func (a runIdentity) differences(b runIdentity) string {
 		switch {
 		case a.SpecName != b.SpecName:
 			d = append(d, fmt.Sprintf("spec %q, not %q", a.SpecName, b.SpecName))
-		case a.Seed == b.Seed || canonicalSpecSHA([]byte(a.SpecText), true) != canonicalSpecSHA([]byte(b.SpecText), true):
+		case a.Seed == b.Seed || spec.CanonicalSHAWithoutSeed([]byte(a.SpecText)) != spec.CanonicalSHAWithoutSeed([]byte(b.SpecText)):
 			d = append(d, fmt.Sprintf("a different spec %q (sha256 %.12s, not %.12s)", a.SpecName, a.SpecSHA, b.SpecSHA))
 		}
 	}
@@ -152,79 +149,10 @@ func (p *Plan) identity(s Shard, nShardTasks, workers int, started time.Time) ru
 	}
 	return runIdentity{
 		Format: partialFormat, Version: Version,
-		SpecName: p.Spec.Name, SpecSHA: CanonicalSpecSHA(p.Spec.Source), Seed: p.Spec.Seed,
+		SpecName: p.Spec.Name, SpecSHA: spec.CanonicalSHA(p.Spec.Source), Seed: p.Spec.Seed,
 		PlanSHA: p.Fingerprint(), Tasks: len(p.Tasks), Shard: s.String(), ShardTasks: nShardTasks,
 		SpecFile: p.Spec.File, SpecDir: dir, SpecText: string(p.Spec.Source),
 		Started: started.UTC().Format(time.RFC3339Nano), Workers: workers,
-	}
-}
-
-// CanonicalSpecSHA returns the hex SHA-256 of a spec's canonical form: the
-// decoded TOML document written with sorted keys and exact numbers, so
-// that comments, blank lines, key order and quoting do not change it while
-// any value does. Text that does not decode is hashed as it is.
-func CanonicalSpecSHA(src []byte) string { return canonicalSpecSHA(src, false) }
-
-// canonicalSpecSHA is CanonicalSpecSHA, optionally without the top-level
-// seed (to tell a seed change from other changes in messages).
-func canonicalSpecSHA(src []byte, dropSeed bool) string {
-	var doc map[string]any
-	var b bytes.Buffer
-	if _, err := toml.NewDecoder(bytes.NewReader(src)).Decode(&doc); err != nil {
-		b.WriteString("raw\x00")
-		b.Write(src)
-	} else {
-		if dropSeed {
-			delete(doc, "seed")
-		}
-		b.WriteString("toml\x00")
-		canonical(&b, doc)
-	}
-	sum := sha256.Sum256(b.Bytes())
-	return hex.EncodeToString(sum[:])
-}
-
-// canonical writes a decoded TOML value in a canonical text form.
-func canonical(b *bytes.Buffer, v any) {
-	switch x := v.(type) {
-	case map[string]any:
-		keys := make([]string, 0, len(x))
-		for k := range x {
-			keys = append(keys, k)
-		}
-		sort.Strings(keys)
-		b.WriteByte('{')
-		for _, k := range keys {
-			b.WriteString(strconv.Quote(k))
-			b.WriteByte(':')
-			canonical(b, x[k])
-			b.WriteByte(',')
-		}
-		b.WriteByte('}')
-	case []map[string]any:
-		b.WriteByte('[')
-		for _, e := range x {
-			canonical(b, e)
-			b.WriteByte(',')
-		}
-		b.WriteByte(']')
-	case []any:
-		b.WriteByte('[')
-		for _, e := range x {
-			canonical(b, e)
-			b.WriteByte(',')
-		}
-		b.WriteByte(']')
-	case string:
-		b.WriteString("s" + strconv.Quote(x))
-	case int64:
-		b.WriteString("i" + strconv.FormatInt(x, 10))
-	case float64:
-		b.WriteString("f" + strconv.FormatFloat(x, 'g', -1, 64))
-	case bool:
-		b.WriteString("b" + strconv.FormatBool(x))
-	default:
-		fmt.Fprintf(b, "%T(%v)", x, x)
 	}
 }
 
@@ -302,7 +230,7 @@ func (p *Plan) Fingerprint() string {
 }
 
 // modelInputFiles lists, in model order, the files the run's models read
-// while they run (Spec.InputFiles).
+// while they run (modelkit.Spec.InputFiles).
 func (p *Plan) modelInputFiles() []string {
 	var out []string
 	for _, m := range p.Spec.Models {

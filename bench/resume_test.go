@@ -316,29 +316,6 @@ func TestSaveErrorStopsRun(t *testing.T) {
 	}
 }
 
-// TestCanonicalSpecSHA checks what changes the canonical spec digest.
-func TestCanonicalSpecSHA(t *testing.T) {
-	a := CanonicalSpecSHA([]byte("name = \"x\"\nseed = 1\n[cv]\nfolds = 5\n"))
-	for _, same := range []string{
-		"seed = 1\nname = 'x'\n\n[cv]\nfolds = 5 # five\n",
-		"# comment\nname=\"x\"\nseed=1\ncv = { folds = 5 }\n",
-	} {
-		if b := CanonicalSpecSHA([]byte(same)); b != a {
-			t.Errorf("%q: digest differs from the original's", same)
-		}
-	}
-	for _, diff := range []string{
-		"name = \"x\"\nseed = 2\n[cv]\nfolds = 5\n",
-		"name = \"x\"\nseed = 1\n[cv]\nfolds = 5.0\n",
-		"name = \"x \"\nseed = 1\n[cv]\nfolds = 5\n",
-		"name = \"x\"\nseed = 1\n",
-	} {
-		if b := CanonicalSpecSHA([]byte(diff)); b == a {
-			t.Errorf("%q: digest equals the original's", diff)
-		}
-	}
-}
-
 // TestPartialLock checks that a partial directory in use by one Partial
 // (one process) is refused to a second one, for a directory that exists
 // and for one that two runs create at the same time, and is free again

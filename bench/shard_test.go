@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"fringe/bench/input"
+	"fringe/bench/spec"
 )
 
 // clusterSpec is a small grid for the shard, resume and merge tests: 2
@@ -42,7 +43,7 @@ kind = "logreg"
 
 func clusterPlan(t testing.TB, text string) *Plan {
 	t.Helper()
-	s, err := ParseSpec("cluster.toml", []byte(text))
+	s, err := spec.Parse("cluster.toml", []byte(text))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"fringe/bench"
+	"fringe/bench/spec"
 	"fringe/results"
 )
 
@@ -62,18 +63,18 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	}
 	dir := filepath.Join("fringe-out", "assess")
 	if len(pos) == 1 {
-		spec, err := bench.LoadSpec(pos[0])
+		s, err := spec.Load(pos[0])
 		if err != nil {
 			return err
 		}
-		opt.Datasets, opt.Pipelines = spec.Datasets, spec.Pipelines
-		opt.File, opt.Dir = spec.File, spec.Dir
+		opt.Datasets, opt.Pipelines = s.Datasets, s.Pipelines
+		opt.File, opt.Dir = s.File, s.Dir
 		seedSet := false
 		fs.Visit(func(f *flag.Flag) { seedSet = seedSet || f.Name == "seed" })
 		if !seedSet {
-			opt.Seed = spec.Seed
+			opt.Seed = s.Seed
 		}
-		dir = filepath.Join("fringe-out", spec.Name+"-assess")
+		dir = filepath.Join("fringe-out", s.Name+"-assess")
 	}
 	if *dsFlag != "" {
 		opt.Datasets = nil
@@ -81,7 +82,7 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 			if n == "" {
 				return usagef("-datasets: empty name in %q", *dsFlag)
 			}
-			opt.Datasets = append(opt.Datasets, bench.DatasetSpec{Name: n})
+			opt.Datasets = append(opt.Datasets, spec.Dataset{Name: n})
 		}
 	}
 	if *pipesFlag != "" {

@@ -11,6 +11,7 @@ import (
 
 	"fringe/bench"
 	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/qkernel/circuit"
 )
 
@@ -45,7 +46,7 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 		return usagef("-train must be non-negative, got %d", *train)
 	}
 	req := bench.CircuitRequest{
-		Dataset:  bench.DatasetSpec{Name: *ds, Classes: splitList(*classes), Features: splitList(*features)},
+		Dataset:  spec.Dataset{Name: *ds, Classes: splitList(*classes), Features: splitList(*features)},
 		Pipeline: *pipeline, Train: *train, Balance: *balance, Row: *row, Seed: *seed,
 	}
 	res, err := bench.BuildCircuit(req)
@@ -95,11 +96,11 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 	if workers < 1 {
 		return usagef("-workers must be at least 1, got %d", workers)
 	}
-	spec, err := bench.LoadSpec(pos[0])
+	s, err := spec.Load(pos[0])
 	if err != nil {
 		return err
 	}
-	plan, err := bench.NewPlan(spec)
+	plan, err := bench.NewPlan(s)
 	if err != nil {
 		return err
 	}

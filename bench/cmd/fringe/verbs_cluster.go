@@ -14,6 +14,7 @@ import (
 
 	"fringe/bench"
 	"fringe/bench/input"
+	"fringe/bench/spec"
 	"fringe/results"
 )
 
@@ -26,7 +27,7 @@ var saveEvery = bench.DefaultSaveEvery
 // (removed once OUT is written), OUT itself for a shard (-shard i/n), which
 // `fringe merge` joins with the other shards. Started again with the same
 // command, a run that was stopped continues from its partial directory.
-func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []string, stdout, stderr io.Writer) error {
+func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, stdout, stderr io.Writer) error {
 	if rf.workers < 1 {
 		return usagef("-workers must be at least 1, got %d", rf.workers)
 	}
@@ -40,9 +41,9 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 	}
 	out := rf.out
 	if out == "" {
-		out = filepath.Join("fringe-out", spec.Name)
+		out = filepath.Join("fringe-out", s.Name)
 		if sharded {
-			out = filepath.Join("fringe-out", spec.Name+".shards", fmt.Sprintf("shard-%d-of-%d", shard.I, shard.N))
+			out = filepath.Join("fringe-out", s.Name+".shards", fmt.Sprintf("shard-%d-of-%d", shard.I, shard.N))
 		}
 	}
 	partialDir := out + ".partial"
@@ -50,7 +51,7 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 		partialDir = out
 	}
 	start := time.Now()
-	plan, err := bench.NewPlan(spec)
+	plan, err := bench.NewPlan(s)
 	if err != nil {
 		return err
 	}
@@ -251,11 +252,11 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if o.Shards == 0 {
 		return usagef("slurm needs -shards N (see 'fringe slurm -h')")
 	}
-	spec, err := bench.LoadSpec(pos[0])
+	s, err := spec.Load(pos[0])
 	if err != nil {
 		return err
 	}
-	plan, err := bench.NewPlan(spec)
+	plan, err := bench.NewPlan(s)
 	if err != nil {
 		return err
 	}
@@ -264,10 +265,10 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 			return err
 		}
 	}
-	o.Spec, o.JobName, o.Tasks = pos[0], "fringe-"+spec.Name, len(plan.Tasks)
+	o.Spec, o.JobName, o.Tasks = pos[0], "fringe-"+s.Name, len(plan.Tasks)
 	o.Out = *out
 	if o.Out == "" {
-		o.Out = filepath.Join("fringe-out", spec.Name)
+		o.Out = filepath.Join("fringe-out", s.Name)
 	}
 	var b bytes.Buffer
 	if err := bench.WriteSlurmScript(&b, o); err != nil {

@@ -1,4 +1,4 @@
-package bench
+package spec
 
 import _ "embed"
 
@@ -21,7 +21,7 @@ a global depolarizing channel of strength 0.1 and 0.3. std+lift keeps
 each vector's norm as one more amplitude.
 `
 
-// DemoSpec returns the built-in demo experiment.
-func DemoSpec() (*Spec, error) {
-	return ParseSpec("demo.toml (built in)", demoSpec)
+// Demo returns the built-in demo experiment.
+func Demo() (*Spec, error) {
+	return Parse("demo.toml (built in)", demoSpec)
 }

@@ -1,4 +1,4 @@
-package bench
+package spec
 
 import (
 	"bytes"
@@ -20,9 +20,9 @@ import (
 type Spec struct {
 	Name      string
 	Seed      uint64
-	Datasets  []DatasetSpec
+	Datasets  []Dataset
 	Pipelines []string
-	CV        CVSpec
+	CV        CV
 	Models    []modelkit.Spec
 
 	File   string // path the spec was read from, or a description of a built-in spec
@@ -30,8 +30,8 @@ type Spec struct {
 	Source []byte // the spec text as read
 }
 
-// DatasetSpec selects a dataset and its options.
-type DatasetSpec struct {
+// Dataset selects a dataset and its options.
+type Dataset struct {
 	Name        string   // embedded name, synthetic name or CSV path
 	Classes     []string // optional class subset
 	Features    []string // optional feature subset (names or 0-based indices)
@@ -39,11 +39,11 @@ type DatasetSpec struct {
 	Label       string   // CSV only: label column name (default: last column)
 	DropInvalid bool     // CSV only: drop rows with missing or non-numeric values
 
-	line int
+	Line int // line of the entry in the spec file (0 if unknown)
 }
 
 // Display is the name shown in outputs.
-func (d DatasetSpec) Display() string {
+func (d Dataset) Display() string {
 	if d.As != "" {
 		return d.As
 	}
@@ -71,8 +71,8 @@ func (m CVMethod) String() string {
 	return fmt.Sprintf("CVMethod(%d)", int(m))
 }
 
-// CVSpec is the cross-validation protocol.
-type CVSpec struct {
+// CV is the cross-validation protocol.
+type CV struct {
 	Method       CVMethod
 	Folds        int      // stratified only
 	Repeats      int      // stratified and holdout
@@ -111,13 +111,13 @@ type rawCV struct {
 	Reference    *string  `toml:"reference"`
 }
 
-// LoadSpec reads and validates a spec file.
-func LoadSpec(path string) (*Spec, error) {
+// Load reads and validates a spec file.
+func Load(path string) (*Spec, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
 		return nil, &input.Error{File: path, Err: fmt.Errorf("read spec: %w", err)}
 	}
-	s, err := ParseSpec(path, data)
+	s, err := Parse(path, data)
 	if err != nil {
 		return nil, err
 	}
@@ -125,8 +125,8 @@ func LoadSpec(path string) (*Spec, error) {
 	return s, nil
 }
 
-// ParseSpec parses and validates spec text; file names the source in errors.
-func ParseSpec(file string, data []byte) (*Spec, error) {
+// Parse parses and validates spec text; file names the source in errors.
+func Parse(file string, data []byte) (*Spec, error) {
 	var raw rawSpec
 	md, err := toml.NewDecoder(bytes.NewReader(data)).Decode(&raw)
 	if err != nil {
@@ -169,14 +169,14 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 		if n == "" {
 			return nil, bad("datasets", "empty dataset name")
 		}
-		s.Datasets = append(s.Datasets, DatasetSpec{Name: n, line: lines.find("datasets")})
+		s.Datasets = append(s.Datasets, Dataset{Name: n, Line: lines.find("datasets")})
 	}
 	for i, d := range raw.Dataset {
 		key := fmt.Sprintf("dataset[%d]", i+1)
 		if d.Name == "" {
 			return nil, bad(key+".name", "missing dataset name")
 		}
-		ds := DatasetSpec{Name: d.Name, Classes: d.Classes, As: d.As, Label: d.Label, DropInvalid: d.DropInvalid, line: lines.find(key + ".name")}
+		ds := Dataset{Name: d.Name, Classes: d.Classes, As: d.As, Label: d.Label, DropInvalid: d.DropInvalid, Line: lines.find(key + ".name")}
 		for _, f := range d.Features {
 			switch v := f.(type) {
 			case string:
@@ -213,12 +213,12 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 			return nil, bad("pipelines", "pipeline %q appears twice", p)
 		}
 		seenP[p] = true
-		if err := checkPipeline(p); err != nil {
+		if err := CheckPipeline(p); err != nil {
 			return nil, bad("pipelines", "%v", err)
 		}
 	}
 
-	cv := CVSpec{Method: CVStratified, Folds: 10, Repeats: 1, TestFraction: 0.3}
+	cv := CV{Method: CVStratified, Folds: 10, Repeats: 1, TestFraction: 0.3}
 	if raw.CV != nil {
 		switch raw.CV.Method {
 		case "", "stratified":
@@ -295,6 +295,11 @@ func ParseSpec(file string, data []byte) (*Spec, error) {
 	return s, nil
 }
 
+// LineOf returns the 1-based line of a key path such as "model[2].gamma",
+// "cv.folds" or "model[1]" in the spec text, or 0 when it cannot be
+// located.
+func (s *Spec) LineOf(key string) int { return newKeyLines(s.Source).find(key) }
+
 // keyLines finds the line of a key path such as "model[2].gamma" or
 // "cv.folds" in TOML text, for error messages. It understands the subset of
 // TOML a spec uses: [table], [[array]] and key = value lines. It returns 0
@@ -360,8 +365,16 @@ func (kl keyLines) find(path string) int {
 	return headerLine
 }
 
-// checkPipeline validates a pipeline string without fitting anything.
-func checkPipeline(s string) error {
+// CheckPipeline validates a pipeline string without fitting anything.
+func CheckPipeline(s string) error {
 	_, err := datasets.ParsePipeline(s)
 	return err
+}
+
+// IsPath reports whether a dataset name refers to a file rather than an
+// embedded or synthetic dataset: it contains a path separator or ends in
+// .csv, .tsv or .txt (write ./name for other files).
+func IsPath(name string) bool {
+	l := strings.ToLower(name)
+	return strings.ContainsAny(name, `/\`) || strings.HasSuffix(l, ".csv") || strings.HasSuffix(l, ".tsv") || strings.HasSuffix(l, ".txt")
 }
