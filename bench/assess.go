@@ -10,6 +10,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/datasets"
@@ -178,7 +179,7 @@ type assessDataset struct {
 	spec                 spec.Dataset
 	data                 *datasets.Dataset
 	folds                int
-	quantum, norm, class *Plan
+	quantum, norm, class *plan.Plan
 	qres, nres, cres     []TaskResult
 }
 
@@ -247,7 +248,7 @@ func Assess(ctx context.Context, opt AssessOptions) (*results.Assessment, error)
 // assessRun loads one dataset and runs its three plans.
 func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDataset, error) {
 	base := &spec.Spec{Name: "assess", Seed: o.Seed, File: o.File, Dir: o.Dir, Datasets: []spec.Dataset{ds}}
-	data, err := loadDataset(base, ds)
+	data, err := plan.LoadDataset(base, ds)
 	if err != nil {
 		return nil, err
 	}
@@ -294,7 +295,7 @@ func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDa
 	knn := map[string]any{"kind": "knn", "k": int64(5), "name": assessKNN}
 	plans := []struct {
 		s   *spec.Spec
-		dst **Plan
+		dst **plan.Plan
 		res *[]TaskResult
 	}{
 		{mkSpec(o.Pipelines,
@@ -307,7 +308,7 @@ func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDa
 			map[string]any{"kind": "centroid"}), &ad.class, &ad.cres},
 	}
 	for _, pl := range plans {
-		p, err := NewPlan(pl.s)
+		p, err := plan.New(pl.s)
 		if err != nil {
 			return nil, err
 		}
@@ -331,7 +332,7 @@ func cellOf(sums []results.Summary, pipe, model string) (results.Summary, bool) 
 }
 
 // foldAcc returns the accuracy per (repeat, fold) of one cell.
-func foldAcc(p *Plan, res []TaskResult, pipe, model string) map[foldKey]float64 {
+func foldAcc(p *plan.Plan, res []TaskResult, pipe, model string) map[foldKey]float64 {
 	out := map[foldKey]float64{}
 	for _, r := range res {
 		if p.Spec.Pipelines[r.Task.Pipeline] != pipe || p.Spec.Models[r.Task.Model].Name != model {
@@ -357,7 +358,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 		assessed, row.Weights = assessUniform, "uniform"
 	}
 	var warns []string
-	qsum := ad.quantum.Summarise(ad.qres)
+	qsum := Summarise(ad.quantum, ad.qres)
 	if s, ok := cellOf(qsum, pipe, assessUniform); ok {
 		row.Uniform = s.Metrics[0]
 	}
@@ -395,7 +396,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 	row.Shots90 = percentile(shots, 0.9)
 
 	// Best baseline and the paired difference.
-	csum := ad.class.Summarise(ad.cres)
+	csum := Summarise(ad.class, ad.cres)
 	best := -1
 	for i, s := range csum {
 		if best < 0 || s.Metrics[0].Mean > csum[best].Metrics[0].Mean && !tied(s.Metrics[0].Mean, csum[best].Metrics[0].Mean) {
@@ -448,7 +449,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 		return row, nil, nil, &input.Error{Key: "pipelines", Err: err}
 	}
 	row.Before, row.Lift = before, lift
-	nsum := ad.norm.Summarise(ad.nres)
+	nsum := Summarise(ad.norm, ad.nres)
 	acc := func(p string) float64 {
 		if s, ok := cellOf(nsum, p, assessKNN); ok {
 			return s.Metrics[0].Mean
@@ -468,21 +469,11 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 
 	// The first split: alignment and circuits.
 	sp := ad.quantum.Datasets[0].Splits[0]
-	pl, err := datasets.ParsePipeline(pipe)
+	prep, err := ad.quantum.Prepare(0, pi, 0)
 	if err != nil {
-		return row, nil, nil, &input.Error{Key: "pipelines", Err: err}
+		return row, nil, nil, err
 	}
-	where := fmt.Sprintf("dataset %s, pipeline %s, repeat 0 fold 0", row.Dataset, pipe)
-	Xtr, ytr, rowsTr := gather(data, sp.Train)
-	Xte, _, rowsTe := gather(data, sp.Test)
-	Ztr, err := pl.FitTransform(Xtr, rowsTr)
-	if err != nil {
-		return row, nil, nil, ad.quantum.classify(err, where)
-	}
-	Zte, err := pl.Transform(Xte, rowsTe)
-	if err != nil {
-		return row, nil, nil, ad.quantum.classify(err, where)
-	}
+	where, Ztr, ytr, Zte := prep.Where, prep.Ztr, prep.Ytr, prep.Zte
 	T := TargetKernel(ytr)
 	K, err := InterferenceGram(Ztr)
 	if err != nil {
@@ -513,7 +504,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 				idx[i] = i
 			}
 			if m < len(idx) {
-				rng := NewRand(o.Seed, "assess-subset", row.Dataset, fmt.Sprint(m))
+				rng := plan.NewRand(o.Seed, "assess-subset", row.Dataset, fmt.Sprint(m))
 				idx = balancedSubset(ytr, idx, C, m, rng.IntN)
 			}
 			train := make([][]float64, len(idx))

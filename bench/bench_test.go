@@ -4,6 +4,7 @@ import (
 	"context"
 	"testing"
 
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
 
@@ -19,7 +20,7 @@ func BenchmarkDemoGrid(b *testing.B) {
 			b.ReportAllocs()
 			var tasks int
 			for b.Loop() {
-				p, err := NewPlan(demo)
+				p, err := plan.New(demo)
 				if err != nil {
 					b.Fatal(err)
 				}

@@ -5,6 +5,7 @@ import (
 	"sort"
 
 	"fringe/bench/input"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/datasets"
 	"fringe/qkernel/circuit"
@@ -32,11 +33,11 @@ type CircuitResult struct {
 
 // BuildCircuit loads the dataset, picks the training set (every other row,
 // or a class-balanced random subset of Train rows drawn with a generator
-// derived from Seed), fits the pipeline on the training rows only, and
+// derived from plan.Seed), fits the pipeline on the training rows only, and
 // compiles the circuit for the test row. Errors are input errors.
 func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	base := &spec.Spec{File: "", Seed: req.Seed}
-	data, err := loadDataset(base, req.Dataset)
+	data, err := plan.LoadDataset(base, req.Dataset)
 	if err != nil {
 		return nil, err
 	}
@@ -61,7 +62,7 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	}
 	train := others
 	if req.Train > 0 && req.Train < len(others) {
-		rng := NewRand(req.Seed, "circuit", req.Dataset.Display(), fmt.Sprint(req.Row))
+		rng := plan.NewRand(req.Seed, "circuit", req.Dataset.Display(), fmt.Sprint(req.Row))
 		train = balancedSubset(data.Y, others, len(data.Classes), req.Train, rng.IntN)
 	} else if req.Train > len(others) {
 		return nil, bad("training-set size %d exceeds the %d other rows of dataset %s", req.Train, len(others), req.Dataset.Display())
@@ -70,8 +71,8 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	if err != nil {
 		return nil, &input.Error{Key: "pipeline", Err: err}
 	}
-	Xtr, ytr, rowsTr := gather(data, train)
-	Xte, _, rowsTe := gather(data, []int{pos})
+	Xtr, ytr, rowsTr := plan.Gather(data, train)
+	Xte, _, rowsTe := plan.Gather(data, []int{pos})
 	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
 	if err != nil {
 		return nil, &input.Error{Err: fmt.Errorf("dataset %s, pipeline %s: %w", req.Dataset.Display(), req.Pipeline, err)}

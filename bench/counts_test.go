@@ -18,6 +18,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/qkernel/sim"
 )
@@ -47,14 +48,14 @@ name = "device"
 `
 
 // loopPlan plans loopSpec with its files resolved against dir.
-func loopPlan(t *testing.T, dir, pipelines, dataset, classes, settings string) *Plan {
+func loopPlan(t *testing.T, dir, pipelines, dataset, classes, settings string) *plan.Plan {
 	t.Helper()
 	s, err := spec.Parse(filepath.Join(dir, "loop.toml"), []byte(fmt.Sprintf(loopSpec, pipelines, dataset, classes, settings, settings)))
 	if err != nil {
 		t.Fatal(err)
 	}
 	s.Dir = dir
-	p, err := NewPlan(s)
+	p, err := plan.New(s)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -69,9 +70,9 @@ func loopPlan(t *testing.T, dir, pipelines, dataset, classes, settings string) *
 // multinomial, conditionally exact). It checks that each file of the
 // export holds the circuit it was compiled from, and returns the counts
 // file's text (with a pipeline column if withPipeline).
-func measure(t *testing.T, p *Plan, exportDir string, shots int, withPipeline bool) []byte {
+func measure(t *testing.T, p *plan.Plan, exportDir string, shots int, withPipeline bool) []byte {
 	t.Helper()
-	set, err := p.resolveExport("")
+	set, err := resolveExport(p, "")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -100,7 +101,7 @@ func measure(t *testing.T, p *Plan, exportDir string, shots int, withPipeline bo
 	for di, d := range p.Datasets {
 		for pi := range p.Spec.Pipelines {
 			for si := range d.Splits {
-				err := p.exportUnit(di, pi, si, set, func(it exportItem) error {
+				err := exportUnit(p, di, pi, si, set, func(it exportItem) error {
 					key := fmt.Sprintf("%s/%s/%d/%d/%d", it.Dataset, it.Pipeline, it.Repeat, it.Fold, it.Row)
 					file, ok := fileOf[key]
 					if !ok {
@@ -193,7 +194,7 @@ func TestCountsClosesLoop(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			preds, folds, _ := p.Records(res)
+			preds, folds, _ := Records(p, res)
 			type inst struct {
 				pipe              string
 				repeat, fold, row int
@@ -248,7 +249,7 @@ func TestCountsClosesLoop(t *testing.T) {
 
 // validCounts writes a small well-formed counts file for every test
 // instance of the plan (the counts are arbitrary but valid).
-func validCounts(p *Plan, withPipeline bool) string {
+func validCounts(p *plan.Plan, withPipeline bool) string {
 	var b strings.Builder
 	b.WriteString(strings.Join(modelkit.CountsColumns, ","))
 	if withPipeline {

@@ -11,12 +11,10 @@ import (
 	"time"
 
 	"golang.org/x/sync/errgroup"
-	"gonum.org/v1/gonum/mat"
 
-	"fringe/baselines"
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
-	"fringe/datasets"
+	"fringe/bench/plan"
 	"fringe/qkernel"
 	"fringe/results"
 )
@@ -48,7 +46,7 @@ const DefaultSaveEvery = time.Second
 
 // TaskResult is what one task produced.
 type TaskResult struct {
-	Task    Task
+	Task    plan.Task
 	NTrain  int
 	NTest   int
 	Pred    []int            // predicted class per test instance (split order)
@@ -73,7 +71,7 @@ type TaskResult struct {
 //
 // Execute panics if opt.Tasks holds an index out of range or twice: that
 // is a broken invariant of the caller, not bad input.
-func Execute(ctx context.Context, p *Plan, opt Options) ([]TaskResult, error) {
+func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, error) {
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.NumCPU()
@@ -95,7 +93,7 @@ func Execute(ctx context.Context, p *Plan, opt Options) ([]TaskResult, error) {
 		}
 		slot[i] = k
 	}
-	units := p.unitsOf(tasks)
+	units := p.UnitsOf(tasks)
 	out := make([]TaskResult, len(tasks))
 
 	runCtx, cancel := context.WithCancelCause(ctx)
@@ -123,7 +121,7 @@ func Execute(ctx context.Context, p *Plan, opt Options) ([]TaskResult, error) {
 			if err := gctx.Err(); err != nil {
 				return err
 			}
-			return p.runUnit(gctx, u, finished)
+			return runUnit(gctx, p, u, finished)
 		})
 	}
 	err := g.Wait()
@@ -221,32 +219,19 @@ func (s *saver) close() error {
 // runUnit fits the unit's pipeline on the training part of its split,
 // transforms both parts, and runs each of its tasks' models on them,
 // handing each result to finished as soon as it is complete.
-func (p *Plan) runUnit(ctx context.Context, unit []int, finished func(int, TaskResult)) error {
+func runUnit(ctx context.Context, p *plan.Plan, unit []int, finished func(int, TaskResult)) error {
 	start := time.Now()
 	t0 := p.Tasks[unit[0]]
-	d := p.Datasets[t0.Dataset]
-	sp := d.Splits[t0.Split]
-	pipe, err := datasets.ParsePipeline(p.Spec.Pipelines[t0.Pipeline])
+	pr, err := p.Prepare(t0.Dataset, t0.Pipeline, t0.Split)
 	if err != nil {
-		return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
-	}
-	where := fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, p.Spec.Pipelines[t0.Pipeline], sp.Repeat, sp.Fold)
-	Xtr, ytr, rowsTr := gather(d.Data, sp.Train)
-	Xte, _, rowsTe := gather(d.Data, sp.Test)
-	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
-	if err != nil {
-		return p.classify(err, where)
-	}
-	Zte, err := pipe.Transform(Xte, rowsTe)
-	if err != nil {
-		return p.classify(err, where)
+		return err
 	}
 	shared := time.Since(start) / time.Duration(len(unit))
 	for _, i := range unit {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
-		r, err := p.runModel(ctx, p.Tasks[i], where, Ztr, ytr, rowsTr, Zte, rowsTe)
+		r, err := runModel(ctx, p, p.Tasks[i], pr)
 		if err != nil {
 			if errors.Is(err, input.ErrBad) {
 				return err
@@ -259,29 +244,29 @@ func (p *Plan) runUnit(ctx context.Context, unit []int, finished func(int, TaskR
 	return nil
 }
 
-// runModel fits one task's model on the transformed training part and
-// predicts the transformed test part.
-func (p *Plan) runModel(ctx context.Context, t Task, where string, Ztr *mat.Dense, ytr, rowsTr []int, Zte *mat.Dense, rowsTe []int) (TaskResult, error) {
+// runModel fits one task's model on the prepared (transformed) training
+// part of its split and predicts the prepared test part.
+func runModel(ctx context.Context, p *plan.Plan, t plan.Task, pr *plan.Prepared) (TaskResult, error) {
 	start := time.Now()
 	d := p.Datasets[t.Dataset]
 	sp := d.Splits[t.Split]
 	ms := p.Spec.Models[t.Model]
-	m := ms.New(p.modelSeed(t))
+	m := ms.New(p.ModelSeed(t))
 	if ta, ok := m.(modelkit.TaskAware); ok {
-		ta.SetTask(p.taskContext(ctx, t, rowsTr, rowsTe))
+		ta.SetTask(p.TaskContext(ctx, t, pr))
 	}
-	if err := m.Fit(Ztr, ytr, len(d.Data.Classes)); err != nil {
-		return TaskResult{}, p.classifyModel(err, where, ms.Name, rowsTr)
+	if err := m.Fit(pr.Ztr, pr.Ytr, len(d.Data.Classes)); err != nil {
+		return TaskResult{}, p.ClassifyModel(err, pr.Where, ms.Name, pr.RowsTr)
 	}
 	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test)}
 	var err error
 	if dm, ok := m.(modelkit.Detailer); ok {
-		r.Pred, r.Details, err = dm.PredictDetail(Zte)
+		r.Pred, r.Details, err = dm.PredictDetail(pr.Zte)
 	} else {
-		r.Pred, err = m.Predict(Zte)
+		r.Pred, err = m.Predict(pr.Zte)
 	}
 	if err != nil {
-		return TaskResult{}, p.classifyModel(err, where, ms.Name, rowsTe)
+		return TaskResult{}, p.ClassifyModel(err, pr.Where, ms.Name, pr.RowsTe)
 	}
 	if len(r.Pred) != len(sp.Test) {
 		return TaskResult{}, fmt.Errorf("model %s returned %d predictions for %d test instances", ms.Name, len(r.Pred), len(sp.Test))
@@ -293,62 +278,6 @@ func (p *Plan) runModel(ctx context.Context, t Task, where string, Ztr *mat.Dens
 	r.Scores = results.Score(truth, r.Pred, len(d.Data.Classes))
 	r.Elapsed = time.Since(start)
 	return r, nil
-}
-
-// gather copies the rows idx of a dataset into a new matrix, with their
-// labels and their dataset row ids.
-func gather(d *datasets.Dataset, idx []int) (*mat.Dense, []int, []int) {
-	c := d.Dim()
-	X := mat.NewDense(len(idx), c, nil)
-	y := make([]int, len(idx))
-	rows := make([]int, len(idx))
-	for i, j := range idx {
-		copy(X.RawRowView(i), d.X.RawRowView(j))
-		y[i] = d.Y[j]
-		rows[i] = d.Rows[j]
-	}
-	return X, y, rows
-}
-
-// classify marks pipeline errors that stem from the data as input errors.
-func (p *Plan) classify(err error, where string) error {
-	if errors.Is(err, datasets.ErrZeroVector) || errors.Is(err, datasets.ErrUnknownStep) ||
-		errors.Is(err, datasets.ErrStepParam) || errors.Is(err, datasets.ErrNotFiniteValue) {
-		return &input.Error{File: p.Spec.File, Err: fmt.Errorf("%s: %w", where, err)}
-	}
-	return fmt.Errorf("%s: %w", where, err)
-}
-
-// classifyModel marks model errors caused by the data or parameters as input
-// errors, and maps a vector's position to its dataset row.
-func (p *Plan) classifyModel(err error, where, model string, rows []int) error {
-	var ve *qkernel.VectorError
-	if errors.As(err, &ve) && ve.Pos >= 0 && ve.Pos < len(rows) {
-		err = fmt.Errorf("dataset row %d: %w", rows[ve.Pos], err)
-	}
-	err = fmt.Errorf("%s, model %s: %w", where, model, err)
-	if errors.Is(err, baselines.ErrParam) || errors.Is(err, baselines.ErrData) ||
-		errors.Is(err, qkernel.ErrZeroVector) || errors.Is(err, qkernel.ErrOneClass) ||
-		errors.Is(err, qkernel.ErrTooLarge) || errors.Is(err, qkernel.ErrSubset) || errors.Is(err, qkernel.ErrOption) {
-		return &input.Error{File: p.Spec.File, Err: err}
-	}
-	return err
-}
-
-// modelSeed is the seed a task's model gets. It is derived from the run
-// seed and the task key, except for interference models: they get one seed
-// per (dataset, repeat, fold), shared by every interference model and
-// pipeline of the run, so that on each test instance they draw the same
-// training subset and the same random stream (common random numbers) and
-// their differences (shots against exact, noise against none) are paired.
-func (p *Plan) modelSeed(t Task) uint64 {
-	ms := p.Spec.Models[t.Model]
-	if ms.Kind == "interference" {
-		d := p.Datasets[t.Dataset]
-		sp := d.Splits[t.Split]
-		return Seed(p.Spec.Seed, "interference", d.Name, fmt.Sprint(sp.Repeat), fmt.Sprint(sp.Fold))
-	}
-	return Seed(p.Spec.Seed, "task", p.Key(t))
 }
 
 // meanPAcc is the mean post-selection probability of a task's predictions,

@@ -15,7 +15,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
-	"fringe/datasets"
+	"fringe/bench/plan"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
 )
@@ -53,7 +53,7 @@ type exportSettings struct {
 }
 
 // resolveExport picks the model whose settings the circuits use.
-func (p *Plan) resolveExport(name string) (exportSettings, error) {
+func resolveExport(p *plan.Plan, name string) (exportSettings, error) {
 	pick := func(m modelkit.Spec) exportSettings {
 		b, _ := m.Params["balance"].(bool)
 		k, _ := m.Params["train_subset"].(int)
@@ -109,37 +109,27 @@ type exportItem struct {
 // pipeline is fitted on the training part as in a run, and the training
 // subset of each instance is the one the run's interference models (and a
 // counts model) draw for it.
-func (p *Plan) exportUnit(di, pi, si int, set exportSettings, fn func(exportItem) error) error {
+func exportUnit(p *plan.Plan, di, pi, si int, set exportSettings, fn func(exportItem) error) error {
 	d := p.Datasets[di]
 	sp := d.Splits[si]
 	ps := p.Spec.Pipelines[pi]
-	pipe, err := datasets.ParsePipeline(ps)
+	pr, err := p.Prepare(di, pi, si)
 	if err != nil {
-		return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
+		return err
 	}
-	where := fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, ps, sp.Repeat, sp.Fold)
-	Xtr, ytr, rowsTr := gather(d.Data, sp.Train)
-	Xte, _, rowsTe := gather(d.Data, sp.Test)
-	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
-	if err != nil {
-		return p.classify(err, where)
-	}
-	Zte, err := pipe.Transform(Xte, rowsTe)
-	if err != nil {
-		return p.classify(err, where)
-	}
+	where, Ztr, ytr, rowsTr, Zte, rowsTe := pr.Where, pr.Ztr, pr.Ytr, pr.RowsTr, pr.Zte, pr.RowsTe
 	model := set.model
 	if model == "" {
 		model = "(none: uniform weights)"
 	}
-	q := &qkernel.Classifier{Balance: set.balance, TrainSubset: set.subset, Seed: p.interferenceSeed(di, si)}
+	q := &qkernel.Classifier{Balance: set.balance, TrainSubset: set.subset, Seed: p.InterferenceSeed(di, si)}
 	if err := q.Fit(Ztr, ytr, len(d.Data.Classes)); err != nil {
-		return p.classifyModel(err, where, model, rowsTr)
+		return p.ClassifyModel(err, where, model, rowsTr)
 	}
 	for pos, row := range rowsTe {
 		c, idx, err := q.RowCircuit(Zte.RawRowView(pos), pos)
 		if err != nil {
-			return p.classifyModel(err, where, model, rowsTe)
+			return p.ClassifyModel(err, where, model, rowsTe)
 		}
 		train := make([]int, len(idx))
 		for i, j := range idx {
@@ -170,8 +160,8 @@ func (p *Plan) exportUnit(di, pi, si int, set exportSettings, fn func(exportItem
 // into place when complete; an existing dir is replaced only if it is an
 // earlier export (it holds index.csv) or empty, else ExportCircuits
 // refuses. Errors caused by the input satisfy errors.Is(err, input.ErrBad).
-func ExportCircuits(ctx context.Context, p *Plan, dir string, opt ExportOptions) (*ExportSummary, error) {
-	set, err := p.resolveExport(opt.Model)
+func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOptions) (*ExportSummary, error) {
+	set, err := resolveExport(p, opt.Model)
 	if err != nil {
 		return nil, err
 	}
@@ -222,7 +212,7 @@ func ExportCircuits(ctx context.Context, p *Plan, dir string, opt ExportOptions)
 		}
 		g.Go(func() error {
 			k := u.first
-			return p.exportUnit(u.di, u.pi, u.si, set, func(it exportItem) error {
+			return exportUnit(p, u.di, u.pi, u.si, set, func(it exportItem) error {
 				if err := gctx.Err(); err != nil {
 					return err
 				}

@@ -102,7 +102,7 @@ func TestExportCircuits(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	preds, _, _ := p.Records(res)
+	preds, _, _ := Records(p, res)
 	type inst struct {
 		d, pipe   string
 		fold, row int
@@ -113,7 +113,7 @@ func TestExportCircuits(t *testing.T) {
 			exact[inst{pr.Dataset, pr.Pipeline, pr.Fold, pr.Row}] = i
 		}
 	}
-	set, err := p.resolveExport("exact")
+	set, err := resolveExport(p, "exact")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -121,7 +121,7 @@ func TestExportCircuits(t *testing.T) {
 	for di, d := range p.Datasets {
 		for pi := range p.Spec.Pipelines {
 			for si, sp := range d.Splits {
-				err := p.exportUnit(di, pi, si, set, func(it exportItem) error {
+				err := exportUnit(p, di, pi, si, set, func(it exportItem) error {
 					rec := index[line]
 					line++
 					wantRec := []string{it.Dataset, it.Pipeline, strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold), strconv.Itoa(it.Row),
@@ -189,7 +189,7 @@ func TestExportSettings(t *testing.T) {
 		{"knn-k5", "", 0, "kind knn"},
 		{"nope", "", 0, `no model named "nope" (interference and counts models of the spec: exact, sub)`},
 	} {
-		set, err := p.resolveExport(c.model)
+		set, err := resolveExport(p, c.model)
 		if c.err != "" {
 			if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), c.err) {
 				t.Errorf("model %q: error %v, want one naming %q", c.model, err, c.err)
@@ -201,11 +201,11 @@ func TestExportSettings(t *testing.T) {
 		}
 	}
 	withCounts := mustPlan(t, exportSpec+"\n[[model]]\nkind = \"counts\"\nfile = \"m.csv\"\ntrain_subset = 5\nbalance = true\n")
-	if set, _ := withCounts.resolveExport(""); set.model != "counts-m-k5-balanced" || set.subset != 5 || !set.balance {
+	if set, _ := resolveExport(withCounts, ""); set.model != "counts-m-k5-balanced" || set.subset != 5 || !set.balance {
 		t.Errorf("default with a counts model: %+v", set)
 	}
 	none := mustPlan(t, "name = \"n\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"centroid\"\n")
-	if set, err := none.resolveExport(""); err != nil || set != (exportSettings{}) {
+	if set, err := resolveExport(none, ""); err != nil || set != (exportSettings{}) {
 		t.Errorf("no interference model: %+v, %v", set, err)
 	}
 

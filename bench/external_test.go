@@ -17,6 +17,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/datasets"
 )
@@ -182,7 +183,7 @@ run = %s
 %s
 `
 
-func commandPlan(t *testing.T, run, extra string) *Plan {
+func commandPlan(t *testing.T, run, extra string) *plan.Plan {
 	t.Helper()
 	return mustPlan(t, fmt.Sprintf(commandSpec, run, extra))
 }
@@ -198,7 +199,7 @@ func TestCommandMatchesKNN(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	preds, _, _ := p.Records(res)
+	preds, _, _ := Records(p, res)
 	byModel := map[string]map[string]string{}
 	for _, pr := range preds {
 		if byModel[pr.Model] == nil {
@@ -274,12 +275,12 @@ run = %s
 		if err != nil {
 			t.Fatal(err)
 		}
-		if string(seed) != strconv.FormatUint(p.modelSeed(task), 10) {
-			t.Errorf("task %s: FRINGE_SEED %s, want %d", p.Key(task), seed, p.modelSeed(task))
+		if string(seed) != strconv.FormatUint(p.ModelSeed(task), 10) {
+			t.Errorf("task %s: FRINGE_SEED %s, want %d", p.Key(task), seed, p.ModelSeed(task))
 		}
 		sp := d.Splits[task.Split]
-		Xtr, ytr, rowsTr := gather(d.Data, sp.Train)
-		Xte, _, rowsTe := gather(d.Data, sp.Test)
+		Xtr, ytr, rowsTr := plan.Gather(d.Data, sp.Train)
+		Xte, _, rowsTe := plan.Gather(d.Data, sp.Test)
 		Ztr, err := pipe.FitTransform(Xtr, rowsTr)
 		if err != nil {
 			t.Fatal(err)
@@ -424,32 +425,6 @@ func TestCommandCancel(t *testing.T) {
 	}
 	if left, _ := filepath.Glob(filepath.Join(tmp, "fringe-task-*")); len(left) > 0 {
 		t.Errorf("temporary folders left after cancellation: %v", left)
-	}
-}
-
-// TestInterferenceSeed checks that the seed handed to exports and counts
-// models is the one the run's interference models get.
-func TestInterferenceSeed(t *testing.T) {
-	p := mustPlan(t, `
-name = "s"
-seed = 12
-datasets = ["iris"]
-[cv]
-folds = 3
-repeats = 2
-[[model]]
-kind = "interference"
-[[model]]
-kind = "counts"
-file = "x.csv"
-`)
-	for _, task := range p.Tasks {
-		if p.Spec.Models[task.Model].Kind != "interference" {
-			continue
-		}
-		if got, want := p.interferenceSeed(task.Dataset, task.Split), p.modelSeed(task); got != want {
-			t.Errorf("task %s: interference seed %d, model seed %d", p.Key(task), got, want)
-		}
 	}
 }
 

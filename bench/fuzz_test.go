@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"fringe/bench/input"
+	"fringe/bench/plan"
 )
 
 var fixedTime = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
@@ -24,7 +25,7 @@ func watchdog(what string) func() bool {
 	return t.Stop
 }
 
-func executeForFuzz(p *Plan) ([]TaskResult, error) {
+func executeForFuzz(p *plan.Plan) ([]TaskResult, error) {
 	return Execute(context.Background(), p, Options{Workers: 1})
 }
 
@@ -44,7 +45,7 @@ func checkInputError(t *testing.T, err error) {
 // results are turned into records and summaries.
 func FuzzTaskFile(f *testing.F) {
 	p := clusterPlan(f, clusterSpec)
-	id := p.identity(Shard{}, len(p.Tasks), 1, fixedTime)
+	id := identity(p, plan.Shard{}, len(p.Tasks), 1, fixedTime)
 	res, err := executeForFuzz(p)
 	if err != nil {
 		f.Fatal(err)
@@ -76,31 +77,8 @@ func FuzzTaskFile(f *testing.F) {
 			for _, r := range rs {
 				out[r.Task.Index] = *r
 			}
-			p.Records(out)
-			p.Summarise(out)
-		}
-	})
-}
-
-// FuzzParseShard feeds arbitrary text to the -shard parser.
-func FuzzParseShard(f *testing.F) {
-	for _, s := range []string{"1/1", "3/7", "0/1", "2/1", "1/0", "a/b", "1/2/3", "-1/-1", " 2/3", "99999999999999999999/1"} {
-		f.Add(s)
-	}
-	f.Fuzz(func(t *testing.T, s string) {
-		defer watchdog("ParseShard")()
-		sh, err := ParseShard(s)
-		if err != nil {
-			if !errors.Is(err, input.ErrBad) || !errors.Is(err, ErrShard) {
-				t.Fatalf("%q: %v is not an input and shard error", s, err)
-			}
-			return
-		}
-		if sh.I < 1 || sh.I > sh.N || sh.N > MaxShards {
-			t.Fatalf("%q accepted as %d/%d", s, sh.I, sh.N)
-		}
-		if back, err := ParseShard(sh.String()); err != nil || back != sh {
-			t.Fatalf("%q: %v does not round-trip (%v)", s, sh, err)
+			Records(p, out)
+			Summarise(p, out)
 		}
 	})
 }

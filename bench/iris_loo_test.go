@@ -11,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -78,15 +79,15 @@ func TestIrisLOOAgainstSklearn(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	plan, err := NewPlan(s)
+	pl, err := plan.New(s)
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := Execute(context.Background(), plan, Options{Workers: 2})
+	res, err := Execute(context.Background(), pl, Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
-	preds, _, _ := plan.Records(res)
+	preds, _, _ := Records(pl, res)
 	got := map[string]string{}
 	for _, p := range preds {
 		got[fmt.Sprintf("%s/%s/%d", p.Pipeline, p.Model, p.Row)] = p.Predicted

@@ -10,14 +10,15 @@ import (
 	"strings"
 	"time"
 
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
 
 // Merged is a run rebuilt from the partial run directories of all its
 // shards: the plan (from the spec recorded in the shards) and the results
-// of every task in task order, ready for Plan.Write.
+// of every task in task order, ready for plan.Plan.Write.
 type Merged struct {
-	Plan    *Plan
+	Plan    *plan.Plan
 	Results []TaskResult
 	Shards  int
 	Start   time.Time // when the earliest shard began
@@ -39,7 +40,7 @@ func Merge(dirs []string) (*Merged, error) {
 		return nil, partialErr("", "merge: no partial run directories given")
 	}
 	ids := make([]runIdentity, len(dirs))
-	shards := make([]Shard, len(dirs))
+	shards := make([]plan.Shard, len(dirs))
 	for k, dir := range dirs {
 		for _, prev := range dirs[:k] {
 			if sameDir(prev, dir) {
@@ -59,7 +60,7 @@ func Merge(dirs []string) (*Merged, error) {
 		if err != nil {
 			return nil, bad(dir, "%v", err)
 		}
-		s, err := ParseShard(id.Shard)
+		s, err := plan.ParseShard(id.Shard)
 		if err != nil {
 			return nil, bad(dir, "%s records a bad shard %q", identityFile, id.Shard)
 		}
@@ -107,38 +108,38 @@ func Merge(dirs []string) (*Merged, error) {
 	if spec.CanonicalSHA(sp.Source) != first.SpecSHA {
 		return nil, bad(dirs[0], "%s is inconsistent: its spec text does not match its spec_sha256", identityFile)
 	}
-	plan, err := NewPlan(sp)
+	pl, err := plan.New(sp)
 	if err != nil {
 		return nil, fmt.Errorf("merge: rebuild the plan of spec %q recorded in %s: %w", sp.Name, dirs[0], err)
 	}
-	if fp := plan.Fingerprint(); fp != first.PlanSHA {
+	if fp := pl.Fingerprint(); fp != first.PlanSHA {
 		return nil, bad(dirs[0], "the data the shards were computed on has changed since (plan sha256 %.12s, now %.12s): run the shards again", first.PlanSHA, fp)
 	}
-	if len(plan.Tasks) != first.Tasks {
-		return nil, bad(dirs[0], "records %d tasks, the plan has %d", first.Tasks, len(plan.Tasks))
+	if len(pl.Tasks) != first.Tasks {
+		return nil, bad(dirs[0], "records %d tasks, the plan has %d", first.Tasks, len(pl.Tasks))
 	}
 
-	m := &Merged{Plan: plan, Shards: n, Workers: first.Workers}
-	all := make([]*TaskResult, len(plan.Tasks))
+	m := &Merged{Plan: pl, Shards: n, Workers: first.Workers}
+	all := make([]*TaskResult, len(pl.Tasks))
 	for k, dir := range dirs {
-		want, err := plan.ShardTasks(shards[k])
+		want, err := pl.ShardTasks(shards[k])
 		if err != nil {
 			return nil, bad(dir, "%v", err)
 		}
 		if len(want) != ids[k].ShardTasks {
 			return nil, bad(dir, "records %d tasks for shard %s, the plan gives it %d", ids[k].ShardTasks, shards[k], len(want))
 		}
-		member := make([]bool, len(plan.Tasks))
+		member := make([]bool, len(pl.Tasks))
 		for _, i := range want {
 			member[i] = true
 		}
-		rs, _, err := loadTasks(dir, plan, ids[k], member, true)
+		rs, _, err := loadTasks(dir, pl, ids[k], member, true)
 		if err != nil {
 			return nil, err
 		}
 		for _, r := range rs {
 			if all[r.Task.Index] != nil {
-				return nil, bad(dir, "task %s is recorded twice", plan.Key(r.Task))
+				return nil, bad(dir, "task %s is recorded twice", pl.Key(r.Task))
 			}
 			all[r.Task.Index] = r
 		}

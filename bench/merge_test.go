@@ -9,17 +9,18 @@ import (
 	"testing"
 
 	"fringe/bench/input"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
 
 // writeShards runs every shard of n into dir/shard-i and returns the
 // directories.
-func writeShards(t *testing.T, p *Plan, dir string, n int) []string {
+func writeShards(t *testing.T, p *plan.Plan, dir string, n int) []string {
 	t.Helper()
 	var dirs []string
 	for i := 1; i <= n; i++ {
 		d := filepath.Join(dir, "shard-"+string(rune('0'+i)))
-		pr, err := OpenPartial(d, p, Shard{i, n}, PartialOptions{Workers: 1})
+		pr, err := OpenPartial(d, p, plan.Shard{I: i, N: n}, PartialOptions{Workers: 1})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -70,7 +71,7 @@ func TestMergeRefuses(t *testing.T) {
 
 	// An incomplete shard: shard 2 of 3 with only part of its tasks.
 	inc := filepath.Join(base, "incomplete")
-	pr, _ := OpenPartial(inc, p, Shard{2, 3}, PartialOptions{})
+	pr, _ := OpenPartial(inc, p, plan.Shard{I: 2, N: 3}, PartialOptions{})
 	todo := pr.Missing()
 	if _, err := Execute(context.Background(), p, Options{Workers: 1, Tasks: todo[:5], Save: pr.Save}); err != nil {
 		t.Fatal(err)
@@ -130,7 +131,7 @@ func TestMergeRefuses(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cp, err := NewPlan(s)
+	cp, err := plan.New(s)
 	if err != nil {
 		t.Fatal(err)
 	}

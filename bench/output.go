@@ -11,6 +11,7 @@ import (
 	"runtime/debug"
 	"time"
 
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
@@ -24,7 +25,7 @@ const Alpha = 0.05
 
 // Records turns task results into the rows of predictions.csv, folds.csv and
 // timings.csv, in task order.
-func (p *Plan) Records(res []TaskResult) ([]results.Prediction, []results.Fold, []results.Timing) {
+func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fold, []results.Timing) {
 	var preds []results.Prediction
 	var folds []results.Fold
 	var times []results.Timing
@@ -90,7 +91,7 @@ func (p *Plan) Records(res []TaskResult) ([]results.Prediction, []results.Fold, 
 // that interval degenerates, the metrics are computed on the pooled
 // predictions and accuracy gets a Wilson score interval (the other metrics
 // get none). Interval bounds are clipped to [0, 1], the range of every metric.
-func (p *Plan) Summarise(res []TaskResult) []results.Summary {
+func Summarise(p *plan.Plan, res []TaskResult) []results.Summary {
 	type cellKey struct{ d, p, m int }
 	var order []cellKey
 	cells := map[cellKey][]TaskResult{}
@@ -186,7 +187,7 @@ func mean(v []float64) float64 {
 }
 
 // Caption describes the protocol of a run for table captions.
-func (p *Plan) Caption() string {
+func Caption(p *plan.Plan) string {
 	s := p.Spec
 	var proto string
 	switch s.CV.Method {
@@ -212,7 +213,7 @@ type RunInfo struct {
 }
 
 // Manifest builds the run's manifest.
-func (p *Plan) Manifest(info RunInfo, warnings []string) *results.Manifest {
+func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 	m := &results.Manifest{
 		Tool: "fringe", Version: Version, GoVersion: runtime.Version(),
 		Modules:  map[string]string{},
@@ -254,9 +255,9 @@ func (p *Plan) Manifest(info RunInfo, warnings []string) *results.Manifest {
 // statistics. Files are first written into a temporary directory beside
 // dir, which is renamed into place only when every file is complete; an
 // existing dir is replaced only then. On error nothing is left behind.
-func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []string) error {
-	preds, folds, times := p.Records(res)
-	in := p.reportInput(res, preds, folds)
+func Write(p *plan.Plan, dir string, res []TaskResult, info RunInfo, warnings []string) error {
+	preds, folds, times := Records(p, res)
+	in := reportInput(p, res, preds, folds)
 	summary := in.Summary
 	rep, err := Analyse(in)
 	if err != nil {
@@ -268,7 +269,7 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 		if err != nil {
 			return err
 		}
-		kf, err := p.KernelFigure()
+		kf, err := KernelFigure(p)
 		if err != nil {
 			return err
 		}
@@ -286,7 +287,7 @@ func (p *Plan) Write(dir string, res []TaskResult, info RunInfo, warnings []stri
 		{"summary.md", func(b *bytes.Buffer) error { return results.WriteReportMarkdown(b, rep) }},
 		{"comparisons.csv", func(b *bytes.Buffer) error { return results.WriteComparisons(b, rep.Comparisons) }},
 		{"timings.csv", func(b *bytes.Buffer) error { return results.WriteTimings(b, times) }},
-		{"manifest.json", func(b *bytes.Buffer) error { return results.WriteManifest(b, p.Manifest(info, allWarnings)) }},
+		{"manifest.json", func(b *bytes.Buffer) error { return results.WriteManifest(b, Manifest(p, info, allWarnings)) }},
 	}
 	files = append(files, figureFiles(figs)...)
 	return writeDir(dir, files)

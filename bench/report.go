@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"fringe/bench/modelkit"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
@@ -92,15 +93,15 @@ type ReportInput struct {
 }
 
 // Report analyses a finished run: Analyse on its records.
-func (p *Plan) Report(res []TaskResult) (*results.Report, error) {
-	preds, folds, _ := p.Records(res)
-	return Analyse(p.reportInput(res, preds, folds))
+func Report(p *plan.Plan, res []TaskResult) (*results.Report, error) {
+	preds, folds, _ := Records(p, res)
+	return Analyse(reportInput(p, res, preds, folds))
 }
 
-func (p *Plan) reportInput(res []TaskResult, preds []results.Prediction, folds []results.Fold) ReportInput {
+func reportInput(p *plan.Plan, res []TaskResult, preds []results.Prediction, folds []results.Fold) ReportInput {
 	in := ReportInput{
 		Name: p.Spec.Name, Seed: p.Spec.Seed, CV: p.Spec.CV,
-		Summary: p.Summarise(res), Folds: folds, Predictions: preds,
+		Summary: Summarise(p, res), Folds: folds, Predictions: preds,
 		Label: "tab:" + p.Spec.Name,
 	}
 	for _, m := range p.Spec.Models {

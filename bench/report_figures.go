@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"fringe/bench/input"
+	"fringe/bench/plan"
 	"fringe/datasets"
 	"fringe/results"
 )
@@ -301,7 +302,7 @@ func paccFigures(rep *results.Report, preds []results.Prediction) ([]results.Fig
 // computed as the model would on the dataset transformed by the spec's
 // first pipeline ending in l2 (fitted on all rows, for illustration), or
 // by its first pipeline when none ends in l2.
-func (p *Plan) KernelFigure() (results.Figure, error) {
+func KernelFigure(p *plan.Plan) (results.Figure, error) {
 	var curves []results.KernelCurve
 	seen := map[string]bool{}
 	pipe := p.Spec.Pipelines[0]

@@ -15,6 +15,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/bench/modelkit"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
@@ -416,7 +417,7 @@ kind = "centroid"
 	dir := t.TempDir()
 	var outs [2]string
 	for i, w := range []int{1, 2} {
-		p, err := NewPlan(s)
+		p, err := plan.New(s)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -425,7 +426,7 @@ kind = "centroid"
 			t.Fatal(err)
 		}
 		outs[i] = filepath.Join(dir, []string{"a", "b"}[i])
-		if err := p.Write(outs[i], res, RunInfo{Workers: w}, nil); err != nil {
+		if err := Write(p, outs[i], res, RunInfo{Workers: w}, nil); err != nil {
 			t.Fatal(err)
 		}
 	}

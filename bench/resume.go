@@ -3,13 +3,11 @@ package bench
 import (
 	"bytes"
 	"crypto/sha256"
-	"encoding/binary"
 	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io/fs"
-	"math"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -18,6 +16,7 @@ import (
 	"time"
 
 	"fringe/bench/input"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
 
@@ -140,7 +139,7 @@ func (a runIdentity) differences(b runIdentity) string {
 }
 
 // identity builds the identity of a plan's shard.
-func (p *Plan) identity(s Shard, nShardTasks, workers int, started time.Time) runIdentity {
+func identity(p *plan.Plan, s plan.Shard, nShardTasks, workers int, started time.Time) runIdentity {
 	dir := p.Spec.Dir // "" for a built-in spec
 	if dir != "" {
 		if abs, err := filepath.Abs(dir); err == nil {
@@ -156,89 +155,6 @@ func (p *Plan) identity(s Shard, nShardTasks, workers int, started time.Time) ru
 	}
 }
 
-// Fingerprint returns the hex SHA-256 of what the plan computes on: every
-// dataset as loaded (names, classes, features, rows, labels, values bit
-// for bit), its splits, the pipelines and the task keys. Two plans with the
-// same fingerprint and spec give the same results.
-func (p *Plan) Fingerprint() string {
-	h := sha256.New()
-	var buf [8]byte
-	u64 := func(v uint64) {
-		binary.LittleEndian.PutUint64(buf[:], v)
-		h.Write(buf[:])
-	}
-	str := func(s string) {
-		u64(uint64(len(s)))
-		h.Write([]byte(s))
-	}
-	ints := func(v []int) {
-		u64(uint64(len(v)))
-		for _, x := range v {
-			u64(uint64(x))
-		}
-	}
-	u64(uint64(len(p.Datasets)))
-	for _, d := range p.Datasets {
-		str(d.Name)
-		u64(uint64(len(d.Data.Classes)))
-		for _, c := range d.Data.Classes {
-			str(c)
-		}
-		u64(uint64(len(d.Data.Features)))
-		for _, f := range d.Data.Features {
-			str(f)
-		}
-		ints(d.Data.Rows)
-		ints(d.Data.Y)
-		r, c := d.Data.X.Dims()
-		u64(uint64(r))
-		u64(uint64(c))
-		for i := 0; i < r; i++ {
-			for _, x := range d.Data.X.RawRowView(i) {
-				u64(math.Float64bits(x))
-			}
-		}
-		u64(uint64(len(d.Splits)))
-		for _, sp := range d.Splits {
-			u64(uint64(sp.Repeat))
-			u64(uint64(sp.Fold))
-			ints(sp.Train)
-			ints(sp.Test)
-		}
-	}
-	u64(uint64(len(p.Spec.Pipelines)))
-	for _, s := range p.Spec.Pipelines {
-		str(s)
-	}
-	u64(uint64(len(p.Tasks)))
-	for _, t := range p.Tasks {
-		str(p.Key(t))
-	}
-	// Files a model reads while it runs: a counts file, and the files an
-	// external program's command line names (its script, say). A change to
-	// one of them between sessions must not mix old and new results.
-	for _, f := range p.modelInputFiles() {
-		str(f)
-		if data, err := os.ReadFile(f); err == nil {
-			sum := sha256.Sum256(data)
-			h.Write(sum[:])
-		} else {
-			str("unreadable")
-		}
-	}
-	return hex.EncodeToString(h.Sum(nil))
-}
-
-// modelInputFiles lists, in model order, the files the run's models read
-// while they run (modelkit.Spec.InputFiles).
-func (p *Plan) modelInputFiles() []string {
-	var out []string
-	for _, m := range p.Spec.Models {
-		out = append(out, m.InputFiles(p.Spec.Dir)...)
-	}
-	return out
-}
-
 // PartialOptions configure OpenPartial.
 type PartialOptions struct {
 	// Fresh discards an existing partial run directory (one holding
@@ -250,14 +166,14 @@ type PartialOptions struct {
 }
 
 // Partial is a partial run directory opened for one shard of a plan (the
-// whole plan for Shard{}): the tasks finished so far, and Save to add
+// whole plan for plan.Shard{}): the tasks finished so far, and Save to add
 // more. The directory is created on the first Save, so a run that fails
 // before finishing anything leaves nothing behind. Its methods are safe for
 // concurrent use.
 type Partial struct {
 	dir    string
-	plan   *Plan
-	shard  Shard
+	plan   *plan.Plan
+	shard  plan.Shard
 	id     runIdentity
 	want   []int  // the shard's tasks, in task order
 	member []bool // member[i]: task i belongs to the shard
@@ -281,7 +197,7 @@ type Partial struct {
 // files contradict the plan. A task file that cannot be read or decoded
 // (left damaged by a machine crash) is deleted with a warning (Warnings):
 // its tasks are run again.
-func OpenPartial(dir string, p *Plan, s Shard, opt PartialOptions) (*Partial, error) {
+func OpenPartial(dir string, p *plan.Plan, s plan.Shard, opt PartialOptions) (*Partial, error) {
 	want, err := p.ShardTasks(s)
 	if err != nil {
 		return nil, err
@@ -290,11 +206,11 @@ func OpenPartial(dir string, p *Plan, s Shard, opt PartialOptions) (*Partial, er
 	if start.IsZero() {
 		start = time.Now()
 	}
-	pr := &Partial{dir: dir, plan: p, shard: s.norm(), want: want, member: make([]bool, len(p.Tasks)), have: make([]*TaskResult, len(p.Tasks))}
+	pr := &Partial{dir: dir, plan: p, shard: s.Norm(), want: want, member: make([]bool, len(p.Tasks)), have: make([]*TaskResult, len(p.Tasks))}
 	for _, i := range want {
 		pr.member[i] = true
 	}
-	pr.id = p.identity(s.norm(), len(want), opt.Workers, start)
+	pr.id = identity(p, s.Norm(), len(want), opt.Workers, start)
 	bad := func(format string, args ...any) error { return partialErr(dir, format, args...) }
 	st, err := os.Stat(dir)
 	if errors.Is(err, fs.ErrNotExist) {
@@ -637,7 +553,7 @@ var taskFileName = regexp.MustCompile(`^[0-9]{7,}\.json$`)
 // decode is an error when strict (merge); otherwise (resume) it is
 // deleted, its tasks are run again, and a warning says so. Leftover
 // temporary files are removed unless strict.
-func loadTasks(dir string, p *Plan, id runIdentity, member []bool, strict bool) ([]*TaskResult, []string, error) {
+func loadTasks(dir string, p *plan.Plan, id runIdentity, member []bool, strict bool) ([]*TaskResult, []string, error) {
 	tdir := filepath.Join(dir, tasksDir)
 	entries, err := os.ReadDir(tdir)
 	if errors.Is(err, fs.ErrNotExist) {

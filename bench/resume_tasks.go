@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"time"
 
+	"fringe/bench/plan"
 	"fringe/qkernel"
 	"fringe/results"
 )
@@ -87,7 +88,7 @@ func (f *jsonFloat) UnmarshalJSON(b []byte) error {
 }
 
 // encodeTasks writes a batch of results as a task file.
-func encodeTasks(p *Plan, run string, batch []TaskResult) ([]byte, error) {
+func encodeTasks(p *plan.Plan, run string, batch []TaskResult) ([]byte, error) {
 	tf := taskFile{Run: run, Tasks: make([]taskJSON, len(batch))}
 	for k, r := range batch {
 		tj := taskJSON{Index: r.Task.Index, Key: p.Key(r.Task), NTrain: r.NTrain, NTest: r.NTest, ElapsedNS: int64(r.Elapsed), Pred: r.Pred}
@@ -119,7 +120,7 @@ func encodeTasks(p *Plan, run string, batch []TaskResult) ([]byte, error) {
 // recomputed from the predictions (results.Score is a function of them),
 // so a task file cannot carry scores that contradict its predictions.
 // Syntax errors are *damagedError.
-func decodeTasks(p *Plan, run string, member []bool, data []byte) ([]*TaskResult, error) {
+func decodeTasks(p *plan.Plan, run string, member []bool, data []byte) ([]*TaskResult, error) {
 	var tf taskFile
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
@@ -146,7 +147,7 @@ func decodeTasks(p *Plan, run string, member []bool, data []byte) ([]*TaskResult
 	return out, nil
 }
 
-func decodeTask(p *Plan, member []bool, tj taskJSON) (*TaskResult, error) {
+func decodeTask(p *plan.Plan, member []bool, tj taskJSON) (*TaskResult, error) {
 	if tj.Index < 0 || tj.Index >= len(p.Tasks) {
 		return nil, fmt.Errorf("task index %d out of range (the plan has %d tasks)", tj.Index, len(p.Tasks))
 	}

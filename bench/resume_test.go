@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"fringe/bench/input"
+	"fringe/bench/plan"
 )
 
 // TestJSONFloatRoundTrip checks that the task-file float encoding gives
@@ -44,7 +45,7 @@ func TestJSONFloatRoundTrip(t *testing.T) {
 }
 
 // runPartial runs the tasks a partial directory lacks and saves them.
-func runPartial(t *testing.T, p *Plan, pr *Partial) {
+func runPartial(t *testing.T, p *plan.Plan, pr *Partial) {
 	t.Helper()
 	if _, err := Execute(context.Background(), p, Options{Workers: 2, Tasks: pr.Missing(), Save: pr.Save}); err != nil {
 		t.Fatal(err)
@@ -66,7 +67,7 @@ func TestPartialRoundTrip(t *testing.T) {
 		t.Fatal("the one-shot model produced no NaN probability; the NaN round trip is not exercised")
 	}
 	dir := filepath.Join(t.TempDir(), "run.partial")
-	pr, err := OpenPartial(dir, p, Shard{}, PartialOptions{Workers: 2})
+	pr, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -82,7 +83,7 @@ func TestPartialRoundTrip(t *testing.T) {
 			t.Errorf("partial directory lacks %s: %v", f, err)
 		}
 	}
-	again, err := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	again, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -111,17 +112,17 @@ func TestPartialRoundTrip(t *testing.T) {
 func TestPartialIdentity(t *testing.T) {
 	p := clusterPlan(t, clusterSpec)
 	dir := filepath.Join(t.TempDir(), "run.partial")
-	pr, err := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	pr, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	sub, _ := p.ShardTasks(Shard{1, 2})
+	sub, _ := p.ShardTasks(plan.Shard{I: 1, N: 2})
 	if _, err := Execute(context.Background(), p, Options{Workers: 2, Tasks: sub, Save: pr.Save}); err != nil {
 		t.Fatal(err)
 	}
 	pr.Close()
 	reordered := "# the same experiment, reformatted\n" + strings.Replace(clusterSpec, "name = \"cluster-test\"\nseed = 3", "seed   =   3   # same\nname = 'cluster-test'", 1)
-	same, err := OpenPartial(dir, clusterPlan(t, reordered), Shard{}, PartialOptions{})
+	same, err := OpenPartial(dir, clusterPlan(t, reordered), plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatalf("a reformatted spec is refused: %v", err)
 	}
@@ -132,13 +133,13 @@ func TestPartialIdentity(t *testing.T) {
 	for _, c := range []struct {
 		name  string
 		spec  string
-		shard Shard
+		shard plan.Shard
 		want  string
 	}{
-		{"seed", strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1), Shard{}, "seed 3, not 4"},
-		{"value", strings.Replace(clusterSpec, "k = 3", "k = 5", 1), Shard{}, "a different spec"},
-		{"name", strings.Replace(clusterSpec, `"cluster-test"`, `"other"`, 1), Shard{}, `spec "cluster-test", not "other"`},
-		{"shard", clusterSpec, Shard{1, 2}, "shard 1/1, not 1/2"},
+		{"seed", strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1), plan.Shard{}, "seed 3, not 4"},
+		{"value", strings.Replace(clusterSpec, "k = 3", "k = 5", 1), plan.Shard{}, "a different spec"},
+		{"name", strings.Replace(clusterSpec, `"cluster-test"`, `"other"`, 1), plan.Shard{}, `spec "cluster-test", not "other"`},
+		{"shard", clusterSpec, plan.Shard{I: 1, N: 2}, "shard 1/1, not 1/2"},
 	} {
 		_, err := OpenPartial(dir, clusterPlan(t, c.spec), c.shard, PartialOptions{})
 		if err == nil || !errors.Is(err, input.ErrBad) || !errors.Is(err, ErrPartial) {
@@ -152,7 +153,7 @@ func TestPartialIdentity(t *testing.T) {
 		}
 	}
 	// -fresh discards it.
-	fresh, err := OpenPartial(dir, clusterPlan(t, strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1)), Shard{}, PartialOptions{Fresh: true})
+	fresh, err := OpenPartial(dir, clusterPlan(t, strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1)), plan.Shard{}, PartialOptions{Fresh: true})
 	if err != nil || fresh.Loaded() != 0 {
 		t.Fatalf("fresh: %v, %d loaded", err, fresh.Loaded())
 	}
@@ -170,7 +171,7 @@ func TestPartialIdentity(t *testing.T) {
 func TestPartialDamage(t *testing.T) {
 	p := clusterPlan(t, clusterSpec)
 	dir := filepath.Join(t.TempDir(), "run.partial")
-	pr, _ := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	pr, _ := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	runPartial(t, p, pr)
 	files, _ := filepath.Glob(filepath.Join(dir, "tasks", "*.json"))
 	if len(files) == 0 {
@@ -184,7 +185,7 @@ func TestPartialDamage(t *testing.T) {
 	n0 := len(tf.Tasks)
 	os.WriteFile(files[0], data[:len(data)/2], 0o644)
 	os.WriteFile(filepath.Join(dir, "tasks", ".tmp-0000007.json-123"), []byte("{"), 0o644)
-	again, err := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	again, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -212,7 +213,7 @@ func TestPartialDamage(t *testing.T) {
 		b, _ := json.Marshal(tf)
 		os.WriteFile(files[0], b, 0o644)
 		defer os.WriteFile(files[0], data, 0o644)
-		_, err := OpenPartial(dir, p, Shard{}, PartialOptions{})
+		_, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 		return err
 	}
 	for name, edit := range map[string]func(*taskFile){
@@ -229,7 +230,7 @@ func TestPartialDamage(t *testing.T) {
 			t.Errorf("%s: err %v, want an input error", name, err)
 		}
 	}
-	if _, err := OpenPartial(dir, p, Shard{}, PartialOptions{}); err != nil {
+	if _, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{}); err != nil {
 		t.Fatalf("restored directory refused: %v", err)
 	}
 
@@ -238,7 +239,7 @@ func TestPartialDamage(t *testing.T) {
 	os.MkdirAll(other, 0o755)
 	os.WriteFile(filepath.Join(other, "notes.txt"), []byte("keep me"), 0o644)
 	for _, fresh := range []bool{false, true} {
-		if _, err := OpenPartial(other, p, Shard{}, PartialOptions{Fresh: fresh}); err == nil || !strings.Contains(err.Error(), "not a partial run directory") {
+		if _, err := OpenPartial(other, p, plan.Shard{}, PartialOptions{Fresh: fresh}); err == nil || !strings.Contains(err.Error(), "not a partial run directory") {
 			t.Errorf("fresh=%v: err %v, want a refusal", fresh, err)
 		}
 	}
@@ -251,7 +252,7 @@ func TestPartialDamage(t *testing.T) {
 	killed := filepath.Join(t.TempDir(), "killed.partial")
 	os.MkdirAll(killed, 0o755)
 	os.WriteFile(filepath.Join(killed, ".tmp-run.json-4711"), []byte("{\"form"), 0o644)
-	kp, err := OpenPartial(killed, p, Shard{}, PartialOptions{})
+	kp, err := OpenPartial(killed, p, plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatalf("directory left by a kill during creation: %v", err)
 	}
@@ -272,7 +273,7 @@ func TestExecuteCancelKeepsFinished(t *testing.T) {
 		t.Fatal(err)
 	}
 	dir := filepath.Join(t.TempDir(), "run.partial")
-	pr, _ := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	pr, _ := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	ctx, cancel := context.WithCancel(context.Background())
 	var progressed atomic.Int64
 	_, err = Execute(ctx, p, Options{Workers: 2, Tasks: pr.Missing(), Save: pr.Save, Progress: func(done, total int) {
@@ -288,7 +289,7 @@ func TestExecuteCancelKeepsFinished(t *testing.T) {
 	if got := int64(pr.Finished()); got != progressed.Load() || got < 20 || got >= int64(len(p.Tasks)) {
 		t.Fatalf("%d tasks saved, %d reported finished; want equal, >= 20 and < %d", got, progressed.Load(), len(p.Tasks))
 	}
-	again, err := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	again, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -323,8 +324,8 @@ func TestSaveErrorStopsRun(t *testing.T) {
 func TestPartialLock(t *testing.T) {
 	p := clusterPlan(t, clusterSpec)
 	dir := filepath.Join(t.TempDir(), "run.partial")
-	a, _ := OpenPartial(dir, p, Shard{}, PartialOptions{})
-	b, _ := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	a, _ := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
+	b, _ := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	res, err := Execute(context.Background(), p, Options{Workers: 1, Tasks: []int{0, 1}})
 	if err != nil {
 		t.Fatal(err)
@@ -338,12 +339,12 @@ func TestPartialLock(t *testing.T) {
 		t.Fatalf("second creator: %v, want in use", err)
 	}
 	for _, fresh := range []bool{false, true} {
-		if _, err := OpenPartial(dir, p, Shard{}, PartialOptions{Fresh: fresh}); err == nil || !strings.Contains(err.Error(), "in use") {
+		if _, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{Fresh: fresh}); err == nil || !strings.Contains(err.Error(), "in use") {
 			t.Fatalf("fresh=%v while locked: %v, want in use", fresh, err)
 		}
 	}
 	a.Close()
-	c, err := OpenPartial(dir, p, Shard{}, PartialOptions{})
+	c, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatalf("after Close: %v", err)
 	}

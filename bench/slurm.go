@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"fringe/bench/input"
+	"fringe/bench/plan"
 )
 
 // SlurmOptions describe the cluster job that `fringe slurm` writes: a job
@@ -42,8 +43,8 @@ func (o *SlurmOptions) check() error {
 		return &input.Error{Err: fmt.Errorf("%s: %s", flag, fmt.Sprintf(format, args...))}
 	}
 	switch {
-	case o.Shards < 1 || o.Shards > MaxShards:
-		return bad("-shards", "want 1 to %d shards, got %d", MaxShards, o.Shards)
+	case o.Shards < 1 || o.Shards > plan.MaxShards:
+		return bad("-shards", "want 1 to %d shards, got %d", plan.MaxShards, o.Shards)
 	case o.CPUs < 1:
 		return bad("-cpus", "want at least 1, got %d", o.CPUs)
 	case !slurmMem.MatchString(o.Mem):

@@ -8,8 +8,8 @@ import (
 	"testing"
 	"time"
 
-	"fringe/bench"
 	"fringe/bench/input"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
 
@@ -58,7 +58,7 @@ func FuzzParseSpec(f *testing.F) {
 				return
 			}
 		}
-		if _, err := bench.NewPlan(s); err != nil {
+		if _, err := plan.New(s); err != nil {
 			checkInputError(t, err)
 		}
 	})

@@ -5,8 +5,8 @@ import (
 	"strings"
 	"testing"
 
-	"fringe/bench"
 	"fringe/bench/input"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
 
@@ -70,7 +70,7 @@ kind = "centroid"
 	if strings.Join(names, ",") != want {
 		t.Errorf("model names = %s, want %s", strings.Join(names, ","), want)
 	}
-	p, err := bench.NewPlan(s)
+	p, err := plan.New(s)
 	if err != nil {
 		t.Fatal(err)
 	}

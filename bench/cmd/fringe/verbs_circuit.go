@@ -11,6 +11,7 @@ import (
 
 	"fringe/bench"
 	"fringe/bench/modelkit"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/qkernel/circuit"
 )
@@ -100,11 +101,11 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 	if err != nil {
 		return err
 	}
-	plan, err := bench.NewPlan(s)
+	pl, err := plan.New(s)
 	if err != nil {
 		return err
 	}
-	sum, err := bench.ExportCircuits(ctx, plan, dir, bench.ExportOptions{Model: model, Workers: workers})
+	sum, err := bench.ExportCircuits(ctx, pl, dir, bench.ExportOptions{Model: model, Workers: workers})
 	if err != nil {
 		return err
 	}

@@ -14,6 +14,7 @@ import (
 
 	"fringe/bench"
 	"fringe/bench/input"
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/results"
 )
@@ -31,11 +32,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 	if rf.workers < 1 {
 		return usagef("-workers must be at least 1, got %d", rf.workers)
 	}
-	var shard bench.Shard
+	var shard plan.Shard
 	sharded := rf.shard != ""
 	if sharded {
 		var err error
-		if shard, err = bench.ParseShard(rf.shard); err != nil {
+		if shard, err = plan.ParseShard(rf.shard); err != nil {
 			return err
 		}
 	}
@@ -51,11 +52,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		partialDir = out
 	}
 	start := time.Now()
-	plan, err := bench.NewPlan(s)
+	pl, err := plan.New(s)
 	if err != nil {
 		return err
 	}
-	pr, err := bench.OpenPartial(partialDir, plan, shard, bench.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
+	pr, err := bench.OpenPartial(partialDir, pl, shard, bench.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
 	if err != nil {
 		return err
 	}
@@ -83,7 +84,7 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 			opt.Progress = prog.Update
 		}
 		stopWatch := watchInterrupt(ctx, stderr, prog, rf.quiet)
-		_, err := bench.Execute(ctx, plan, opt)
+		_, err := bench.Execute(ctx, pl, opt)
 		stopWatch()
 		if prog != nil {
 			if err == nil {
@@ -119,27 +120,27 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 	end := time.Now()
 	if sharded {
 		if !rf.quiet {
-			fmt.Fprintf(stdout, "shard %s: %d of the run's %d tasks finished in %.1f s; partial run directory: %s\n", shard, len(res), len(plan.Tasks), end.Sub(start).Seconds(), out)
+			fmt.Fprintf(stdout, "shard %s: %d of the run's %d tasks finished in %.1f s; partial run directory: %s\n", shard, len(res), len(pl.Tasks), end.Sub(start).Seconds(), out)
 			fmt.Fprintf(stdout, "join the shards with: fringe merge -out DIR SHARD_DIR...\n")
 		}
 		return nil
 	}
 	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
-	if err := plan.Write(out, res, info, nil); err != nil {
+	if err := bench.Write(pl, out, res, info, nil); err != nil {
 		return err
 	}
 	if err := pr.Remove(); err != nil {
 		fmt.Fprintln(stderr, "fringe: warning: remove the partial run directory:", err)
 	}
 	if !rf.quiet {
-		if err := results.WriteSummaryText(stdout, plan.Summarise(res)); err != nil {
+		if err := results.WriteSummaryText(stdout, bench.Summarise(pl, res)); err != nil {
 			return err
 		}
 		resumed := ""
 		if pr.Loaded() > 0 {
-			resumed = fmt.Sprintf(" (%d finished before, %d now)", pr.Loaded(), len(plan.Tasks)-pr.Loaded())
+			resumed = fmt.Sprintf(" (%d finished before, %d now)", pr.Loaded(), len(pl.Tasks)-pr.Loaded())
 		}
-		fmt.Fprintf(stdout, "\n%d tasks%s in %.1f s with %d workers; run directory: %s\n", len(plan.Tasks), resumed, end.Sub(start).Seconds(), rf.workers, out)
+		fmt.Fprintf(stdout, "\n%d tasks%s in %.1f s with %d workers; run directory: %s\n", len(pl.Tasks), resumed, end.Sub(start).Seconds(), rf.workers, out)
 	}
 	return nil
 }
@@ -205,11 +206,11 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if info.Start.IsZero() {
 		info.Start = start
 	}
-	if err := m.Plan.Write(dir, m.Results, info, nil); err != nil {
+	if err := bench.Write(m.Plan, dir, m.Results, info, nil); err != nil {
 		return err
 	}
 	if !*quiet {
-		if err := results.WriteSummaryText(stdout, m.Plan.Summarise(m.Results)); err != nil {
+		if err := results.WriteSummaryText(stdout, bench.Summarise(m.Plan, m.Results)); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "\nmerged %d shards (%d tasks) in %.1f s; run directory: %s\n", m.Shards, len(m.Results), time.Since(start).Seconds(), dir)
@@ -256,16 +257,16 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if err != nil {
 		return err
 	}
-	plan, err := bench.NewPlan(s)
+	pl, err := plan.New(s)
 	if err != nil {
 		return err
 	}
-	if o.Shards >= 1 && o.Shards <= bench.MaxShards {
-		if _, err := plan.ShardTasks(bench.Shard{I: 1, N: o.Shards}); err != nil {
+	if o.Shards >= 1 && o.Shards <= plan.MaxShards {
+		if _, err := pl.ShardTasks(plan.Shard{I: 1, N: o.Shards}); err != nil {
 			return err
 		}
 	}
-	o.Spec, o.JobName, o.Tasks = pos[0], "fringe-"+s.Name, len(plan.Tasks)
+	o.Spec, o.JobName, o.Tasks = pos[0], "fringe-"+s.Name, len(pl.Tasks)
 	o.Out = *out
 	if o.Out == "" {
 		o.Out = filepath.Join("fringe-out", s.Name)
@@ -281,6 +282,6 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if err := os.WriteFile(*script, b.Bytes(), 0o755); err != nil {
 		return fmt.Errorf("write %s: %w", *script, err)
 	}
-	fmt.Fprintf(stdout, "wrote %s (%d tasks in %d shards); submit it with: bash %s\n", *script, len(plan.Tasks), o.Shards, *script)
+	fmt.Fprintf(stdout, "wrote %s (%d tasks in %d shards); submit it with: bash %s\n", *script, len(pl.Tasks), o.Shards, *script)
 	return nil
 }

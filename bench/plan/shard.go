@@ -1,4 +1,4 @@
-package bench
+package plan
 
 import (
 	"errors"
@@ -29,8 +29,8 @@ type Shard struct {
 // Whole reports whether the shard is the whole plan (0/0 or 1/1).
 func (s Shard) Whole() bool { return s.N <= 1 }
 
-// norm returns the shard with the zero value made explicit (1/1).
-func (s Shard) norm() Shard {
+// Norm returns the shard with the zero value made explicit (1/1).
+func (s Shard) Norm() Shard {
 	if s.N == 0 {
 		return Shard{1, 1}
 	}
@@ -39,7 +39,7 @@ func (s Shard) norm() Shard {
 
 // String formats the shard as "i/n".
 func (s Shard) String() string {
-	s = s.norm()
+	s = s.Norm()
 	return fmt.Sprintf("%d/%d", s.I, s.N)
 }
 
@@ -79,12 +79,12 @@ func (p *Plan) Units() [][]int {
 	for i := range all {
 		all[i] = i
 	}
-	return p.unitsOf(all)
+	return p.UnitsOf(all)
 }
 
-// unitsOf groups the given task indices by (dataset, pipeline, split), in
+// UnitsOf groups the given task indices by (dataset, pipeline, split), in
 // order of first appearance.
-func (p *Plan) unitsOf(tasks []int) [][]int {
+func (p *Plan) UnitsOf(tasks []int) [][]int {
 	type key struct{ d, p, s int }
 	pos := map[key]int{}
 	var units [][]int
@@ -106,7 +106,7 @@ func (p *Plan) unitsOf(tasks []int) [][]int {
 // (ErrShard, an input error) when s.N exceeds the number of units, since a
 // shard would then be empty.
 func (p *Plan) ShardTasks(s Shard) ([]int, error) {
-	s = s.norm()
+	s = s.Norm()
 	units := p.Units()
 	if s.I < 1 || s.I > s.N {
 		return nil, &input.Error{Err: fmt.Errorf("-shard %s: %w: out of range", s, ErrShard)}
@@ -128,15 +128,4 @@ func (p *Plan) ShardTasks(s Shard) ([]int, error) {
 		}
 	}
 	return out, nil
-}
-
-// shardOf returns, for every task, the 1-based shard of n it belongs to.
-func (p *Plan) shardOf(n int) []int {
-	of := make([]int, len(p.Tasks))
-	for j, u := range p.Units() {
-		for _, i := range u {
-			of[i] = j%n + 1
-		}
-	}
-	return of
 }

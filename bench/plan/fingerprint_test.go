@@ -1,10 +1,11 @@
-package bench
+package plan_test
 
 import (
 	"os"
 	"path/filepath"
 	"testing"
 
+	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
 
@@ -42,7 +43,7 @@ run = ["python3", "mine.py"]
 		if err != nil {
 			t.Fatal(err)
 		}
-		p, err := NewPlan(s)
+		p, err := plan.New(s)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -1,11 +1,8 @@
-package bench
+package plan
 
 import (
-	"encoding/binary"
 	"errors"
 	"fmt"
-	"hash/fnv"
-	"math/rand/v2"
 	"path/filepath"
 
 	"fringe/baselines"
@@ -24,14 +21,14 @@ import (
 // fitted, so bad input fails fast and leaves nothing behind.
 type Plan struct {
 	Spec     *spec.Spec
-	Datasets []*PlannedDataset
+	Datasets []*Dataset
 	Tasks    []Task
 
 	layout *modelkit.Layout // what models may know of the run (TaskContext.Layout)
 }
 
-// PlannedDataset is a loaded dataset with its splits (all repeats).
-type PlannedDataset struct {
+// Dataset is a loaded dataset with its splits (all repeats).
+type Dataset struct {
 	Spec   spec.Dataset
 	Name   string // display name
 	Data   *datasets.Dataset
@@ -45,7 +42,7 @@ type Task struct {
 	Dataset  int // index into Plan.Datasets
 	Pipeline int // index into Spec.Pipelines
 	Model    int // index into Spec.Models
-	Split    int // index into PlannedDataset.Splits
+	Split    int // index into Dataset.Splits
 }
 
 // Key returns the task's stable key: dataset/pipeline/model/repeat/fold.
@@ -55,30 +52,10 @@ func (p *Plan) Key(t Task) string {
 	return fmt.Sprintf("%s/%s/%s/%d/%d", d.Name, p.Spec.Pipelines[t.Pipeline], p.Spec.Models[t.Model].Name, s.Repeat, s.Fold)
 }
 
-// Seed derives a 64-bit seed from the run seed and a list of key parts
-// (FNV-1a over the parts, separated by NUL bytes). The same seed and parts
-// always give the same value, independent of scheduling.
-func Seed(seed uint64, parts ...string) uint64 {
-	h := fnv.New64a()
-	var b [8]byte
-	binary.LittleEndian.PutUint64(b[:], seed)
-	h.Write(b[:])
-	for _, p := range parts {
-		h.Write([]byte(p))
-		h.Write([]byte{0})
-	}
-	return h.Sum64()
-}
-
-// NewRand returns a PCG generator seeded from the run seed and key parts.
-func NewRand(seed uint64, parts ...string) *rand.Rand {
-	return rand.New(rand.NewPCG(seed, Seed(seed, parts...)))
-}
-
-// NewPlan loads the spec's datasets, draws the splits and lists the tasks in
+// New loads the spec's datasets, draws the splits and lists the tasks in
 // order (dataset, pipeline, model, repeat, fold). All errors are input
 // errors (errors.Is(err, input.ErrBad)).
-func NewPlan(s *spec.Spec) (*Plan, error) {
+func New(s *spec.Spec) (*Plan, error) {
 	p := &Plan{Spec: s}
 	for _, ds := range s.Datasets {
 		pd, err := planDataset(s, ds)
@@ -103,11 +80,11 @@ func NewPlan(s *spec.Spec) (*Plan, error) {
 	return p, nil
 }
 
-func planDataset(s *spec.Spec, ds spec.Dataset) (*PlannedDataset, error) {
+func planDataset(s *spec.Spec, ds spec.Dataset) (*Dataset, error) {
 	inErr := func(err error) error {
 		return &input.Error{File: s.File, Line: ds.Line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
-	data, err := loadDataset(s, ds)
+	data, err := LoadDataset(s, ds)
 	if err != nil {
 		return nil, err
 	}
@@ -121,7 +98,7 @@ func planDataset(s *spec.Spec, ds spec.Dataset) (*PlannedDataset, error) {
 	if present < 2 {
 		return nil, inErr(fmt.Errorf("needs at least two classes with members, has %d", present))
 	}
-	pd := &PlannedDataset{Spec: ds, Name: ds.Display(), Data: data}
+	pd := &Dataset{Spec: ds, Name: ds.Display(), Data: data}
 	switch s.CV.Method {
 	case spec.CVLeaveOneOut:
 		pd.Splits = cv.LeaveOneOut(data.Len())
@@ -161,10 +138,10 @@ func planDataset(s *spec.Spec, ds spec.Dataset) (*PlannedDataset, error) {
 	return pd, nil
 }
 
-// loadDataset loads a dataset named in a spec (embedded, synthetic or CSV,
+// LoadDataset loads a dataset named in a spec (embedded, synthetic or CSV,
 // relative paths resolved against the spec's directory) and applies its
 // class and feature selection.
-func loadDataset(s *spec.Spec, ds spec.Dataset) (*datasets.Dataset, error) {
+func LoadDataset(s *spec.Spec, ds spec.Dataset) (*datasets.Dataset, error) {
 	inErr := func(err error) error {
 		return &input.Error{File: s.File, Line: ds.Line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
