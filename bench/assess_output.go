@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 
+	"fringe/bench/outdir"
 	"fringe/results"
 )
 
@@ -33,7 +34,7 @@ type assessManifest struct {
 // then. On error nothing is left behind. a.Figures is set to the figures
 // written.
 func WriteAssessment(dir string, a *results.Assessment) error {
-	figs, err := results.AssessFigures(a, fileSafe)
+	figs, err := results.AssessFigures(a, outdir.SafeName)
 	if err != nil {
 		return fmt.Errorf("bench: assess figures: %w", err)
 	}
@@ -46,17 +47,17 @@ func WriteAssessment(dir string, a *results.Assessment) error {
 		Ratio: a.Ratio, Confidence: a.Confidence, Subsets: a.Subsets, Classical: a.ClassicalPipeline,
 		Datasets: a.Datasets, Warnings: append([]string{}, a.Warnings...),
 	}
-	files := []outFile{
-		{"assess.csv", func(b *bytes.Buffer) error { return results.WriteAssessCSV(b, a) }},
-		{"assess-resources.csv", func(b *bytes.Buffer) error { return results.WriteAssessResourcesCSV(b, a) }},
-		{"assess.md", func(b *bytes.Buffer) error { return results.WriteAssessMarkdown(b, a) }},
-		{"assess.tex", func(b *bytes.Buffer) error { return results.WriteAssessTeX(b, a) }},
-		{"assess.json", func(b *bytes.Buffer) error {
+	files := []outdir.File{
+		{Name: "assess.csv", Render: func(b *bytes.Buffer) error { return results.WriteAssessCSV(b, a) }},
+		{Name: "assess-resources.csv", Render: func(b *bytes.Buffer) error { return results.WriteAssessResourcesCSV(b, a) }},
+		{Name: "assess.md", Render: func(b *bytes.Buffer) error { return results.WriteAssessMarkdown(b, a) }},
+		{Name: "assess.tex", Render: func(b *bytes.Buffer) error { return results.WriteAssessTeX(b, a) }},
+		{Name: "assess.json", Render: func(b *bytes.Buffer) error {
 			enc := json.NewEncoder(b)
 			enc.SetIndent("", "  ")
 			return enc.Encode(man)
 		}},
 	}
-	files = append(files, figureFiles(figs)...)
-	return writeDir(dir, files)
+	files = append(files, outdir.FigureFiles(figs)...)
+	return outdir.Write(dir, files)
 }

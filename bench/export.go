@@ -15,6 +15,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/outdir"
 	"fringe/bench/plan"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
@@ -182,13 +183,9 @@ func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOpt
 	width := max(4, len(strconv.Itoa(total-1)))
 	multiPipe := len(p.Spec.Pipelines) > 1
 
-	parent := filepath.Dir(filepath.Clean(dir))
-	if err := os.MkdirAll(parent, 0o755); err != nil {
-		return nil, fmt.Errorf("bench: export: create parent folder: %w", err)
-	}
-	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".partial-")
+	tmp, err := outdir.TempBeside(dir)
 	if err != nil {
-		return nil, fmt.Errorf("bench: export: temporary folder: %w", err)
+		return nil, fmt.Errorf("bench: export: %w", err)
 	}
 	ok := false
 	defer func() {
@@ -196,9 +193,6 @@ func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOpt
 			os.RemoveAll(tmp)
 		}
 	}()
-	if err := os.Chmod(tmp, 0o755); err != nil {
-		return nil, err
-	}
 
 	index := make([][]string, total)
 	sizes := make([]int64, total)
@@ -216,9 +210,9 @@ func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOpt
 				if err := gctx.Err(); err != nil {
 					return err
 				}
-				name := fmt.Sprintf("%0*d-%s", width, k, fileSafe(it.Dataset))
+				name := fmt.Sprintf("%0*d-%s", width, k, outdir.SafeName(it.Dataset))
 				if multiPipe {
-					name += "-" + fileSafe(it.Pipeline)
+					name += "-" + outdir.SafeName(it.Pipeline)
 				}
 				name += fmt.Sprintf("-r%d-f%d-row%d.qasm", it.Repeat, it.Fold, it.Row)
 				text, err := exportText(it, set)
@@ -252,7 +246,7 @@ func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOpt
 	if err := os.WriteFile(filepath.Join(tmp, "index.csv"), b.Bytes(), 0o644); err != nil {
 		return nil, fmt.Errorf("bench: export: %w", err)
 	}
-	if err := replaceDir(tmp, dir); err != nil {
+	if err := outdir.Replace(tmp, dir); err != nil {
 		return nil, fmt.Errorf("bench: export: %w", err)
 	}
 	ok = true
@@ -328,21 +322,4 @@ func checkExportDir(dir string) error {
 		}
 	}
 	return &input.Error{File: dir, Err: fmt.Errorf("folder exists and is not a circuit export of fringe (no index.csv); choose a new folder")}
-}
-
-// replaceDir renames tmp to dir, replacing an existing dir only once tmp
-// is in place.
-func replaceDir(tmp, dir string) error {
-	if _, err := os.Stat(dir); err == nil {
-		old := tmp + ".old"
-		if err := os.Rename(dir, old); err != nil {
-			return err
-		}
-		if err := os.Rename(tmp, dir); err != nil {
-			os.Rename(old, dir)
-			return err
-		}
-		return os.RemoveAll(old)
-	}
-	return os.Rename(tmp, dir)
 }

@@ -17,6 +17,7 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/outdir"
 	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/datasets"
@@ -84,7 +85,7 @@ func helperMain(mode string, extra []string, train, test, out string) int {
 		return 0
 	case "record":
 		// Keep what the program was given, for the test to inspect.
-		key := fileSafe(os.Getenv("FRINGE_TASK"))
+		key := outdir.SafeName(os.Getenv("FRINGE_TASK"))
 		dir := extra[0]
 		os.WriteFile(filepath.Join(dir, key+".seed"), []byte(os.Getenv("FRINGE_SEED")), 0o644)
 		for _, p := range [][2]string{{train, ".train.csv"}, {test, ".test.csv"}} {
@@ -270,7 +271,7 @@ run = %s
 		t.Fatalf("feature names after std+lift(1): %v", names)
 	}
 	for _, task := range p.Tasks {
-		key := fileSafe(p.Key(task))
+		key := outdir.SafeName(p.Key(task))
 		seed, err := os.ReadFile(filepath.Join(rec, key+".seed"))
 		if err != nil {
 			t.Fatal(err)

@@ -11,6 +11,7 @@ import (
 	"runtime/debug"
 	"time"
 
+	"fringe/bench/outdir"
 	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
@@ -279,16 +280,16 @@ func Write(p *plan.Plan, dir string, res []TaskResult, info RunInfo, warnings []
 		rep.Figures = append(rep.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
 	}
 	allWarnings := append(append([]string(nil), warnings...), rep.Warnings...)
-	files := []outFile{
-		{"predictions.csv", func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
-		{"folds.csv", func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
-		{"summary.csv", func(b *bytes.Buffer) error { return results.WriteSummary(b, summary) }},
-		{"summary.tex", func(b *bytes.Buffer) error { return results.WriteReportTeX(b, rep) }},
-		{"summary.md", func(b *bytes.Buffer) error { return results.WriteReportMarkdown(b, rep) }},
-		{"comparisons.csv", func(b *bytes.Buffer) error { return results.WriteComparisons(b, rep.Comparisons) }},
-		{"timings.csv", func(b *bytes.Buffer) error { return results.WriteTimings(b, times) }},
-		{"manifest.json", func(b *bytes.Buffer) error { return results.WriteManifest(b, Manifest(p, info, allWarnings)) }},
+	files := []outdir.File{
+		{Name: "predictions.csv", Render: func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
+		{Name: "folds.csv", Render: func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
+		{Name: "summary.csv", Render: func(b *bytes.Buffer) error { return results.WriteSummary(b, summary) }},
+		{Name: "summary.tex", Render: func(b *bytes.Buffer) error { return results.WriteReportTeX(b, rep) }},
+		{Name: "summary.md", Render: func(b *bytes.Buffer) error { return results.WriteReportMarkdown(b, rep) }},
+		{Name: "comparisons.csv", Render: func(b *bytes.Buffer) error { return results.WriteComparisons(b, rep.Comparisons) }},
+		{Name: "timings.csv", Render: func(b *bytes.Buffer) error { return results.WriteTimings(b, times) }},
+		{Name: "manifest.json", Render: func(b *bytes.Buffer) error { return results.WriteManifest(b, Manifest(p, info, allWarnings)) }},
 	}
-	files = append(files, figureFiles(figs)...)
-	return writeDir(dir, files)
+	files = append(files, outdir.FigureFiles(figs)...)
+	return outdir.Write(dir, files)
 }

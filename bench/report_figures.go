@@ -12,25 +12,11 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"fringe/bench/input"
+	"fringe/bench/outdir"
 	"fringe/bench/plan"
 	"fringe/datasets"
 	"fringe/results"
 )
-
-// fileSafe turns a name into a file-name fragment: letters, digits and
-// ".+-" are kept, anything else becomes '_'.
-func fileSafe(s string) string {
-	var b strings.Builder
-	for _, r := range s {
-		switch {
-		case r >= 'a' && r <= 'z', r >= 'A' && r <= 'Z', r >= '0' && r <= '9', r == '.', r == '+', r == '-':
-			b.WriteRune(r)
-		default:
-			b.WriteByte('_')
-		}
-	}
-	return b.String()
-}
 
 // ReportFigures builds the figures that follow from a report and the
 // prediction records: a critical-difference diagram per rank table,
@@ -47,7 +33,7 @@ func ReportFigures(rep *results.Report, preds []results.Prediction) ([]results.F
 			return nil, fmt.Errorf("bench: figures: %w", err)
 		}
 		figs = append(figs, results.Figure{
-			Name: "figures/cd-" + fileSafe(t.Pipeline), Plot: p, Width: results.CDWidth, Height: h,
+			Name: "figures/cd-" + outdir.SafeName(t.Pipeline), Plot: p, Width: results.CDWidth, Height: h,
 			Caption: fmt.Sprintf("Critical-difference diagram, pipeline %s: average accuracy ranks over %d datasets; Nemenyi CD at alpha %g", t.Pipeline, len(t.Datasets), t.Alpha),
 		})
 	}
@@ -126,7 +112,7 @@ func sweepSpecs(rep *results.Report) []sweepSpec {
 	}
 	suffix := func(fam string) string {
 		if len(families) > 1 {
-			return "-" + fileSafe(fam)
+			return "-" + outdir.SafeName(fam)
 		}
 		return ""
 	}
@@ -186,7 +172,7 @@ func sweepSpecs(rep *results.Report) []sweepSpec {
 			}
 			if lines := build(shots, pipe, fam, func(v results.Variant) float64 { return float64(v.Shots) }); len(lines) > 0 {
 				out = append(out, sweepSpec{
-					name:    "figures/shots-" + fileSafe(pipe) + suffix(fam),
+					name:    "figures/shots-" + outdir.SafeName(pipe) + suffix(fam),
 					caption: fmt.Sprintf("Accuracy of %s against shot budget, pipeline %s, one line per dataset with its %s interval; exact mode dashed, best baseline dotted", fam, pipe, fmtLevel(rep.Protocol.Level)),
 					sweep: results.Sweep{
 						Title:  fmt.Sprintf("Accuracy against shot budget, pipeline %s%s", pipe, titleFamily(fam)),
@@ -210,7 +196,7 @@ func sweepSpecs(rep *results.Report) []sweepSpec {
 				if !(lo > 0) || hi/lo < 20 {
 					logX = false
 				}
-				name := "figures/noise-" + fileSafe(k.noise) + "-" + fileSafe(pipe) + suffix(fam)
+				name := "figures/noise-" + outdir.SafeName(k.noise) + "-" + outdir.SafeName(pipe) + suffix(fam)
 				shotsText := "exact probabilities"
 				if k.shots > 0 {
 					name += fmt.Sprintf("-shots%d", k.shots)
@@ -288,7 +274,7 @@ func paccFigures(rep *results.Report, preds []results.Prediction) ([]results.Fig
 			return nil, fmt.Errorf("bench: figures: %w", err)
 		}
 		figs = append(figs, results.Figure{
-			Name: "figures/pacc-" + fileSafe(v.Model), Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true,
+			Name: "figures/pacc-" + outdir.SafeName(v.Model), Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true,
 			Caption: fmt.Sprintf("Distribution of p_acc of %s over the test predictions, per dataset and pipeline", v.Model),
 		})
 	}

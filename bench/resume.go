@@ -16,6 +16,7 @@ import (
 	"time"
 
 	"fringe/bench/input"
+	"fringe/bench/outdir"
 	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
@@ -384,7 +385,7 @@ func (pr *Partial) Save(batch []TaskResult) error {
 		lowest = min(lowest, r.Task.Index)
 	}
 	name := filepath.Join(pr.dir, tasksDir, fmt.Sprintf("%07d.json", lowest))
-	if err := writeAtomic(name, data); err != nil {
+	if err := outdir.WriteAtomic(name, data); err != nil {
 		return err
 	}
 	for _, r := range batch {
@@ -410,7 +411,7 @@ func (pr *Partial) create() error {
 		return err
 	}
 	path := filepath.Join(pr.dir, identityFile)
-	if err := writeExclusive(path, append(id, '\n')); err != nil {
+	if err := outdir.WriteExclusive(path, append(id, '\n')); err != nil {
 		if errors.Is(err, fs.ErrExist) {
 			return fmt.Errorf("%s: %w", pr.dir, errInUse)
 		}
@@ -424,42 +425,7 @@ func (pr *Partial) create() error {
 	if err := os.MkdirAll(filepath.Join(pr.dir, tasksDir), 0o755); err != nil {
 		return fmt.Errorf("create partial run directory: %w", err)
 	}
-	return writeAtomic(filepath.Join(pr.dir, markerFile), []byte(pr.note()))
-}
-
-// writeExclusive writes data to path unless path exists (fs.ErrExist):
-// the file is written under a temporary name and hard-linked into place,
-// which fails if another process got there first. Where hard links are
-// not supported it falls back to a rename after checking that path does
-// not exist.
-func writeExclusive(path string, data []byte) error {
-	f, err := os.CreateTemp(filepath.Dir(path), ".tmp-"+filepath.Base(path)+"-")
-	if err != nil {
-		return err
-	}
-	tmp := f.Name()
-	defer os.Remove(tmp)
-	_, err = f.Write(data)
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Chmod(tmp, 0o644)
-	}
-	if err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	lerr := os.Link(tmp, path)
-	if lerr == nil || errors.Is(lerr, fs.ErrExist) {
-		return lerr
-	}
-	if _, err := os.Lstat(path); err == nil {
-		return fs.ErrExist
-	}
-	if err := os.Rename(tmp, path); err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	return nil
+	return outdir.WriteAtomic(filepath.Join(pr.dir, markerFile), []byte(pr.note()))
 }
 
 // note is the text of PARTIAL.
@@ -500,32 +466,6 @@ func (pr *Partial) unlock() {
 		pr.lock.Close()
 		pr.lock = nil
 	}
-}
-
-// writeAtomic writes data to a temporary file beside path and renames it
-// into place, so that path is either absent (or its old content) or
-// complete, whenever the process dies.
-func writeAtomic(path string, data []byte) error {
-	f, err := os.CreateTemp(filepath.Dir(path), ".tmp-"+filepath.Base(path)+"-")
-	if err != nil {
-		return err
-	}
-	tmp := f.Name()
-	_, err = f.Write(data)
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Chmod(tmp, 0o644)
-	}
-	if err == nil {
-		err = os.Rename(tmp, path)
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	return nil
 }
 
 // readIdentity reads run.json of a partial run directory.
