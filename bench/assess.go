@@ -11,6 +11,7 @@ import (
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
 	"fringe/bench/plan"
+	"fringe/bench/report"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/datasets"
@@ -201,7 +202,7 @@ func Assess(ctx context.Context, opt AssessOptions) (*results.Assessment, error)
 	}
 	a := &results.Assessment{
 		Seed: o.Seed, Repeats: o.Repeats, Confidence: AssessConfidence, Ratio: o.Ratio,
-		Weights: "balanced", Level: 1 - Alpha, Subsets: o.Subsets, ClassicalPipeline: AssessClassicalPipeline,
+		Weights: "balanced", Level: 1 - report.Alpha, Subsets: o.Subsets, ClassicalPipeline: AssessClassicalPipeline,
 	}
 	if o.Uniform {
 		a.Weights = "uniform"
@@ -321,6 +322,9 @@ func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDa
 	return ad, nil
 }
 
+// foldKey identifies a split within a dataset.
+type foldKey struct{ repeat, fold int }
+
 // cellOf returns the summary of (pipeline, model) in sums.
 func cellOf(sums []results.Summary, pipe, model string) (results.Summary, bool) {
 	for _, s := range sums {
@@ -399,7 +403,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 	csum := Summarise(ad.class, ad.cres)
 	best := -1
 	for i, s := range csum {
-		if best < 0 || s.Metrics[0].Mean > csum[best].Metrics[0].Mean && !tied(s.Metrics[0].Mean, csum[best].Metrics[0].Mean) {
+		if best < 0 || s.Metrics[0].Mean > csum[best].Metrics[0].Mean && !report.Tied(s.Metrics[0].Mean, csum[best].Metrics[0].Mean) {
 			best = i
 		}
 	}
@@ -429,13 +433,13 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 		nsp := float64(len(ad.quantum.Datasets[0].Splits))
 		ntr, nte := int(math.Round(nTrain/nsp)), int(math.Round(nTest/nsp))
 		if len(keys) > 0 {
-			iv, err := stats.CorrectedInterval(d, ntr, nte, Alpha)
+			iv, err := stats.CorrectedInterval(d, ntr, nte, report.Alpha)
 			if err != nil {
 				return row, nil, nil, fmt.Errorf("bench: assess %s/%s: %w", row.Dataset, pipe, err)
 			}
 			row.Gap, row.GapLo, row.GapHi = iv.Mean, iv.Lo, iv.Hi
 			warns = append(warns, iv.Warnings...)
-			t, err := stats.CorrectedPairedT(xs, rs, ntr, nte, Alpha)
+			t, err := stats.CorrectedPairedT(xs, rs, ntr, nte, report.Alpha)
 			if err != nil {
 				return row, nil, nil, fmt.Errorf("bench: assess %s/%s: %w", row.Dataset, pipe, err)
 			}
@@ -480,7 +484,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 		return row, nil, nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
 	}
 	row.KTAInterference = CenteredAlignment(K, T)
-	row.RBFGamma = scaleGamma(Ztr)
+	row.RBFGamma = report.ScaleGamma(Ztr)
 	row.KTARBF = CenteredAlignment(RBFGram(Ztr, row.RBFGamma), T)
 
 	_, dim := Ztr.Dims()

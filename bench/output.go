@@ -13,6 +13,7 @@ import (
 
 	"fringe/bench/outdir"
 	"fringe/bench/plan"
+	"fringe/bench/report"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
@@ -20,9 +21,6 @@ import (
 
 // Version is fringe's version string, recorded in manifests.
 const Version = "0.1.0-dev"
-
-// Alpha is the level of the confidence intervals in summaries (95%).
-const Alpha = 0.05
 
 // Records turns task results into the rows of predictions.csv, folds.csv and
 // timings.csv, in task order.
@@ -133,7 +131,7 @@ func Summarise(p *plan.Plan, res []TaskResult) []results.Summary {
 			sc := results.Score(truth, pred, len(d.Data.Classes))
 			s.Interval = "wilson"
 			correct := int(math.Round(sc.Accuracy * float64(len(truth))))
-			lo, hi := stats.Wilson(correct, len(truth), Alpha)
+			lo, hi := stats.Wilson(correct, len(truth), report.Alpha)
 			nan := math.NaN()
 			s.Metrics = []results.MetricSummary{
 				{Mean: sc.Accuracy, Std: nan, Lo: lo, Hi: hi},
@@ -154,7 +152,7 @@ func Summarise(p *plan.Plan, res []TaskResult) []results.Summary {
 				for i, r := range rs {
 					v[i] = r.Scores.Values()[mi]
 				}
-				iv, err := stats.CorrectedInterval(v, int(math.Round(nTrain)), int(math.Round(nTest)), Alpha)
+				iv, err := stats.CorrectedInterval(v, int(math.Round(nTrain)), int(math.Round(nTest)), report.Alpha)
 				if err != nil {
 					// Only impossible inputs (no scores, non-finite metrics) get here.
 					panic(fmt.Sprintf("bench: summary interval: %v", err))
@@ -185,21 +183,6 @@ func mean(v []float64) float64 {
 		s += x
 	}
 	return s / float64(len(v))
-}
-
-// Caption describes the protocol of a run for table captions.
-func Caption(p *plan.Plan) string {
-	s := p.Spec
-	var proto string
-	switch s.CV.Method {
-	case spec.CVStratified:
-		proto = fmt.Sprintf("stratified %d-fold cross-validation, %d repeat(s)", s.CV.Folds, s.CV.Repeats)
-	case spec.CVLeaveOneOut:
-		proto = "leave-one-out cross-validation"
-	case spec.CVHoldout:
-		proto = fmt.Sprintf("stratified holdout (test fraction %g), %d repeat(s)", s.CV.TestFraction, s.CV.Repeats)
-	}
-	return fmt.Sprintf("Run %s: mean and standard deviation over folds; %s; seed %d. Best mean per dataset in bold.", s.Name, proto, s.Seed)
 }
 
 // RunInfo carries what the manifest records beyond the plan.
@@ -250,8 +233,8 @@ func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 }
 
 // Write writes a complete run directory at dir: the records (CSV), the
-// report (summary.tex, summary.md, comparisons.csv; see Analyse), the
-// figures (figures/*.svg, .pdf, .png; see ReportFigures and KernelFigure)
+// report (summary.tex, summary.md, comparisons.csv; see report.Analyse), the
+// figures (figures/*.svg, .pdf, .png; see report.Figures and report.KernelFigure)
 // and the manifest, whose warnings gain the grouped warnings of the
 // statistics. Files are first written into a temporary directory beside
 // dir, which is renamed into place only when every file is complete; an
@@ -260,17 +243,17 @@ func Write(p *plan.Plan, dir string, res []TaskResult, info RunInfo, warnings []
 	preds, folds, times := Records(p, res)
 	in := reportInput(p, res, preds, folds)
 	summary := in.Summary
-	rep, err := Analyse(in)
+	rep, err := report.Analyse(in)
 	if err != nil {
 		return err
 	}
 	var figs []results.Figure
 	if !info.NoFigures {
-		figs, err = ReportFigures(rep, preds)
+		figs, err = report.Figures(rep, preds)
 		if err != nil {
 			return err
 		}
-		kf, err := KernelFigure(p)
+		kf, err := report.KernelFigure(p)
 		if err != nil {
 			return err
 		}

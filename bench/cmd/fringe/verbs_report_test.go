@@ -89,7 +89,7 @@ func TestRankDemsarTable6(t *testing.T) {
 }
 
 // TestRankDemsarAsPrinted: with the voting tie kept as printed, the two
-// tied models share rank 2.5 there: 41/14 = 2.929 and 27/14 = 1.929
+// report.Tied models share rank 2.5 there: 41/14 = 2.929 and 27/14 = 1.929
 // (derived by hand from the table).
 func TestRankDemsarAsPrinted(t *testing.T) {
 	code, out, stderr := runCmd(t, "", "rank", "-json", "testdata/rank/demsar_table6_as_printed.csv")

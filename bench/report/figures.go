@@ -1,4 +1,4 @@
-package bench
+package report
 
 import (
 	"cmp"
@@ -18,14 +18,14 @@ import (
 	"fringe/results"
 )
 
-// ReportFigures builds the figures that follow from a report and the
+// Figures builds the figures that follow from a report and the
 // prediction records: a critical-difference diagram per rank table,
 // accuracy against shot budget per (pipeline, family) with shot-mode
 // variants, accuracy against noise strength per (pipeline, family, noise
 // model, shot budget) with noisy variants, and the distribution of p_acc
 // per dataset for each exact interference model that reports it. The
 // figures are in a fixed order and named figures/<kind>-<...>.
-func ReportFigures(rep *results.Report, preds []results.Prediction) ([]results.Figure, error) {
+func Figures(rep *results.Report, preds []results.Prediction) ([]results.Figure, error) {
 	var figs []results.Figure
 	for _, t := range rep.Ranks {
 		p, h, err := results.CDDiagram(t, fmt.Sprintf("Average ranks, pipeline %s (%d datasets)", t.Pipeline, len(t.Datasets)))
@@ -328,7 +328,7 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 			if err != nil {
 				return results.Figure{}, fmt.Errorf("bench: kernel figure: dataset %s: %w", d.Name, err)
 			}
-			gamma := scaleGamma(Z)
+			gamma := ScaleGamma(Z)
 			curves = append(curves, results.KernelCurve{Label: fmt.Sprintf("RBF γ = scale on %s (%.3g)", d.Name, gamma), Gamma: gamma})
 		}
 	}
@@ -342,9 +342,9 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 	}, nil
 }
 
-// scaleGamma is the "scale" rule 1/(d·Var(X)) of baselines.SVM:
+// ScaleGamma is the "scale" rule 1/(d·Var(X)) of baselines.SVM:
 // population variance over all entries of X, 1 when it is 0.
-func scaleGamma(X *mat.Dense) float64 {
+func ScaleGamma(X *mat.Dense) float64 {
 	n, d := X.Dims()
 	if n == 0 || d == 0 {
 		return 1

@@ -1,4 +1,4 @@
-package bench
+package report
 
 import (
 	"cmp"
@@ -8,7 +8,6 @@ import (
 	"strings"
 
 	"fringe/bench/modelkit"
-	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
@@ -79,9 +78,9 @@ func VariantOf(m modelkit.Spec) results.Variant {
 	return v
 }
 
-// ReportInput is what Analyse needs: the records of a run, its protocol
+// Input is what Analyse needs: the records of a run, its protocol
 // and the description of its models.
-type ReportInput struct {
+type Input struct {
 	Name        string
 	Seed        uint64
 	CV          spec.CV
@@ -90,24 +89,6 @@ type ReportInput struct {
 	Predictions []results.Prediction
 	Variants    []results.Variant // one per model, in the run's model order
 	Label       string            // LaTeX label of the summary table; "" for none
-}
-
-// Report analyses a finished run: Analyse on its records.
-func Report(p *plan.Plan, res []TaskResult) (*results.Report, error) {
-	preds, folds, _ := Records(p, res)
-	return Analyse(reportInput(p, res, preds, folds))
-}
-
-func reportInput(p *plan.Plan, res []TaskResult, preds []results.Prediction, folds []results.Fold) ReportInput {
-	in := ReportInput{
-		Name: p.Spec.Name, Seed: p.Spec.Seed, CV: p.Spec.CV,
-		Summary: Summarise(p, res), Folds: folds, Predictions: preds,
-		Label: "tab:" + p.Spec.Name,
-	}
-	for _, m := range p.Spec.Models {
-		in.Variants = append(in.Variants, VariantOf(m))
-	}
-	return in
 }
 
 // cellID identifies a (dataset, pipeline, model) cell.
@@ -120,7 +101,7 @@ type foldKey struct{ repeat, fold int }
 type instKey struct{ repeat, row int }
 
 type analyser struct {
-	in      ReportInput
+	in      Input
 	test    spec.TestKind
 	alpha   float64
 	folds   map[cellID]map[foldKey]results.Fold
@@ -145,7 +126,7 @@ type analyser struct {
 // It returns an error when the records do not fit the protocol (a 5x2cv
 // test without 5 repeats of 2 folds, a summary cell without fold records)
 // or a statistic rejects its input.
-func Analyse(in ReportInput) (*results.Report, error) {
+func Analyse(in Input) (*results.Report, error) {
 	a := &analyser{
 		in: in, test: in.CV.ResolvedTest(), alpha: in.CV.TestAlpha(),
 		folds: map[cellID]map[foldKey]results.Fold{}, correct: map[cellID]map[instKey]bool{},
@@ -228,9 +209,9 @@ func (a *analyser) rowsOf(dataset string) []int {
 
 func idOf(s results.Summary) cellID { return cellID{s.Dataset, s.Pipeline, s.Model} }
 
-// tied reports whether two means are equal up to rounding (the tie rule
+// Tied reports whether two means are equal up to rounding (the tie rule
 // of bench/stats).
-func tied(x, y float64) bool {
+func Tied(x, y float64) bool {
 	return math.Abs(x-y) <= stats.TieTolerance*math.Max(math.Abs(x), math.Abs(y))
 }
 
@@ -395,7 +376,7 @@ func (a *analyser) marks() ([][]results.Mark, error) {
 			best := -1
 			for _, i := range idx {
 				m := rows[i].Metrics[mi].Mean
-				if !math.IsNaN(m) && (best < 0 || m > rows[best].Metrics[mi].Mean && !tied(m, rows[best].Metrics[mi].Mean)) {
+				if !math.IsNaN(m) && (best < 0 || m > rows[best].Metrics[mi].Mean && !Tied(m, rows[best].Metrics[mi].Mean)) {
 					best = i
 				}
 			}
@@ -409,7 +390,7 @@ func (a *analyser) marks() ([][]results.Mark, error) {
 				if math.IsNaN(m) {
 					continue
 				}
-				if tied(m, rows[best].Metrics[mi].Mean) {
+				if Tied(m, rows[best].Metrics[mi].Mean) {
 					marks[i][mi] = results.MarkBest
 					continue
 				}
@@ -470,7 +451,7 @@ func (a *analyser) reference() ([]results.Comparison, string, error) {
 				if v, ok := a.variant[rows[i].Model]; !ok || v.Interference {
 					continue
 				}
-				if best < 0 || rows[i].Metrics[0].Mean > rows[best].Metrics[0].Mean && !tied(rows[i].Metrics[0].Mean, rows[best].Metrics[0].Mean) {
+				if best < 0 || rows[i].Metrics[0].Mean > rows[best].Metrics[0].Mean && !Tied(rows[i].Metrics[0].Mean, rows[best].Metrics[0].Mean) {
 					best = i
 				}
 			}
@@ -621,3 +602,6 @@ func (a *analyser) acrossDatasets() ([]results.RankTable, []results.PairAcross, 
 	}
 	return tables, pairs, nil
 }
+
+// Alpha is the level of the confidence intervals in summaries (95%).
+const Alpha = 0.05

@@ -1,8 +1,7 @@
-package bench
+package report
 
 import (
 	"bytes"
-	"context"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -15,7 +14,6 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/bench/modelkit"
-	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/results"
@@ -57,15 +55,6 @@ func synthRecords(cells []synthCell, repeats, folds int) ([]results.Fold, []resu
 	return fs, ss
 }
 
-func mustSpec(t *testing.T, text string) *spec.Spec {
-	t.Helper()
-	s, err := spec.Parse("test.toml", []byte(text))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
-
 // modeVariants describes the interference classifier exact, with three
 // shot budgets and under one noise model at three strengths, and two
 // baselines, as modelkit.Spec.Variant would from a spec with those modes.
@@ -104,7 +93,7 @@ func modeCells() []synthCell {
 func TestAnalyseModes(t *testing.T) {
 	folds, sum := synthRecords(modeCells(), 3, 5)
 	cv := spec.CV{Method: spec.CVStratified, Folds: 5, Repeats: 3}
-	rep, err := Analyse(ReportInput{Name: "modes", Seed: 1, CV: cv, Summary: sum, Folds: folds, Variants: modeVariants()})
+	rep, err := Analyse(Input{Name: "modes", Seed: 1, CV: cv, Summary: sum, Folds: folds, Variants: modeVariants()})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -222,7 +211,7 @@ func TestAnalyseModes(t *testing.T) {
 	}
 
 	// The figures render, and their names are listed for summary.md.
-	figs, err := ReportFigures(rep, nil)
+	figs, err := Figures(rep, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -316,7 +305,7 @@ func TestAnalyseMcNemar(t *testing.T) {
 			Metrics: []results.MetricSummary{{Mean: acc, Std: nan, Lo: lo, Hi: hi}, {Mean: acc, Std: nan, Lo: nan, Hi: nan}, {Mean: acc, Std: nan, Lo: nan, Hi: nan}}, MeanPAcc: nan})
 	}
 	vs := []results.Variant{{Model: "knn", Kind: "knn"}, {Model: "q", Kind: "interference", Interference: true, Mode: "exact"}, {Model: "svm", Kind: "svm"}}
-	rep, err := Analyse(ReportInput{Name: "loo", CV: spec.CV{Method: spec.CVLeaveOneOut, Repeats: 1}, Summary: sum, Folds: folds, Predictions: preds, Variants: vs})
+	rep, err := Analyse(Input{Name: "loo", CV: spec.CV{Method: spec.CVLeaveOneOut, Repeats: 1}, Summary: sum, Folds: folds, Predictions: preds, Variants: vs})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -357,7 +346,7 @@ func TestAnalyseMcNemar(t *testing.T) {
 func TestAnalyse5x2(t *testing.T) {
 	folds, sum := synthRecords([]synthCell{{"d", "raw", "a", 0.8, 0.05}, {"d", "raw", "b", 0.75, 0.05}, {"e", "raw", "a", 0.7, 0.05}, {"e", "raw", "b", 0.72, 0.05}}, 5, 2)
 	vs := []results.Variant{{Model: "a", Kind: "knn"}, {Model: "b", Kind: "svm"}}
-	rep, err := Analyse(ReportInput{Name: "x", CV: spec.CV{Method: spec.CVStratified, Folds: 2, Repeats: 5, Test: spec.Test5x2CV, Reference: "a"}, Summary: sum, Folds: folds, Variants: vs})
+	rep, err := Analyse(Input{Name: "x", CV: spec.CV{Method: spec.CVStratified, Folds: 2, Repeats: 5, Test: spec.Test5x2CV, Reference: "a"}, Summary: sum, Folds: folds, Variants: vs})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -385,87 +374,8 @@ func TestAnalyse5x2(t *testing.T) {
 		t.Errorf("5x2cv t = %v p = %v, want %v %v", c.Statistic, c.P, want.Statistic, want.P)
 	}
 	// Missing folds are an error, not a silent fallback.
-	if _, err := Analyse(ReportInput{Name: "x", CV: spec.CV{Method: spec.CVStratified, Folds: 2, Repeats: 5, Test: spec.Test5x2CV}, Summary: sum, Folds: folds[:len(folds)-1], Variants: vs}); err == nil {
+	if _, err := Analyse(Input{Name: "x", CV: spec.CV{Method: spec.CVStratified, Folds: 2, Repeats: 5, Test: spec.Test5x2CV}, Summary: sum, Folds: folds[:len(folds)-1], Variants: vs}); err == nil {
 		t.Error("5x2cv with a fold missing: no error")
-	}
-}
-
-// TestWriteRunDirectory runs a small spec with 1 and 2 workers and checks
-// that every file but the manifest and timings is byte-identical,
-// figures included, and that the report files and figures exist.
-func TestWriteRunDirectory(t *testing.T) {
-	s := mustSpec(t, `
-name = "small"
-seed = 5
-datasets = ["iris", "wine"]
-pipelines = ["std+l2"]
-[cv]
-method = "stratified"
-folds = 3
-repeats = 2
-[[model]]
-kind = "interference"
-[[model]]
-kind = "knn"
-k = 5
-[[model]]
-kind = "svm"
-kernel = "rbf"
-[[model]]
-kind = "centroid"
-`)
-	dir := t.TempDir()
-	var outs [2]string
-	for i, w := range []int{1, 2} {
-		p, err := plan.New(s)
-		if err != nil {
-			t.Fatal(err)
-		}
-		res, err := Execute(context.Background(), p, Options{Workers: w})
-		if err != nil {
-			t.Fatal(err)
-		}
-		outs[i] = filepath.Join(dir, []string{"a", "b"}[i])
-		if err := Write(p, outs[i], res, RunInfo{Workers: w}, nil); err != nil {
-			t.Fatal(err)
-		}
-	}
-	for _, f := range []string{"summary.tex", "summary.md", "comparisons.csv", "summary.csv", "folds.csv", "predictions.csv",
-		"figures/cd-std+l2.svg", "figures/cd-std+l2.pdf", "figures/cd-std+l2.png",
-		"figures/kernel-profile.svg", "figures/kernel-profile.png", "figures/pacc-interference.svg", "figures/pacc-interference.png", "figures/pacc-interference.pdf"} {
-		x, err := os.ReadFile(filepath.Join(outs[0], f))
-		if err != nil {
-			t.Fatal(err)
-		}
-		y, err := os.ReadFile(filepath.Join(outs[1], f))
-		if err != nil {
-			t.Fatal(err)
-		}
-		if !bytes.Equal(x, y) {
-			t.Errorf("%s differs between -workers 1 and 2", f)
-		}
-	}
-	md, _ := os.ReadFile(filepath.Join(outs[0], "summary.md"))
-	for _, want := range []string{"stratified 3-fold cross-validation, 2 repeats; seed 5", "## Against the reference", "figures/kernel-profile.svg"} {
-		if !strings.Contains(string(md), want) {
-			t.Errorf("summary.md lacks %q", want)
-		}
-	}
-	// The run reads back, and compares with itself without regression.
-	run, err := results.ReadRun(outs[0])
-	if err != nil {
-		t.Fatal(err)
-	}
-	other, err := results.ReadRun(outs[1])
-	if err != nil {
-		t.Fatal(err)
-	}
-	rc, err := Compare(run, other, CompareOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if rc.Regressions != 0 || !strings.Contains(rc.Pairing, "the same in all 8 cells") {
-		t.Errorf("self-comparison: %d regressions, pairing %q", rc.Regressions, rc.Pairing)
 	}
 }
 
@@ -473,11 +383,11 @@ func TestScaleGamma(t *testing.T) {
 	// X = [[1, 0], [0, 1]]: mean 0.5, population variance 0.25 over the
 	// four entries, d = 2, so gamma = 1/(2 · 0.25) = 2 (derived by hand
 	// from the "scale" rule 1/(d·Var(X))). A constant matrix gives 1.
-	if g := scaleGamma(mat.NewDense(2, 2, []float64{1, 0, 0, 1})); !scalar.EqualWithinAbsOrRel(g, 2, 1e-15, 1e-15) {
-		t.Errorf("scaleGamma = %v, want 2", g)
+	if g := ScaleGamma(mat.NewDense(2, 2, []float64{1, 0, 0, 1})); !scalar.EqualWithinAbsOrRel(g, 2, 1e-15, 1e-15) {
+		t.Errorf("ScaleGamma = %v, want 2", g)
 	}
 	// Zero variance: the rule returns the constant 1 itself, so == is exact.
-	if g := scaleGamma(mat.NewDense(2, 3, []float64{4, 4, 4, 4, 4, 4})); g != 1 {
-		t.Errorf("scaleGamma of a constant matrix = %v, want 1", g)
+	if g := ScaleGamma(mat.NewDense(2, 3, []float64{4, 4, 4, 4, 4, 4})); g != 1 {
+		t.Errorf("ScaleGamma of a constant matrix = %v, want 1", g)
 	}
 }
