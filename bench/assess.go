@@ -8,10 +8,12 @@ import (
 	"slices"
 	"strings"
 
+	"fringe/bench/export"
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
 	"fringe/bench/plan"
 	"fringe/bench/report"
+	"fringe/bench/runner"
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/datasets"
@@ -181,7 +183,7 @@ type assessDataset struct {
 	data                 *datasets.Dataset
 	folds                int
 	quantum, norm, class *plan.Plan
-	qres, nres, cres     []TaskResult
+	qres, nres, cres     []runner.TaskResult
 }
 
 // Assess runs the assessment: for every dataset, stratified k-fold
@@ -297,7 +299,7 @@ func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDa
 	plans := []struct {
 		s   *spec.Spec
 		dst **plan.Plan
-		res *[]TaskResult
+		res *[]runner.TaskResult
 	}{
 		{mkSpec(o.Pipelines,
 			map[string]any{"kind": "interference", "name": assessUniform},
@@ -313,13 +315,22 @@ func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDa
 		if err != nil {
 			return nil, err
 		}
-		res, err := Execute(ctx, p, Options{Workers: o.Workers})
+		res, err := runner.Execute(ctx, p, runner.Options{Workers: o.Workers})
 		if err != nil {
 			return nil, err
 		}
 		*pl.dst, *pl.res = p, res
 	}
 	return ad, nil
+}
+
+// mean is the arithmetic mean of v (NaN for none), summed in order.
+func mean(v []float64) float64 {
+	s := 0.0
+	for _, x := range v {
+		s += x
+	}
+	return s / float64(len(v))
 }
 
 // foldKey identifies a split within a dataset.
@@ -336,7 +347,7 @@ func cellOf(sums []results.Summary, pipe, model string) (results.Summary, bool) 
 }
 
 // foldAcc returns the accuracy per (repeat, fold) of one cell.
-func foldAcc(p *plan.Plan, res []TaskResult, pipe, model string) map[foldKey]float64 {
+func foldAcc(p *plan.Plan, res []runner.TaskResult, pipe, model string) map[foldKey]float64 {
 	out := map[foldKey]float64{}
 	for _, r := range res {
 		if p.Spec.Pipelines[r.Task.Pipeline] != pipe || p.Spec.Models[r.Task.Model].Name != model {
@@ -362,7 +373,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 		assessed, row.Weights = assessUniform, "uniform"
 	}
 	var warns []string
-	qsum := Summarise(ad.quantum, ad.qres)
+	qsum := runner.Summarise(ad.quantum, ad.qres)
 	if s, ok := cellOf(qsum, pipe, assessUniform); ok {
 		row.Uniform = s.Metrics[0]
 	}
@@ -400,7 +411,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 	row.Shots90 = percentile(shots, 0.9)
 
 	// Best baseline and the paired difference.
-	csum := Summarise(ad.class, ad.cres)
+	csum := runner.Summarise(ad.class, ad.cres)
 	best := -1
 	for i, s := range csum {
 		if best < 0 || s.Metrics[0].Mean > csum[best].Metrics[0].Mean && !report.Tied(s.Metrics[0].Mean, csum[best].Metrics[0].Mean) {
@@ -453,7 +464,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 		return row, nil, nil, &input.Error{Key: "pipelines", Err: err}
 	}
 	row.Before, row.Lift = before, lift
-	nsum := Summarise(ad.norm, ad.nres)
+	nsum := runner.Summarise(ad.norm, ad.nres)
 	acc := func(p string) float64 {
 		if s, ok := cellOf(nsum, p, assessKNN); ok {
 			return s.Metrics[0].Mean
@@ -509,7 +520,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 			}
 			if m < len(idx) {
 				rng := plan.NewRand(o.Seed, "assess-subset", row.Dataset, fmt.Sprint(m))
-				idx = balancedSubset(ytr, idx, C, m, rng.IntN)
+				idx = export.BalancedSubset(ytr, idx, C, m, rng.IntN)
 			}
 			train := make([][]float64, len(idx))
 			y := make([]int, len(idx))

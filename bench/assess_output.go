@@ -6,6 +6,7 @@ import (
 	"fmt"
 
 	"fringe/bench/outdir"
+	"fringe/bench/runner"
 	"fringe/results"
 )
 
@@ -43,7 +44,7 @@ func WriteAssessment(dir string, a *results.Assessment) error {
 		a.Figures = append(a.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
 	}
 	man := assessManifest{
-		Tool: "fringe assess", Version: Version, Seed: a.Seed, Repeats: a.Repeats, Weights: a.Weights,
+		Tool: "fringe assess", Version: runner.Version, Seed: a.Seed, Repeats: a.Repeats, Weights: a.Weights,
 		Ratio: a.Ratio, Confidence: a.Confidence, Subsets: a.Subsets, Classical: a.ClassicalPipeline,
 		Datasets: a.Datasets, Warnings: append([]string{}, a.Warnings...),
 	}

@@ -15,13 +15,14 @@ import (
 	"fringe/bench"
 	"fringe/bench/input"
 	"fringe/bench/plan"
+	"fringe/bench/runner"
 	"fringe/bench/spec"
 	"fringe/results"
 )
 
 // saveEvery is how long a finished task waits at most before it is
-// persisted (bench.DefaultSaveEvery; tests shorten it).
-var saveEvery = bench.DefaultSaveEvery
+// persisted (runner.DefaultSaveEvery; tests shorten it).
+var saveEvery = runner.DefaultSaveEvery
 
 // execute plans, runs and writes a spec, keeping finished tasks in a
 // partial run directory as they complete: OUT.partial for a whole run
@@ -56,7 +57,7 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 	if err != nil {
 		return err
 	}
-	pr, err := bench.OpenPartial(partialDir, pl, shard, bench.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
+	pr, err := runner.OpenPartial(partialDir, pl, shard, runner.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
 	if err != nil {
 		return err
 	}
@@ -77,14 +78,14 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		note("resuming from %s: %d of %d tasks were finished before; running the other %d", partialDir, pr.Loaded(), pr.Total(), len(todo))
 	}
 	if len(todo) > 0 {
-		opt := bench.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery}
-		var prog *bench.Progress
+		opt := runner.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery}
+		var prog *runner.Progress
 		if !rf.quiet {
-			prog = bench.NewProgress(stderr, isTerminal(stderr), pr.Loaded(), pr.Total())
+			prog = runner.NewProgress(stderr, isTerminal(stderr), pr.Loaded(), pr.Total())
 			opt.Progress = prog.Update
 		}
 		stopWatch := watchInterrupt(ctx, stderr, prog, rf.quiet)
-		_, err := bench.Execute(ctx, pl, opt)
+		_, err := runner.Execute(ctx, pl, opt)
 		stopWatch()
 		if prog != nil {
 			if err == nil {
@@ -125,15 +126,15 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		}
 		return nil
 	}
-	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
-	if err := bench.Write(pl, out, res, info, nil); err != nil {
+	info := runner.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
+	if err := runner.Write(pl, out, res, info, nil); err != nil {
 		return err
 	}
 	if err := pr.Remove(); err != nil {
 		fmt.Fprintln(stderr, "fringe: warning: remove the partial run directory:", err)
 	}
 	if !rf.quiet {
-		if err := results.WriteSummaryText(stdout, bench.Summarise(pl, res)); err != nil {
+		if err := results.WriteSummaryText(stdout, runner.Summarise(pl, res)); err != nil {
 			return err
 		}
 		resumed := ""
@@ -147,7 +148,7 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 
 // watchInterrupt tells the user, when ctx is cancelled (Ctrl-C, SIGTERM),
 // what happens next. The returned function stops watching.
-func watchInterrupt(ctx context.Context, stderr io.Writer, prog *bench.Progress, quiet bool) func() {
+func watchInterrupt(ctx context.Context, stderr io.Writer, prog *runner.Progress, quiet bool) func() {
 	stop := make(chan struct{})
 	done := make(chan struct{})
 	go func() {
@@ -189,7 +190,7 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 		return usagef("merge takes the partial run directories of every shard (see 'fringe merge -h')")
 	}
 	start := time.Now()
-	m, err := bench.Merge(pos)
+	m, err := runner.Merge(pos)
 	if err != nil {
 		return err
 	}
@@ -202,15 +203,15 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 			return usagef("-out %s is one of the partial run directories being merged; choose another", dir)
 		}
 	}
-	info := bench.RunInfo{Command: append([]string{"fringe", "merge"}, args...), Workers: m.Workers, Start: m.Start, End: time.Now()}
+	info := runner.RunInfo{Command: append([]string{"fringe", "merge"}, args...), Workers: m.Workers, Start: m.Start, End: time.Now()}
 	if info.Start.IsZero() {
 		info.Start = start
 	}
-	if err := bench.Write(m.Plan, dir, m.Results, info, nil); err != nil {
+	if err := runner.Write(m.Plan, dir, m.Results, info, nil); err != nil {
 		return err
 	}
 	if !*quiet {
-		if err := results.WriteSummaryText(stdout, bench.Summarise(m.Plan, m.Results)); err != nil {
+		if err := results.WriteSummaryText(stdout, runner.Summarise(m.Plan, m.Results)); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "\nmerged %d shards (%d tasks) in %.1f s; run directory: %s\n", m.Shards, len(m.Results), time.Since(start).Seconds(), dir)

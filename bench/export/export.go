@@ -1,4 +1,4 @@
-package bench
+package export
 
 import (
 	"bufio"
@@ -21,11 +21,11 @@ import (
 	"fringe/qkernel/circuit"
 )
 
-// ExportIndexColumns are the columns of index.csv in a circuit export.
-var ExportIndexColumns = []string{"file", "dataset", "pipeline", "repeat", "fold", "row", "qubits", "class_bits"}
+// IndexColumns are the columns of index.csv in a circuit export.
+var IndexColumns = []string{"file", "dataset", "pipeline", "repeat", "fold", "row", "qubits", "class_bits"}
 
-// ExportOptions configure ExportCircuits.
-type ExportOptions struct {
+// Options configure Circuits.
+type Options struct {
 	// Model names the spec's model (kind "interference" or "counts") whose
 	// balance and train_subset the circuits use. "" picks the first counts
 	// model, else the first interference model; a spec with neither gets
@@ -35,8 +35,8 @@ type ExportOptions struct {
 	Workers int
 }
 
-// ExportSummary describes a finished export.
-type ExportSummary struct {
+// Summary describes a finished export.
+type Summary struct {
 	Dir         string
 	Circuits    int
 	Model       string // the model whose settings were used; "" for none
@@ -147,21 +147,21 @@ func exportUnit(p *plan.Plan, di, pi, si int, set exportSettings, fn func(export
 	return nil
 }
 
-// ExportCircuits writes the OpenQASM 3 program of the interference circuit
+// Circuits writes the OpenQASM 3 program of the interference circuit
 // of every test instance of the plan (every dataset, pipeline, repeat and
 // fold) into dir, with index.csv mapping each file to its instance
-// (columns ExportIndexColumns; file names are relative to dir). The
+// (columns IndexColumns; file names are relative to dir). The
 // circuits are those a run's interference models would simulate: the
 // pipeline fitted on the training part, the training set or subset and the
-// weights of the model opt.Model names (see ExportOptions). The class
+// weights of the model opt.Model names (see Options). The class
 // register holds the class index in binary, class_out[0] its least
 // significant bit; each file's comments name the classes.
 //
 // The export is written into a temporary folder beside dir and renamed
 // into place when complete; an existing dir is replaced only if it is an
-// earlier export (it holds index.csv) or empty, else ExportCircuits
+// earlier export (it holds index.csv) or empty, else Circuits
 // refuses. Errors caused by the input satisfy errors.Is(err, input.ErrBad).
-func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOptions) (*ExportSummary, error) {
+func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summary, error) {
 	set, err := resolveExport(p, opt.Model)
 	if err != nil {
 		return nil, err
@@ -185,7 +185,7 @@ func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOpt
 
 	tmp, err := outdir.TempBeside(dir)
 	if err != nil {
-		return nil, fmt.Errorf("bench: export: %w", err)
+		return nil, fmt.Errorf("export: %w", err)
 	}
 	ok := false
 	defer func() {
@@ -220,7 +220,7 @@ func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOpt
 					return err
 				}
 				if err := os.WriteFile(filepath.Join(tmp, name), text, 0o644); err != nil {
-					return fmt.Errorf("bench: export: %w", err)
+					return fmt.Errorf("export: %w", err)
 				}
 				index[k] = []string{name, it.Dataset, it.Pipeline, strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold),
 					strconv.Itoa(it.Row), strconv.Itoa(it.Circuit.NQubits), strconv.Itoa(len(it.Circuit.Regs.Class))}
@@ -238,19 +238,19 @@ func ExportCircuits(ctx context.Context, p *plan.Plan, dir string, opt ExportOpt
 	}
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
-	w.Write(ExportIndexColumns)
+	w.Write(IndexColumns)
 	w.WriteAll(index)
 	if err := w.Error(); err != nil {
-		return nil, fmt.Errorf("bench: export: index: %w", err)
+		return nil, fmt.Errorf("export: index: %w", err)
 	}
 	if err := os.WriteFile(filepath.Join(tmp, "index.csv"), b.Bytes(), 0o644); err != nil {
-		return nil, fmt.Errorf("bench: export: %w", err)
+		return nil, fmt.Errorf("export: %w", err)
 	}
 	if err := outdir.Replace(tmp, dir); err != nil {
-		return nil, fmt.Errorf("bench: export: %w", err)
+		return nil, fmt.Errorf("export: %w", err)
 	}
 	ok = true
-	sum := &ExportSummary{Dir: dir, Circuits: total, Model: set.model, Balance: set.balance, TrainSubset: set.subset}
+	sum := &Summary{Dir: dir, Circuits: total, Model: set.model, Balance: set.balance, TrainSubset: set.subset}
 	for k := range sizes {
 		sum.Bytes += sizes[k]
 		sum.MaxQubits = max(sum.MaxQubits, qubits[k])
@@ -317,7 +317,7 @@ func checkExportDir(dir string) error {
 	if err == nil {
 		defer f.Close()
 		line, _ := bufio.NewReader(f).ReadString('\n')
-		if strings.TrimSpace(line) == strings.Join(ExportIndexColumns, ",") {
+		if strings.TrimSpace(line) == strings.Join(IndexColumns, ",") {
 			return nil
 		}
 	}

@@ -1,4 +1,4 @@
-package bench
+package export
 
 import (
 	"bytes"
@@ -15,6 +15,9 @@ import (
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
+	"fringe/bench/plan"
+	"fringe/bench/runner"
+	"fringe/bench/spec"
 	"fringe/qkernel/sim"
 )
 
@@ -70,11 +73,11 @@ func TestExportCircuits(t *testing.T) {
 	p := mustPlan(t, exportSpec)
 	dir := t.TempDir()
 	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
-	sum, err := ExportCircuits(context.Background(), p, a, ExportOptions{Model: "exact", Workers: 1})
+	sum, err := Circuits(context.Background(), p, a, Options{Model: "exact", Workers: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := ExportCircuits(context.Background(), p, b, ExportOptions{Model: "exact", Workers: 2}); err != nil {
+	if _, err := Circuits(context.Background(), p, b, Options{Model: "exact", Workers: 2}); err != nil {
 		t.Fatal(err)
 	}
 	want := 2 * (100 + 150) // two pipelines; iris-vv has 100 rows, iris 150
@@ -82,7 +85,7 @@ func TestExportCircuits(t *testing.T) {
 		t.Errorf("summary %+v, want %d circuits with the settings of model exact", sum, want)
 	}
 	index := readIndex(t, a)
-	if strings.Join(index[0], ",") != strings.Join(ExportIndexColumns, ",") || len(index) != want+1 {
+	if strings.Join(index[0], ",") != strings.Join(IndexColumns, ",") || len(index) != want+1 {
 		t.Fatalf("index header %v with %d lines", index[0], len(index))
 	}
 	files, _ := os.ReadDir(a)
@@ -98,11 +101,11 @@ func TestExportCircuits(t *testing.T) {
 	}
 
 	// Run the exact model and compare each instance with its simulated circuit.
-	res, err := Execute(context.Background(), p, Options{Workers: 2})
+	res, err := runner.Execute(context.Background(), p, runner.Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
-	preds, _, _ := Records(p, res)
+	preds, _, _ := runner.Records(p, res)
 	type inst struct {
 		d, pipe   string
 		fold, row int
@@ -211,7 +214,7 @@ func TestExportSettings(t *testing.T) {
 
 	dir := t.TempDir()
 	out := filepath.Join(dir, "c")
-	sum, err := ExportCircuits(context.Background(), p, out, ExportOptions{Model: "sub"})
+	sum, err := Circuits(context.Background(), p, out, Options{Model: "sub"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -221,13 +224,13 @@ func TestExportSettings(t *testing.T) {
 		t.Errorf("max qubits %d, want 7", sum.MaxQubits)
 	}
 	// An earlier export is replaced; another folder is refused.
-	if _, err := ExportCircuits(context.Background(), p, out, ExportOptions{Model: "sub"}); err != nil {
+	if _, err := Circuits(context.Background(), p, out, Options{Model: "sub"}); err != nil {
 		t.Errorf("replacing an earlier export: %v", err)
 	}
 	other := filepath.Join(dir, "mine")
 	os.MkdirAll(other, 0o755)
 	os.WriteFile(filepath.Join(other, "notes.txt"), []byte("keep"), 0o644)
-	if _, err := ExportCircuits(context.Background(), p, other, ExportOptions{Model: "sub"}); err == nil || !errors.Is(err, input.ErrBad) {
+	if _, err := Circuits(context.Background(), p, other, Options{Model: "sub"}); err == nil || !errors.Is(err, input.ErrBad) {
 		t.Errorf("export into a folder of other files: %v", err)
 	}
 	if b, err := os.ReadFile(filepath.Join(other, "notes.txt")); err != nil || string(b) != "keep" {
@@ -258,4 +261,17 @@ func TestBits(t *testing.T) {
 			t.Errorf("modelkit.ParseBits(%q, 1) accepted", s)
 		}
 	}
+}
+
+func mustPlan(t *testing.T, src string) *plan.Plan {
+	t.Helper()
+	s, err := spec.Parse("t.toml", []byte(src))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := plan.New(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
 }

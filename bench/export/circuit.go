@@ -1,4 +1,4 @@
-package bench
+package export
 
 import (
 	"fmt"
@@ -63,7 +63,7 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	train := others
 	if req.Train > 0 && req.Train < len(others) {
 		rng := plan.NewRand(req.Seed, "circuit", req.Dataset.Display(), fmt.Sprint(req.Row))
-		train = balancedSubset(data.Y, others, len(data.Classes), req.Train, rng.IntN)
+		train = BalancedSubset(data.Y, others, len(data.Classes), req.Train, rng.IntN)
 	} else if req.Train > len(others) {
 		return nil, bad("training-set size %d exceeds the %d other rows of dataset %s", req.Train, len(others), req.Dataset.Display())
 	}
@@ -101,11 +101,11 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	return &CircuitResult{Circuit: c, Dataset: data, TrainRows: rowsTr, TestRow: req.Row, Features: f}, nil
 }
 
-// balancedSubset draws k of the positions idx, as equal as possible per
+// BalancedSubset draws k of the positions idx, as equal as possible per
 // class (remainders to classes in class order, capped by class size and
 // redistributed), without replacement, using intn for randomness; the
 // result is sorted.
-func balancedSubset(y, idx []int, nClass, k int, intn func(int) int) []int {
+func BalancedSubset(y, idx []int, nClass, k int, intn func(int) int) []int {
 	byClass := make([][]int, nClass)
 	for _, i := range idx {
 		byClass[y[i]] = append(byClass[y[i]], i)

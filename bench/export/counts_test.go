@@ -1,4 +1,4 @@
-package bench
+package export
 
 import (
 	"bytes"
@@ -19,6 +19,7 @@ import (
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
 	"fringe/bench/plan"
+	"fringe/bench/runner"
 	"fringe/bench/spec"
 	"fringe/qkernel/sim"
 )
@@ -183,18 +184,18 @@ func TestCountsClosesLoop(t *testing.T) {
 			dir := t.TempDir()
 			p := loopPlan(t, dir, c.pipelines, c.dataset, c.classes, c.settings)
 			export := filepath.Join(dir, "circuits")
-			if _, err := ExportCircuits(context.Background(), p, export, ExportOptions{Workers: 2}); err != nil {
+			if _, err := Circuits(context.Background(), p, export, Options{Workers: 2}); err != nil {
 				t.Fatal(err)
 			}
 			counts := measure(t, p, export, 250, len(p.Spec.Pipelines) > 1)
 			if err := os.WriteFile(filepath.Join(dir, "measured.csv"), counts, 0o644); err != nil {
 				t.Fatal(err)
 			}
-			res, err := Execute(context.Background(), p, Options{Workers: 2})
+			res, err := runner.Execute(context.Background(), p, runner.Options{Workers: 2})
 			if err != nil {
 				t.Fatal(err)
 			}
-			preds, folds, _ := Records(p, res)
+			preds, folds, _ := runner.Records(p, res)
 			type inst struct {
 				pipe              string
 				repeat, fold, row int
@@ -345,7 +346,7 @@ func TestCountsBadInput(t *testing.T) {
 				}
 			}
 			p := loopPlan(t, dir, `"std"`, "iris", `classes = ["setosa", "versicolor"]`, "")
-			_, err := Execute(context.Background(), p, Options{Workers: 2})
+			_, err := runner.Execute(context.Background(), p, runner.Options{Workers: 2})
 			if err == nil {
 				t.Fatal("run succeeded")
 			}
@@ -368,11 +369,11 @@ func TestCountsBadInput(t *testing.T) {
 	if err := os.WriteFile(filepath.Join(dir, "measured.csv"), []byte(good), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := Execute(context.Background(), p, Options{Workers: 2}); err != nil {
+	if _, err := runner.Execute(context.Background(), p, runner.Options{Workers: 2}); err != nil {
 		t.Fatalf("valid counts file: %v", err)
 	}
 	p2 := loopPlan(t, dir, `"std", "l2"`, "iris", `classes = ["setosa", "versicolor"]`, "")
-	_, err := Execute(context.Background(), p2, Options{Workers: 2})
+	_, err := runner.Execute(context.Background(), p2, runner.Options{Workers: 2})
 	if err == nil || !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "measured.csv:1") || !strings.Contains(err.Error(), "add a pipeline column") {
 		t.Errorf("two pipelines, no pipeline column: %v", err)
 	}
@@ -381,7 +382,7 @@ func TestCountsBadInput(t *testing.T) {
 	}
 	// A counts file is read once per plan: plan again after changing it.
 	p2 = loopPlan(t, dir, `"std", "l2"`, "iris", `classes = ["setosa", "versicolor"]`, "")
-	if _, err := Execute(context.Background(), p2, Options{Workers: 2}); err != nil {
+	if _, err := runner.Execute(context.Background(), p2, runner.Options{Workers: 2}); err != nil {
 		t.Fatalf("two pipelines with a pipeline column: %v", err)
 	}
 }

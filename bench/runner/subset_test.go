@@ -1,4 +1,4 @@
-package bench
+package runner
 
 import (
 	"context"
@@ -13,9 +13,9 @@ import (
 )
 
 // clusterSpec is a small grid for the shard, resume and merge tests
-// (plan/testdata/cluster.toml says what it exercises).
+// (../plan/testdata/cluster.toml says what it exercises).
 var clusterSpec = func() string {
-	b, err := os.ReadFile("plan/testdata/cluster.toml")
+	b, err := os.ReadFile("../plan/testdata/cluster.toml")
 	if err != nil {
 		panic(err)
 	}
