@@ -233,7 +233,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 		}
 		cx, cr := a.correct[idOf(x)], a.correct[idOf(ref)]
 		if len(cx) == 0 || len(cr) == 0 {
-			return c, false, fmt.Errorf("bench: report: McNemar needs the predictions of %s", where)
+			return c, false, fmt.Errorf("report: McNemar needs the predictions of %s", where)
 		}
 		keys := make([]instKey, 0, len(cx))
 		for k := range cx {
@@ -259,7 +259,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 		}
 		r, err := stats.McNemar(b, cc, a.alpha)
 		if err != nil {
-			return c, false, fmt.Errorf("bench: report: %s: %w", where, err)
+			return c, false, fmt.Errorf("report: %s: %w", where, err)
 		}
 		c.Statistic, c.DF, c.P = r.Statistic, r.DF, r.P
 		if b+cc < stats.McNemarSmall {
@@ -272,7 +272,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 	case spec.TestCorrectedT, spec.Test5x2CV:
 		fx, fr := a.folds[idOf(x)], a.folds[idOf(ref)]
 		if len(fx) == 0 || len(fr) == 0 {
-			return c, false, fmt.Errorf("bench: report: no fold records for %s", where)
+			return c, false, fmt.Errorf("report: no fold records for %s", where)
 		}
 		keys := make([]foldKey, 0, len(fx))
 		for k := range fx {
@@ -285,7 +285,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 			a.warn = append(a.warn, [2]string{where, fmt.Sprintf("only %d of %d/%d folds pair up", len(keys), len(fx), len(fr))})
 		}
 		if len(keys) == 0 {
-			return c, false, fmt.Errorf("bench: report: %s: no folds in common", where)
+			return c, false, fmt.Errorf("report: %s: no folds in common", where)
 		}
 		if a.test == spec.Test5x2CV {
 			var diff [5][2]float64
@@ -293,7 +293,7 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 			var sum float64
 			for _, k := range keys {
 				if k.repeat < 0 || k.repeat >= 5 || k.fold < 0 || k.fold >= 2 {
-					return c, false, fmt.Errorf("bench: report: %s: 5x2cv needs repeats 0-4 and folds 0-1, found repeat %d fold %d", where, k.repeat, k.fold)
+					return c, false, fmt.Errorf("report: %s: 5x2cv needs repeats 0-4 and folds 0-1, found repeat %d fold %d", where, k.repeat, k.fold)
 				}
 				d := fx[k].Scores.Values()[mi] - fr[k].Scores.Values()[mi]
 				diff[k.repeat][k.fold] = d
@@ -301,11 +301,11 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 				seen++
 			}
 			if seen != 10 {
-				return c, false, fmt.Errorf("bench: report: %s: 5x2cv needs 10 paired folds, found %d", where, seen)
+				return c, false, fmt.Errorf("report: %s: 5x2cv needs 10 paired folds, found %d", where, seen)
 			}
 			r, err := stats.FiveByTwoCV(diff, a.alpha)
 			if err != nil {
-				return c, false, fmt.Errorf("bench: report: %s: %w", where, err)
+				return c, false, fmt.Errorf("report: %s: %w", where, err)
 			}
 			c.Diff = sum / 10
 			c.Statistic, c.DF, c.P, c.Warnings = r.Statistic, r.DF, r.P, r.Warnings
@@ -325,14 +325,14 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 		nte := int(math.Round(nTest / float64(len(keys))))
 		r, err := stats.CorrectedPairedT(xs, rs, ntr, nte, a.alpha)
 		if err != nil {
-			return c, false, fmt.Errorf("bench: report: %s: %w", where, err)
+			return c, false, fmt.Errorf("report: %s: %w", where, err)
 		}
 		c.Statistic, c.DF, c.P, c.Warnings = r.Statistic, r.DF, r.P, r.Warnings
 		if iv, err := stats.CorrectedInterval(d, ntr, nte, a.alpha); err == nil {
 			c.Diff, c.Lo, c.Hi = iv.Mean, iv.Lo, iv.Hi
 		}
 	default:
-		return c, false, fmt.Errorf("bench: report: unknown test %v", a.test)
+		return c, false, fmt.Errorf("report: unknown test %v", a.test)
 	}
 	for _, w := range c.Warnings {
 		a.warn = append(a.warn, [2]string{where, w})
@@ -354,7 +354,7 @@ func holm(family []*results.Comparison, alpha float64) error {
 	}
 	adj, err := stats.HolmAdjust(ps)
 	if err != nil {
-		return fmt.Errorf("bench: report: %w", err)
+		return fmt.Errorf("report: %w", err)
 	}
 	for i, c := range family {
 		c.PAdj = adj[i]
@@ -540,7 +540,7 @@ func (a *analyser) acrossDatasets() ([]results.RankTable, []results.PairAcross, 
 		}
 		fr, err := stats.Friedman(scores, a.alpha)
 		if err != nil {
-			return nil, nil, fmt.Errorf("bench: report: pipeline %s: %w", pipe, err)
+			return nil, nil, fmt.Errorf("report: pipeline %s: %w", pipe, err)
 		}
 		t := results.RankTable{
 			Pipeline: pipe, Metric: results.MetricNames[0], Models: models, Datasets: dss,
@@ -572,7 +572,7 @@ func (a *analyser) acrossDatasets() ([]results.RankTable, []results.PairAcross, 
 				}
 				w, err := stats.Wilcoxon(xa, xb, a.alpha)
 				if err != nil {
-					return nil, nil, fmt.Errorf("bench: report: pipeline %s, %s vs %s: %w", pipe, qa, cb, err)
+					return nil, nil, fmt.Errorf("report: pipeline %s, %s vs %s: %w", pipe, qa, cb, err)
 				}
 				fam = append(fam, results.PairAcross{
 					Pipeline: pipe, A: qa, B: cb, Metric: results.MetricNames[0], N: w.N,
@@ -591,7 +591,7 @@ func (a *analyser) acrossDatasets() ([]results.RankTable, []results.PairAcross, 
 			}
 			adj, err := stats.HolmAdjust(ps)
 			if err != nil {
-				return nil, nil, fmt.Errorf("bench: report: %w", err)
+				return nil, nil, fmt.Errorf("report: %w", err)
 			}
 			for i := range fam {
 				fam[i].PAdj = adj[i]

@@ -164,7 +164,7 @@ func Compare(base, cur *results.Run, opt CompareOptions) (*results.RunComparison
 		if !opt.NoCorrection {
 			var err error
 			if adj, err = stats.HolmAdjust(ps); err != nil {
-				return nil, fmt.Errorf("bench: compare: %w", err)
+				return nil, fmt.Errorf("report: compare: %w", err)
 			}
 		}
 		for i, j := range gatedIdx {
@@ -292,7 +292,7 @@ func testChange(ch *results.CellChange, bs, ns results.Summary, bi, ni *runIndex
 			nTrain, nTest := int(math.Round(ntr/float64(len(keys)))), int(math.Round(nte/float64(len(keys))))
 			r, err := stats.CorrectedPairedT(xs, ys, nTrain, nTest, alpha)
 			if err != nil {
-				return fmt.Errorf("bench: %s: %w", where, err)
+				return fmt.Errorf("report: %s: %w", where, err)
 			}
 			ch.Method, ch.Statistic, ch.DF, ch.P = "paired-t", r.Statistic, float64(r.DF), r.P
 			if iv, err := stats.CorrectedInterval(d, nTrain, nTest, alpha); err == nil && !math.IsNaN(iv.Lo) {
@@ -303,11 +303,11 @@ func testChange(ch *results.CellChange, bs, ns results.Summary, bi, ni *runIndex
 		}
 		wb, err := cellInterval(fb, mi, alpha)
 		if err != nil {
-			return fmt.Errorf("bench: %s: %w", where, err)
+			return fmt.Errorf("report: %s: %w", where, err)
 		}
 		wn, err := cellInterval(fn, mi, alpha)
 		if err != nil {
-			return fmt.Errorf("bench: %s: %w", where, err)
+			return fmt.Errorf("report: %s: %w", where, err)
 		}
 		w := WelchT(wn.Mean, wn.SE, wn.DF, wb.Mean, wb.SE, wb.DF, alpha)
 		ch.Method, ch.Statistic, ch.DF, ch.P = "welch-t", w.T, w.DF, w.P
@@ -339,7 +339,7 @@ func testChange(ch *results.CellChange, bs, ns results.Summary, bi, ni *runIndex
 			}
 			r, err := stats.McNemar(b, c, alpha)
 			if err != nil {
-				return fmt.Errorf("bench: %s: %w", where, err)
+				return fmt.Errorf("report: %s: %w", where, err)
 			}
 			ch.Method, ch.Statistic, ch.DF, ch.P = "mcnemar", r.Statistic, float64(r.DF), r.P
 			if b+c < stats.McNemarSmall {
@@ -442,7 +442,7 @@ type Proportions struct {
 // count is outside [0, n] or n < 1: callers derive counts from records.
 func TwoProportions(k1, n1, k2, n2 int, alpha float64) Proportions {
 	if n1 < 1 || n2 < 1 || k1 < 0 || k1 > n1 || k2 < 0 || k2 > n2 {
-		panic(fmt.Sprintf("bench: TwoProportions(%d, %d, %d, %d): counts out of range", k1, n1, k2, n2))
+		panic(fmt.Sprintf("report: TwoProportions(%d, %d, %d, %d): counts out of range", k1, n1, k2, n2))
 	}
 	p1, p2 := float64(k1)/float64(n1), float64(k2)/float64(n2)
 	r := Proportions{Diff: p1 - p2}

@@ -30,7 +30,7 @@ func Figures(rep *results.Report, preds []results.Prediction) ([]results.Figure,
 	for _, t := range rep.Ranks {
 		p, h, err := results.CDDiagram(t, fmt.Sprintf("Average ranks, pipeline %s (%d datasets)", t.Pipeline, len(t.Datasets)))
 		if err != nil {
-			return nil, fmt.Errorf("bench: figures: %w", err)
+			return nil, fmt.Errorf("report: figures: %w", err)
 		}
 		figs = append(figs, results.Figure{
 			Name: "figures/cd-" + outdir.SafeName(t.Pipeline), Plot: p, Width: results.CDWidth, Height: h,
@@ -40,7 +40,7 @@ func Figures(rep *results.Report, preds []results.Prediction) ([]results.Figure,
 	for _, sw := range sweepSpecs(rep) {
 		p, err := results.SweepPlot(sw.sweep)
 		if err != nil {
-			return nil, fmt.Errorf("bench: figures: %w", err)
+			return nil, fmt.Errorf("report: figures: %w", err)
 		}
 		figs = append(figs, results.Figure{Name: sw.name, Caption: sw.caption, Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true})
 	}
@@ -271,7 +271,7 @@ func paccFigures(rep *results.Report, preds []results.Prediction) ([]results.Fig
 		}
 		p, err := results.BoxPlot(b)
 		if err != nil {
-			return nil, fmt.Errorf("bench: figures: %w", err)
+			return nil, fmt.Errorf("report: figures: %w", err)
 		}
 		figs = append(figs, results.Figure{
 			Name: "figures/pacc-" + outdir.SafeName(v.Model), Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true,
@@ -326,7 +326,7 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 		for _, d := range p.Datasets {
 			Z, err := pl.FitTransform(d.Data.X, d.Data.Rows)
 			if err != nil {
-				return results.Figure{}, fmt.Errorf("bench: kernel figure: dataset %s: %w", d.Name, err)
+				return results.Figure{}, fmt.Errorf("report: kernel figure: dataset %s: %w", d.Name, err)
 			}
 			gamma := ScaleGamma(Z)
 			curves = append(curves, results.KernelCurve{Label: fmt.Sprintf("RBF γ = scale on %s (%.3g)", d.Name, gamma), Gamma: gamma})
@@ -334,7 +334,7 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 	}
 	pl, err := results.KernelProfile(curves)
 	if err != nil {
-		return results.Figure{}, fmt.Errorf("bench: kernel figure: %w", err)
+		return results.Figure{}, fmt.Errorf("report: kernel figure: %w", err)
 	}
 	return results.Figure{
 		Name: "figures/kernel-profile", Plot: pl, Width: 6 * vg.Inch, Height: 4 * vg.Inch,

@@ -134,7 +134,7 @@ func ReadScores(r io.Reader, file string) (*ScoreTable, error) {
 func Rank(t *ScoreTable, alpha float64) (results.RankTable, error) {
 	fr, err := stats.Friedman(t.Scores, alpha)
 	if err != nil {
-		return results.RankTable{}, fmt.Errorf("bench: rank: %w", err)
+		return results.RankTable{}, fmt.Errorf("report: rank: %w", err)
 	}
 	return results.RankTable{
 		Metric: "score", Models: t.Models, Datasets: t.Datasets,

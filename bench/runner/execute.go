@@ -86,10 +86,10 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	slot := make(map[int]int, len(tasks))
 	for k, i := range tasks {
 		if i < 0 || i >= len(p.Tasks) {
-			panic(fmt.Sprintf("bench: Execute: task index %d out of range [0, %d)", i, len(p.Tasks)))
+			panic(fmt.Sprintf("runner: Execute: task index %d out of range [0, %d)", i, len(p.Tasks)))
 		}
 		if _, dup := slot[i]; dup {
-			panic(fmt.Sprintf("bench: Execute: task %d listed twice", i))
+			panic(fmt.Sprintf("runner: Execute: task %d listed twice", i))
 		}
 		slot[i] = k
 	}

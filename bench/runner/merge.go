@@ -155,7 +155,7 @@ func Merge(dirs []string) (*Merged, error) {
 	for i, r := range all {
 		if r == nil {
 			// Every shard is complete and the shards cover the plan.
-			panic(fmt.Sprintf("bench: Merge: task %d missing after a complete merge", i))
+			panic(fmt.Sprintf("runner: Merge: task %d missing after a complete merge", i))
 		}
 		m.Results[i] = *r
 	}

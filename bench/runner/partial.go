@@ -343,7 +343,7 @@ func (pr *Partial) Results() ([]TaskResult, error) {
 	out := make([]TaskResult, 0, len(pr.want))
 	for _, i := range pr.want {
 		if pr.have[i] == nil {
-			return nil, fmt.Errorf("bench: %s: task %s is not finished", pr.dir, pr.plan.Key(pr.plan.Tasks[i]))
+			return nil, fmt.Errorf("runner: %s: task %s is not finished", pr.dir, pr.plan.Key(pr.plan.Tasks[i]))
 		}
 		out = append(out, *pr.have[i])
 	}
@@ -364,10 +364,10 @@ func (pr *Partial) Save(batch []TaskResult) error {
 	for _, r := range batch {
 		i := r.Task.Index
 		if i < 0 || i >= len(pr.member) || !pr.member[i] {
-			panic(fmt.Sprintf("bench: Partial.Save: task %d is not part of shard %s", i, pr.shard))
+			panic(fmt.Sprintf("runner: Partial.Save: task %d is not part of shard %s", i, pr.shard))
 		}
 		if pr.have[i] != nil {
-			panic(fmt.Sprintf("bench: Partial.Save: task %d saved twice", i))
+			panic(fmt.Sprintf("runner: Partial.Save: task %d saved twice", i))
 		}
 	}
 	if !pr.created {

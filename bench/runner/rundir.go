@@ -155,7 +155,7 @@ func Summarise(p *plan.Plan, res []TaskResult) []results.Summary {
 				iv, err := stats.CorrectedInterval(v, int(math.Round(nTrain)), int(math.Round(nTest)), report.Alpha)
 				if err != nil {
 					// Only impossible inputs (no scores, non-finite metrics) get here.
-					panic(fmt.Sprintf("bench: summary interval: %v", err))
+					panic(fmt.Sprintf("runner: summary interval: %v", err))
 				}
 				// Every metric lies in [0, 1]; the t interval does not know that.
 				s.Metrics = append(s.Metrics, results.MetricSummary{Mean: iv.Mean, Std: iv.Std, Lo: clip01(iv.Lo), Hi: clip01(iv.Hi)})

@@ -12,7 +12,7 @@ import (
 
 	"golang.org/x/term"
 
-	"fringe/bench"
+	"fringe/bench/cluster"
 	"fringe/bench/input"
 	"fringe/bench/plan"
 	"fringe/bench/runner"
@@ -234,7 +234,7 @@ func sameDir(a, b string) bool {
 // runSlurm is `fringe slurm SPEC -shards N`: it writes the cluster job.
 func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags(c, stdout)
-	o := bench.SlurmOptions{}
+	o := cluster.SlurmOptions{}
 	fs.IntVar(&o.Shards, "shards", 0, "number of shards = array tasks (required; at most the plan's units of work)")
 	out := fs.String("out", "", "directory of the merged run (default fringe-out/<spec name>); shards go to DIR.shards/")
 	fs.StringVar(&o.Fringe, "fringe", "fringe", "the fringe binary on the cluster's nodes: a path, or a name looked up on PATH")
@@ -273,7 +273,7 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 		o.Out = filepath.Join("fringe-out", s.Name)
 	}
 	var b bytes.Buffer
-	if err := bench.WriteSlurmScript(&b, o); err != nil {
+	if err := cluster.WriteSlurmScript(&b, o); err != nil {
 		return err
 	}
 	if *script == "" {

@@ -1,4 +1,4 @@
-package bench
+package cluster
 
 import (
 	"fmt"

@@ -1,4 +1,4 @@
-package bench
+package assess
 
 import (
 	"cmp"
@@ -21,25 +21,25 @@ import (
 	"fringe/results"
 )
 
-// DefaultAssessPipelines are the pipelines `fringe assess` assesses when
+// DefaultPipelines are the pipelines `fringe assess` assesses when
 // none are given.
-var DefaultAssessPipelines = []string{"std+l2", "l2", "std+lift"}
+var DefaultPipelines = []string{"std+l2", "l2", "std+lift"}
 
-// DefaultAssessSubsets are the train_subset sizes of the resource table.
-var DefaultAssessSubsets = []int{8, 16, 32}
+// DefaultSubsets are the train_subset sizes of the resource table.
+var DefaultSubsets = []int{8, 16, 32}
 
-// AssessClassicalPipeline is the pipeline of the classical baselines of an
+// ClassicalPipeline is the pipeline of the classical baselines of an
 // assessment: z-scores, what k-NN, SVMs and logistic regression are
 // ordinarily given.
-const AssessClassicalPipeline = "std"
+const ClassicalPipeline = "std"
 
-// AssessOptions configure Assess. The zero value assesses every dataset
-// Load accepts with DefaultAssessPipelines, seed 0, 10 folds, 3 repeats,
+// Options configure Run. The zero value assesses every dataset
+// Load accepts with DefaultPipelines, seed 0, 10 folds, 3 repeats,
 // the class-balanced form of the classifier, p1 = p2/10 and 95% confidence.
-type AssessOptions struct {
+type Options struct {
 	Datasets  []spec.Dataset // nil: every name of datasets.Names()
-	Pipelines []string       // nil: DefaultAssessPipelines
-	Subsets   []int          // nil: DefaultAssessSubsets; sizes below the class count or at least the training size are skipped
+	Pipelines []string       // nil: DefaultPipelines
+	Subsets   []int          // nil: DefaultSubsets; sizes below the class count or at least the training size are skipped
 	Seed      uint64
 	Folds     int     // 0: 10; capped per dataset at its smallest class
 	Repeats   int     // 0: 3
@@ -54,21 +54,21 @@ type AssessOptions struct {
 // Confidence of a right decision in the shots budget, and the target
 // fidelity of the noise budget.
 const (
-	AssessConfidence = 0.95
-	assessFidelity   = 0.5
+	Confidence     = 0.95
+	assessFidelity = 0.5
 )
 
-func (o AssessOptions) withDefaults() (AssessOptions, error) {
+func (o Options) withDefaults() (Options, error) {
 	if o.Datasets == nil {
 		for _, n := range datasets.Names() {
 			o.Datasets = append(o.Datasets, spec.Dataset{Name: n})
 		}
 	}
 	if o.Pipelines == nil {
-		o.Pipelines = slices.Clone(DefaultAssessPipelines)
+		o.Pipelines = slices.Clone(DefaultPipelines)
 	}
 	if o.Subsets == nil {
-		o.Subsets = slices.Clone(DefaultAssessSubsets)
+		o.Subsets = slices.Clone(DefaultSubsets)
 	}
 	if o.Folds == 0 {
 		o.Folds = 10
@@ -172,7 +172,7 @@ func mustModel(m map[string]any) modelkit.Spec {
 	ms, err := modelkit.Parse(m)
 	if err != nil {
 		// The tables below are fixed and valid.
-		panic("bench: assessment model: " + err.Error())
+		panic("assess: ment model: " + err.Error())
 	}
 	return ms
 }
@@ -186,25 +186,25 @@ type assessDataset struct {
 	qres, nres, cres     []runner.TaskResult
 }
 
-// Assess runs the assessment: for every dataset, stratified k-fold
+// Run runs the assessment: for every dataset, stratified k-fold
 // cross-validation of the exact interference classifier (both weightings)
 // on each pipeline, of k-NN (k = 5) on the vectors before and after
 // unit-norm scaling, after lift and on the norm alone, and of the
 // classical baselines (k-NN, RBF SVM, logistic regression, nearest
-// centroid) on AssessClassicalPipeline; then the compiled circuit's
+// centroid) on ClassicalPipeline; then the compiled circuit's
 // registers, gates and noise budget, the post-selection statistics and
 // shots budget, the kernel-target alignments and the ranking. Every
 // dataset's splits depend only on the seed, its name and the repeat, so
 // all of its models see the same folds and the differences are paired.
 // Errors caused by the input satisfy errors.Is(err, input.ErrBad).
-func Assess(ctx context.Context, opt AssessOptions) (*results.Assessment, error) {
+func Run(ctx context.Context, opt Options) (*results.Assessment, error) {
 	o, err := opt.withDefaults()
 	if err != nil {
 		return nil, err
 	}
 	a := &results.Assessment{
-		Seed: o.Seed, Repeats: o.Repeats, Confidence: AssessConfidence, Ratio: o.Ratio,
-		Weights: "balanced", Level: 1 - report.Alpha, Subsets: o.Subsets, ClassicalPipeline: AssessClassicalPipeline,
+		Seed: o.Seed, Repeats: o.Repeats, Confidence: Confidence, Ratio: o.Ratio,
+		Weights: "balanced", Level: 1 - report.Alpha, Subsets: o.Subsets, ClassicalPipeline: ClassicalPipeline,
 	}
 	if o.Uniform {
 		a.Weights = "uniform"
@@ -249,7 +249,7 @@ func Assess(ctx context.Context, opt AssessOptions) (*results.Assessment, error)
 }
 
 // assessRun loads one dataset and runs its three plans.
-func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDataset, error) {
+func assessRun(ctx context.Context, o Options, ds spec.Dataset) (*assessDataset, error) {
 	base := &spec.Spec{Name: "assess", Seed: o.Seed, File: o.File, Dir: o.Dir, Datasets: []spec.Dataset{ds}}
 	data, err := plan.LoadDataset(base, ds)
 	if err != nil {
@@ -305,7 +305,7 @@ func assessRun(ctx context.Context, o AssessOptions, ds spec.Dataset) (*assessDa
 			map[string]any{"kind": "interference", "name": assessUniform},
 			map[string]any{"kind": "interference", "balance": true, "name": assessBalanced}), &ad.quantum, &ad.qres},
 		{mkSpec(normPipes, knn), &ad.norm, &ad.nres},
-		{mkSpec([]string{AssessClassicalPipeline}, knn,
+		{mkSpec([]string{ClassicalPipeline}, knn,
 			map[string]any{"kind": "svm", "kernel": "rbf"},
 			map[string]any{"kind": "logreg"},
 			map[string]any{"kind": "centroid"}), &ad.class, &ad.cres},
@@ -361,7 +361,7 @@ func foldAcc(p *plan.Plan, res []runner.TaskResult, pipe, model string) map[fold
 
 // assessRow computes the row of one (dataset, pipeline) and its resource
 // rows.
-func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache map[[3]int]circuit.Resources) (results.AssessRow, []results.AssessResource, []string, error) {
+func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]int]circuit.Resources) (results.AssessRow, []results.AssessResource, []string, error) {
 	nan := math.NaN()
 	data := ad.data
 	row := results.AssessRow{
@@ -396,7 +396,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 			slices.SortFunc(q, func(x, y float64) int { return cmp.Compare(y, x) })
 			pacc = append(pacc, det.PAcc)
 			margin = append(margin, q[0]-q[1])
-			shots = append(shots, ShotsForConfidence(det.PAcc, q[0], q[1], AssessConfidence))
+			shots = append(shots, ShotsForConfidence(det.PAcc, q[0], q[1], Confidence))
 		}
 	}
 	row.PAcc = pacc
@@ -420,10 +420,10 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 	}
 	row.Gap, row.GapLo, row.GapHi, row.GapP = nan, nan, nan, nan
 	if best >= 0 {
-		row.Baseline = csum[best].Model + " (" + AssessClassicalPipeline + ")"
+		row.Baseline = csum[best].Model + " (" + ClassicalPipeline + ")"
 		row.BaselineAcc = csum[best].Metrics[0]
 		fx := foldAcc(ad.quantum, ad.qres, pipe, assessed)
-		fr := foldAcc(ad.class, ad.cres, AssessClassicalPipeline, csum[best].Model)
+		fr := foldAcc(ad.class, ad.cres, ClassicalPipeline, csum[best].Model)
 		keys := make([]foldKey, 0, len(fx))
 		for k := range fx {
 			if _, ok := fr[k]; ok {
@@ -446,13 +446,13 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 		if len(keys) > 0 {
 			iv, err := stats.CorrectedInterval(d, ntr, nte, report.Alpha)
 			if err != nil {
-				return row, nil, nil, fmt.Errorf("bench: assess %s/%s: %w", row.Dataset, pipe, err)
+				return row, nil, nil, fmt.Errorf("assess:  %s/%s: %w", row.Dataset, pipe, err)
 			}
 			row.Gap, row.GapLo, row.GapHi = iv.Mean, iv.Lo, iv.Hi
 			warns = append(warns, iv.Warnings...)
 			t, err := stats.CorrectedPairedT(xs, rs, ntr, nte, report.Alpha)
 			if err != nil {
-				return row, nil, nil, fmt.Errorf("bench: assess %s/%s: %w", row.Dataset, pipe, err)
+				return row, nil, nil, fmt.Errorf("assess:  %s/%s: %w", row.Dataset, pipe, err)
 			}
 			row.GapP = t.P
 		}
@@ -530,7 +530,7 @@ func assessRow(o AssessOptions, ad *assessDataset, pi int, pipe string, cache ma
 			var w []float64
 			if !o.Uniform {
 				if w, err = circuit.BalancedWeights(y, C); err != nil {
-					return row, nil, nil, fmt.Errorf("bench: assess %s: %w", where, err)
+					return row, nil, nil, fmt.Errorf("assess:  %s: %w", where, err)
 				}
 			}
 			c, err := circuit.Compile(Zte.RawRowView(0), train, y, C, w)

@@ -1,4 +1,4 @@
-package bench
+package assess
 
 import (
 	"bytes"
@@ -23,7 +23,7 @@ import (
 // smallAssessment runs a quick assessment shared by the tests below.
 func smallAssessment(t *testing.T, workers int) *results.Assessment {
 	t.Helper()
-	a, err := Assess(context.Background(), AssessOptions{
+	a, err := Run(context.Background(), Options{
 		Datasets:  []spec.Dataset{{Name: "iris"}, {Name: "cats"}},
 		Pipelines: []string{"std+l2", "std+lift"},
 		Subsets:   []int{2, 8, 16},
@@ -214,7 +214,7 @@ func TestAssessDeterministic(t *testing.T) {
 	}
 	dirs := []string{filepath.Join(t.TempDir(), "a"), filepath.Join(t.TempDir(), "b")}
 	for i, w := range []int{1, 2} {
-		if err := WriteAssessment(dirs[i], smallAssessment(t, w)); err != nil {
+		if err := Write(dirs[i], smallAssessment(t, w)); err != nil {
 			t.Fatal(err)
 		}
 	}
@@ -250,18 +250,18 @@ func TestAssessDeterministic(t *testing.T) {
 // warning.
 func TestAssessBadInput(t *testing.T) {
 	cases := []struct {
-		opt  AssessOptions
+		opt  Options
 		want string
 	}{
-		{AssessOptions{Datasets: []spec.Dataset{{Name: "irises"}}}, "irises"},
-		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Pipelines: []string{"std+whiten"}}, "whiten"},
-		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Folds: 1}, "folds"},
-		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Ratio: 0.5}, "ratio"},
-		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}, {Name: "iris"}}}, "twice"},
-		{AssessOptions{Datasets: []spec.Dataset{{Name: "iris"}}, Subsets: []int{0}}, "subset"},
+		{Options{Datasets: []spec.Dataset{{Name: "irises"}}}, "irises"},
+		{Options{Datasets: []spec.Dataset{{Name: "iris"}}, Pipelines: []string{"std+whiten"}}, "whiten"},
+		{Options{Datasets: []spec.Dataset{{Name: "iris"}}, Folds: 1}, "folds"},
+		{Options{Datasets: []spec.Dataset{{Name: "iris"}}, Ratio: 0.5}, "ratio"},
+		{Options{Datasets: []spec.Dataset{{Name: "iris"}, {Name: "iris"}}}, "twice"},
+		{Options{Datasets: []spec.Dataset{{Name: "iris"}}, Subsets: []int{0}}, "subset"},
 	}
 	for _, c := range cases {
-		_, err := Assess(context.Background(), c.opt)
+		_, err := Run(context.Background(), c.opt)
 		if !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%+v: error %v, want an input error naming %q", c.opt, err, c.want)
 		}
@@ -281,7 +281,7 @@ func TestAssessBadInput(t *testing.T) {
 	}
 	// The display name is fixed (As): splits are seeded by the dataset's
 	// name, and the temporary path changes from run to run.
-	a, err := Assess(context.Background(), AssessOptions{Datasets: []spec.Dataset{{Name: path, As: "small"}}, Pipelines: []string{"std+l2"}, Repeats: 1, Subsets: []int{}})
+	a, err := Run(context.Background(), Options{Datasets: []spec.Dataset{{Name: path, As: "small"}}, Pipelines: []string{"std+l2"}, Repeats: 1, Subsets: []int{}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -290,7 +290,7 @@ func TestAssessBadInput(t *testing.T) {
 	}
 	one := filepath.Join(dir, "one.csv")
 	os.WriteFile(one, []byte("x,label\n1,a\n2,a\n3,b\n"), 0o644)
-	if _, err := Assess(context.Background(), AssessOptions{Datasets: []spec.Dataset{{Name: one}}}); !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "single member") {
+	if _, err := Run(context.Background(), Options{Datasets: []spec.Dataset{{Name: one}}}); !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "single member") {
 		t.Errorf("class of one: %v", err)
 	}
 }

@@ -1,4 +1,4 @@
-package bench
+package assess
 
 import (
 	"bytes"
@@ -27,17 +27,17 @@ type assessManifest struct {
 	Warnings   []string                `json:"warnings"`
 }
 
-// WriteAssessment writes the assessment into dir: assess.csv,
+// Write writes the assessment into dir: assess.csv,
 // assess-resources.csv, assess.md, assess.tex, assess.json and the figures
 // (figures/assess-*.svg, .pdf, .png; see results.AssessFigures). The files
 // are written into a temporary directory beside dir, which is renamed into
 // place only when every file is complete; an existing dir is replaced only
 // then. On error nothing is left behind. a.Figures is set to the figures
 // written.
-func WriteAssessment(dir string, a *results.Assessment) error {
+func Write(dir string, a *results.Assessment) error {
 	figs, err := results.AssessFigures(a, outdir.SafeName)
 	if err != nil {
-		return fmt.Errorf("bench: assess figures: %w", err)
+		return fmt.Errorf("assess:  figures: %w", err)
 	}
 	a.Figures = a.Figures[:0]
 	for _, f := range figs {
