@@ -315,35 +315,9 @@ func (m *commandModel) readOutput(path string) ([]int, []qkernel.Detail, error) 
 	for k, c := range tc.Classes {
 		classIdx[c] = k
 	}
-	colRow, colPred := -1, -1
-	probCol := make([]int, len(tc.Classes)) // column of prob_<class k>, -1 if absent
-	for k := range probCol {
-		probCol[k] = -1
-	}
-	nProb := 0
-	for j, h := range head {
-		h = strings.TrimSpace(h)
-		switch {
-		case h == "row" && colRow < 0:
-			colRow = j
-		case h == "predicted" && colPred < 0:
-			colPred = j
-		case strings.HasPrefix(h, "prob_"):
-			k, ok := classIdx[strings.TrimPrefix(h, "prob_")]
-			if !ok {
-				return nil, nil, bad(1, "column %q names no class (classes: %s)", h, strings.Join(tc.Classes, ", "))
-			}
-			if probCol[k] >= 0 {
-				return nil, nil, bad(1, "column %q appears twice", h)
-			}
-			probCol[k] = j
-			nProb++
-		default:
-			return nil, nil, bad(1, "unexpected column %q (want row, predicted and optionally prob_<class> columns)", h)
-		}
-	}
-	if colRow < 0 || colPred < 0 {
-		return nil, nil, bad(1, "header %q lacks row or predicted (want row,predicted[,prob_<class>...])", strings.Join(head, ","))
+	colRow, colPred, probCol, nProb, err := outputColumns(head, tc.Classes, classIdx)
+	if err != nil {
+		return nil, nil, err
 	}
 	pos := make(map[int]int, len(tc.TestRows))
 	for i, r := range tc.TestRows {
@@ -426,6 +400,45 @@ func (m *commandModel) readOutput(path string) ([]int, []qkernel.Detail, error) 
 		det[i] = qkernel.Detail{PAcc: math.NaN(), Probs: probs[i*nc : (i+1)*nc : (i+1)*nc], Exact: pred[i]}
 	}
 	return pred, det, nil
+}
+
+// outputColumns reads the header of a command model's output: the columns
+// of row and predicted, and per class the column of prob_<class> (-1 if
+// absent) with the number of such columns.
+func outputColumns(head, classes []string, classIdx map[string]int) (colRow, colPred int, probCol []int, nProb int, err error) {
+	bad := func(format string, args ...any) error {
+		return fmt.Errorf("output out.csv:1: %s", fmt.Sprintf(format, args...))
+	}
+	colRow, colPred = -1, -1
+	probCol = make([]int, len(classes))
+	for k := range probCol {
+		probCol[k] = -1
+	}
+	for j, h := range head {
+		h = strings.TrimSpace(h)
+		switch {
+		case h == "row" && colRow < 0:
+			colRow = j
+		case h == "predicted" && colPred < 0:
+			colPred = j
+		case strings.HasPrefix(h, "prob_"):
+			k, ok := classIdx[strings.TrimPrefix(h, "prob_")]
+			if !ok {
+				return 0, 0, nil, 0, bad("column %q names no class (classes: %s)", h, strings.Join(classes, ", "))
+			}
+			if probCol[k] >= 0 {
+				return 0, 0, nil, 0, bad("column %q appears twice", h)
+			}
+			probCol[k] = j
+			nProb++
+		default:
+			return 0, 0, nil, 0, bad("unexpected column %q (want row, predicted and optionally prob_<class> columns)", h)
+		}
+	}
+	if colRow < 0 || colPred < 0 {
+		return 0, 0, nil, 0, bad("header %q lacks row or predicted (want row,predicted[,prob_<class>...])", strings.Join(head, ","))
+	}
+	return colRow, colPred, probCol, nProb, nil
 }
 
 // tailWriter keeps the last max bytes written to it.

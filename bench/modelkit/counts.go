@@ -214,6 +214,154 @@ func readCounts(p *Layout, file string) (*countsTable, error) {
 	if err != nil {
 		return nil, input.CSV(path, err)
 	}
+	col, err := countsHeader(head, bad)
+	if err != nil {
+		return nil, err
+	}
+	t := &countsTable{counts: map[countsKey][]int{}}
+	_, t.hasPipeline = col["pipeline"]
+	if !t.hasPipeline && len(p.Pipelines) > 1 {
+		return nil, bad(1, "the spec has %d pipelines (%s) and each has its own circuits: add a pipeline column", len(p.Pipelines), strings.Join(p.Pipelines, ", "))
+	}
+
+	cp := &countsParser{layout: p, col: col, hasPipeline: t.hasPipeline, pipes: map[string]bool{}, bad: bad}
+	cp.info, cp.names = countsIndex(p)
+	for _, ps := range p.Pipelines {
+		cp.pipes[ps] = true
+	}
+	type outcomeKey struct {
+		inst countsKey
+		a, k int
+	}
+	lineOf := map[outcomeKey]int{}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, input.CSV(path, err)
+		}
+		line, _ := cr.FieldPos(0)
+		if len(rec) == 1 && strings.TrimSpace(rec[0]) == "" {
+			continue
+		}
+		if len(rec) != len(head) {
+			return nil, bad(line, "%d fields, the header has %d", len(rec), len(head))
+		}
+		o, err := cp.outcome(rec, line)
+		if err != nil {
+			return nil, err
+		}
+		key, a, k, di := o.inst, o.a, o.k, o.ds
+		ok2 := outcomeKey{key, a, k}
+		if l, dup := lineOf[ok2]; dup {
+			return nil, bad(line, "outcome ancilla %d class %s of dataset %s, repeat %d, fold %d, row %d is also on line %d", a, o.bits, key.dataset, key.repeat, key.fold, key.row, l)
+		}
+		lineOf[ok2] = line
+		c := t.counts[key]
+		if c == nil {
+			c = make([]int, 2<<di.bits)
+			t.counts[key] = c
+		}
+		c[a<<di.bits|k] = o.n
+	}
+
+	if err := t.checkEveryInstance(p, bad); err != nil {
+		return nil, err
+	}
+	return t, nil
+}
+
+// countsParser decodes the lines of a counts file against a run.
+type countsParser struct {
+	layout      *Layout
+	col         map[string]int // column of each header name
+	hasPipeline bool
+	info        map[string]*countsDataset
+	names       []string // the run's datasets, in order
+	pipes       map[string]bool
+	bad         func(line int, format string, args ...any) error
+}
+
+// countsOutcome is one line of a counts file: a test instance, an outcome
+// (ancilla bit a, class register value k written as bits) and its count.
+type countsOutcome struct {
+	inst countsKey
+	a, k int
+	bits string
+	n    int
+	ds   *countsDataset
+}
+
+// outcome decodes and checks the record rec on line line.
+func (cp *countsParser) outcome(rec []string, line int) (countsOutcome, error) {
+	var err error
+	field := func(c string) string { return strings.TrimSpace(rec[cp.col[c]]) }
+	integer := func(c string) (int, error) {
+		v, err := strconv.Atoi(field(c))
+		if err != nil || v < 0 {
+			return 0, cp.bad(line, "column %s: %q is not a non-negative integer", c, field(c))
+		}
+		return v, nil
+	}
+	var key countsKey
+	key.dataset = field("dataset")
+	di, ok := cp.info[key.dataset]
+	if !ok {
+		return countsOutcome{}, cp.bad(line, "column dataset: %q is not a dataset of the spec (%s)", key.dataset, strings.Join(cp.names, ", "))
+	}
+	if cp.hasPipeline {
+		key.pipeline = field("pipeline")
+		if !cp.pipes[key.pipeline] {
+			return countsOutcome{}, cp.bad(line, "column pipeline: %q is not a pipeline of the spec (%s)", key.pipeline, strings.Join(cp.layout.Pipelines, ", "))
+		}
+	}
+	if key.repeat, err = integer("repeat"); err != nil {
+		return countsOutcome{}, err
+	}
+	if key.fold, err = integer("fold"); err != nil {
+		return countsOutcome{}, err
+	}
+	if key.row, err = integer("row"); err != nil {
+		return countsOutcome{}, err
+	}
+	if !di.folds[[2]int{key.repeat, key.fold}] {
+		return countsOutcome{}, cp.bad(line, "dataset %s has no repeat %d fold %d in the spec's protocol", key.dataset, key.repeat, key.fold)
+	}
+	if !di.rows[key.row] {
+		return countsOutcome{}, cp.bad(line, "dataset %s has no row %d (after its class selection)", key.dataset, key.row)
+	}
+	f, isTest := di.testIn[[2]int{key.repeat, key.row}]
+	if !isTest {
+		return countsOutcome{}, cp.bad(line, "row %d of dataset %s is no test instance in repeat %d", key.row, key.dataset, key.repeat)
+	}
+	if f != key.fold {
+		return countsOutcome{}, cp.bad(line, "row %d of dataset %s is a test instance of repeat %d fold %d, not fold %d", key.row, key.dataset, key.repeat, f, key.fold)
+	}
+	var a int
+	switch field("ancilla") {
+	case "0":
+	case "1":
+		a = 1
+	default:
+		return countsOutcome{}, cp.bad(line, "column ancilla: %q is not a measured bit (0 or 1)", field("ancilla"))
+	}
+	bitsS := field("class")
+	k, ok := ParseBits(bitsS, di.bits)
+	if !ok {
+		return countsOutcome{}, cp.bad(line, "column class: %q is not a %d-bit string: dataset %s has %d classes, so its class register has %s; %s", bitsS, di.bits, key.dataset, len(cp.layout.dataset(key.dataset).Data.Classes), plural(di.bits, "qubit"), bitOrder(di.bits))
+	}
+	n, err := integer("count")
+	if err != nil {
+		return countsOutcome{}, err
+	}
+	return countsOutcome{inst: key, a: a, k: k, bits: bitsS, n: n, ds: di}, nil
+}
+
+// countsHeader reads the header of a counts file: the column of each of
+// CountsColumns and of the optional pipeline column.
+func countsHeader(head []string, bad func(line int, format string, args ...any) error) (map[string]int, error) {
 	want := strings.Join(CountsColumns, ",") + " (optionally pipeline)"
 	col := map[string]int{}
 	for j, h := range head {
@@ -239,25 +387,26 @@ func readCounts(p *Layout, file string) (*countsTable, error) {
 	if len(missing) > 0 {
 		return nil, bad(1, "header lacks column(s) %s (want %s)", strings.Join(missing, ", "), want)
 	}
-	t := &countsTable{counts: map[countsKey][]int{}}
-	_, t.hasPipeline = col["pipeline"]
-	if !t.hasPipeline && len(p.Pipelines) > 1 {
-		return nil, bad(1, "the spec has %d pipelines (%s) and each has its own circuits: add a pipeline column", len(p.Pipelines), strings.Join(p.Pipelines, ", "))
-	}
+	return col, nil
+}
 
-	// What the plan allows: per dataset, its class bits and, per repeat,
-	// the fold of each test row.
-	type dsInfo struct {
-		bits   int
-		folds  map[[2]int]bool // (repeat, fold) of the splits
-		testIn map[[2]int]int  // (repeat, row) -> fold
-		rows   map[int]bool    // dataset rows after selection
-	}
-	info := map[string]*dsInfo{}
+// countsDataset is what a run allows for one dataset in a counts file:
+// its class bits and, per repeat, the fold of each test row.
+type countsDataset struct {
+	bits   int
+	folds  map[[2]int]bool // (repeat, fold) of the splits
+	testIn map[[2]int]int  // (repeat, row) -> fold
+	rows   map[int]bool    // dataset rows after selection
+}
+
+// countsIndex describes every dataset of the run by display name, with
+// the names in run order.
+func countsIndex(p *Layout) (map[string]*countsDataset, []string) {
+	info := map[string]*countsDataset{}
 	var names []string
 	for _, d := range p.Datasets {
 		_, _, nc := circuit.RegisterSizes(1, 1, len(d.Data.Classes))
-		di := &dsInfo{bits: nc, folds: map[[2]int]bool{}, testIn: map[[2]int]int{}, rows: map[int]bool{}}
+		di := &countsDataset{bits: nc, folds: map[[2]int]bool{}, testIn: map[[2]int]int{}, rows: map[int]bool{}}
 		for _, r := range d.Data.Rows {
 			di.rows[r] = true
 		}
@@ -270,104 +419,13 @@ func readCounts(p *Layout, file string) (*countsTable, error) {
 		info[d.Name] = di
 		names = append(names, d.Name)
 	}
-	pipes := map[string]bool{}
-	for _, ps := range p.Pipelines {
-		pipes[ps] = true
-	}
-	type outcomeKey struct {
-		inst countsKey
-		a, k int
-	}
-	lineOf := map[outcomeKey]int{}
-	for {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, input.CSV(path, err)
-		}
-		line, _ := cr.FieldPos(0)
-		if len(rec) == 1 && strings.TrimSpace(rec[0]) == "" {
-			continue
-		}
-		if len(rec) != len(head) {
-			return nil, bad(line, "%d fields, the header has %d", len(rec), len(head))
-		}
-		field := func(c string) string { return strings.TrimSpace(rec[col[c]]) }
-		integer := func(c string) (int, error) {
-			v, err := strconv.Atoi(field(c))
-			if err != nil || v < 0 {
-				return 0, bad(line, "column %s: %q is not a non-negative integer", c, field(c))
-			}
-			return v, nil
-		}
-		var key countsKey
-		key.dataset = field("dataset")
-		di, ok := info[key.dataset]
-		if !ok {
-			return nil, bad(line, "column dataset: %q is not a dataset of the spec (%s)", key.dataset, strings.Join(names, ", "))
-		}
-		if t.hasPipeline {
-			key.pipeline = field("pipeline")
-			if !pipes[key.pipeline] {
-				return nil, bad(line, "column pipeline: %q is not a pipeline of the spec (%s)", key.pipeline, strings.Join(p.Pipelines, ", "))
-			}
-		}
-		if key.repeat, err = integer("repeat"); err != nil {
-			return nil, err
-		}
-		if key.fold, err = integer("fold"); err != nil {
-			return nil, err
-		}
-		if key.row, err = integer("row"); err != nil {
-			return nil, err
-		}
-		if !di.folds[[2]int{key.repeat, key.fold}] {
-			return nil, bad(line, "dataset %s has no repeat %d fold %d in the spec's protocol", key.dataset, key.repeat, key.fold)
-		}
-		if !di.rows[key.row] {
-			return nil, bad(line, "dataset %s has no row %d (after its class selection)", key.dataset, key.row)
-		}
-		f, isTest := di.testIn[[2]int{key.repeat, key.row}]
-		if !isTest {
-			return nil, bad(line, "row %d of dataset %s is no test instance in repeat %d", key.row, key.dataset, key.repeat)
-		}
-		if f != key.fold {
-			return nil, bad(line, "row %d of dataset %s is a test instance of repeat %d fold %d, not fold %d", key.row, key.dataset, key.repeat, f, key.fold)
-		}
-		var a int
-		switch field("ancilla") {
-		case "0":
-		case "1":
-			a = 1
-		default:
-			return nil, bad(line, "column ancilla: %q is not a measured bit (0 or 1)", field("ancilla"))
-		}
-		bitsS := field("class")
-		k, ok := ParseBits(bitsS, di.bits)
-		if !ok {
-			return nil, bad(line, "column class: %q is not a %d-bit string: dataset %s has %d classes, so its class register has %s; %s", bitsS, di.bits, key.dataset, len(p.dataset(key.dataset).Data.Classes), plural(di.bits, "qubit"), bitOrder(di.bits))
-		}
-		n, err := integer("count")
-		if err != nil {
-			return nil, err
-		}
-		ok2 := outcomeKey{key, a, k}
-		if l, dup := lineOf[ok2]; dup {
-			return nil, bad(line, "outcome ancilla %d class %s of dataset %s, repeat %d, fold %d, row %d is also on line %d", a, bitsS, key.dataset, key.repeat, key.fold, key.row, l)
-		}
-		lineOf[ok2] = line
-		c := t.counts[key]
-		if c == nil {
-			c = make([]int, 2<<di.bits)
-			t.counts[key] = c
-		}
-		c[a<<di.bits|k] = n
-	}
+	return info, names
+}
 
-	// Every test instance needs counts; an instance with only zero counts
-	// has no shot to decide by.
+// checkEveryInstance checks that every test instance of the run has
+// counts, and at least one shot: an instance with only zero counts has
+// nothing to decide by.
+func (t *countsTable) checkEveryInstance(p *Layout, bad func(line int, format string, args ...any) error) error {
 	var lacking []string
 	pipelines := []string{""}
 	if t.hasPipeline {
@@ -393,7 +451,7 @@ func readCounts(p *Layout, file string) (*countsTable, error) {
 						total += n
 					}
 					if total == 0 {
-						return nil, bad(0, "%s: every count is zero; an instance needs at least one shot", where)
+						return bad(0, "%s: every count is zero; an instance needs at least one shot", where)
 					}
 				}
 			}
@@ -404,9 +462,9 @@ func readCounts(p *Layout, file string) (*countsTable, error) {
 		if len(lacking) > 1 {
 			more = fmt.Sprintf(" and %d more test instance(s)", len(lacking)-1)
 		}
-		return nil, bad(0, "no counts for %s%s: every test instance of the spec needs its counts (see fringe circuit -export)", lacking[0], more)
+		return bad(0, "no counts for %s%s: every test instance of the spec needs its counts (see fringe circuit -export)", lacking[0], more)
 	}
-	return t, nil
+	return nil
 }
 
 // ParseBits reads a bit string of exactly n characters, most significant

@@ -58,63 +58,9 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 		p.fail("trajectories", "trajectories must be positive, got %d", q.Trajectories)
 		return q, "", noise
 	}
-	var noiseLabel []string
-	if noise != nil {
-		np := newParams(noise)
-		np.used = map[string]bool{}
-		pair := func(key, short string) [2]float64 {
-			np.used[key] = true
-			v, ok := noise[key]
-			if !ok {
-				return [2]float64{}
-			}
-			arr, ok := v.([]any)
-			if !ok || len(arr) != 2 {
-				np.fail(key, "want a pair [a, b] of probabilities, got %v", v)
-				return [2]float64{}
-			}
-			var out [2]float64
-			for i, x := range arr {
-				switch f := x.(type) {
-				case float64:
-					out[i] = f
-				case int64:
-					out[i] = float64(f)
-				default:
-					np.fail(key, "want numbers, got %v", x)
-				}
-			}
-			noiseLabel = append(noiseLabel, short+fmtNum(out[0])+"_"+fmtNum(out[1]))
-			return out
-		}
-		one := func(key, short string) float64 {
-			if !np.has(key) {
-				np.used[key] = true
-				return 0
-			}
-			v := np.number(key, 0)
-			noiseLabel = append(noiseLabel, short+fmtNum(v))
-			return v
-		}
-		q.Noise.Depolarizing = pair("depolarizing", "dep")
-		q.Noise.AmplitudeDamping = one("amplitude_damping", "ad")
-		q.Noise.PhaseDamping = one("phase_damping", "pd")
-		q.Channels.Readout = pair("readout", "ro")
-		q.Channels.GlobalDepolarizing = one("global_depolarizing", "gdep")
-		q.Channels.AncillaDephasing = one("ancilla_dephasing", "adeph")
-		if err := np.finish("noise"); err != nil {
-			var ke *KeyError
-			if errors.As(err, &ke) {
-				p.fail("noise."+ke.Key, "%v", ke.Err)
-			} else {
-				p.fail("noise", "%v", err)
-			}
-			return q, "", noise
-		}
-		if mode != qkernel.ModeNoisy {
-			p.fail("noise", "noise applies to mode = \"noisy\" only (mode is %q)", modeS)
-			return q, "", noise
-		}
+	noiseLabel, ok := parseNoise(p, &q, noise, modeS)
+	if !ok {
+		return q, "", noise
 	}
 	if err := q.Validate(); err != nil {
 		key := "mode"
@@ -147,4 +93,71 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 		label += "-balanced"
 	}
 	return q, label, noise
+}
+
+// parseNoise reads an interference model's noise table (nil: no noise)
+// into q and returns the label parts of its channels in a fixed order
+// (depolarizing, amplitude and phase damping, readout, then the closed-form
+// channels). Problems are recorded in p (ok false); modeS
+// is the mode as written, for the message that noise needs mode "noisy".
+func parseNoise(p *params, q *qkernel.Classifier, noise map[string]any, modeS string) (noiseLabel []string, ok bool) {
+	if noise == nil {
+		return nil, true
+	}
+	np := newParams(noise)
+	np.used = map[string]bool{}
+	pair := func(key, short string) [2]float64 {
+		np.used[key] = true
+		v, ok := noise[key]
+		if !ok {
+			return [2]float64{}
+		}
+		arr, ok := v.([]any)
+		if !ok || len(arr) != 2 {
+			np.fail(key, "want a pair [a, b] of probabilities, got %v", v)
+			return [2]float64{}
+		}
+		var out [2]float64
+		for i, x := range arr {
+			switch f := x.(type) {
+			case float64:
+				out[i] = f
+			case int64:
+				out[i] = float64(f)
+			default:
+				np.fail(key, "want numbers, got %v", x)
+			}
+		}
+		noiseLabel = append(noiseLabel, short+fmtNum(out[0])+"_"+fmtNum(out[1]))
+		return out
+	}
+	one := func(key, short string) float64 {
+		if !np.has(key) {
+			np.used[key] = true
+			return 0
+		}
+		v := np.number(key, 0)
+		noiseLabel = append(noiseLabel, short+fmtNum(v))
+		return v
+	}
+	q.Noise.Depolarizing = pair("depolarizing", "dep")
+	q.Noise.AmplitudeDamping = one("amplitude_damping", "ad")
+	q.Noise.PhaseDamping = one("phase_damping", "pd")
+	q.Channels.Readout = pair("readout", "ro")
+	q.Channels.GlobalDepolarizing = one("global_depolarizing", "gdep")
+	q.Channels.AncillaDephasing = one("ancilla_dephasing", "adeph")
+	if err := np.finish("noise"); err != nil {
+		var ke *KeyError
+		if errors.As(err, &ke) {
+			p.fail("noise."+ke.Key, "%v", ke.Err)
+		} else {
+			p.fail("noise", "%v", err)
+		}
+		return nil, false
+	}
+	if q.Mode != qkernel.ModeNoisy {
+		p.fail("noise", "noise applies to mode = \"noisy\" only (mode is %q)", modeS)
+		return nil, false
+	}
+	return noiseLabel, true
 }

@@ -101,109 +101,13 @@ func Parse(m map[string]any) (Spec, error) {
 	case "":
 		return ms, keyErr("kind", "missing model kind (one of %s)", kindList())
 	case "interference":
-		q, lab, noise := parseInterference(p)
-		label = lab
-		ms.Params["mode"], ms.Params["balance"] = q.Mode.String(), q.Balance
-		ms.Params["shots"], ms.Params["train_subset"] = q.Shots, q.TrainSubset
-		if noise != nil {
-			ms.Params["noise"] = noise
-		}
-		ms.build = func(seed uint64) baselines.Model {
-			c := q
-			c.Seed = seed
-			return &c
-		}
-		ms.Interference = &q
+		label = parseInterferenceModel(p, &ms)
 	case "knn":
-		k := p.integer("k", 5)
-		metricS := p.str("metric", "euclidean")
-		weightsS := p.str("weights", "uniform")
-		if p.err == nil && k < 1 {
-			p.fail("k", "k must be at least 1, got %d", k)
-		}
-		metric, err := baselines.ParseMetric(metricS)
-		if err != nil {
-			p.fail("metric", "%v", err)
-		}
-		weights, err := baselines.ParseWeighting(weightsS)
-		if err != nil {
-			p.fail("weights", "%v", err)
-		}
-		label = fmt.Sprintf("knn-k%d", k)
-		if metricS != "euclidean" {
-			label += "-" + metricS
-		}
-		if weightsS != "uniform" {
-			label += "-" + weightsS
-		}
-		ms.Params["k"], ms.Params["metric"], ms.Params["weights"] = k, metricS, weightsS
-		ms.build = func(uint64) baselines.Model {
-			return &baselines.KNN{K: k, Metric: metric, Weights: weights}
-		}
+		label = parseKNN(p, &ms)
 	case "svm":
-		kernelS := p.str("kernel", "rbf")
-		c := p.number("C", 1)
-		gamma := 0.0
-		gammaS := "scale"
-		if p.has("gamma") {
-			switch v := m["gamma"].(type) {
-			case string:
-				p.used["gamma"] = true
-				if v != "scale" {
-					p.fail("gamma", "gamma is a positive number or \"scale\", got %q", v)
-				}
-			default:
-				gamma = p.number("gamma", 0)
-				if p.err == nil && !(gamma > 0) {
-					p.fail("gamma", "gamma must be positive, got %v", gamma)
-				}
-				gammaS = fmtNum(gamma)
-			}
-		}
-		degree := p.integer("degree", 3)
-		coef0 := p.number("coef0", 0)
-		tol := p.number("tol", 1e-3)
-		kernel, err := baselines.ParseKernel(kernelS)
-		if err != nil {
-			p.fail("kernel", "%v", err)
-		}
-		if p.err == nil && !(c > 0) {
-			p.fail("C", "C must be positive, got %v", c)
-		}
-		if p.err == nil && degree < 1 {
-			p.fail("degree", "degree must be at least 1, got %d", degree)
-		}
-		if p.err == nil && !(tol > 0) {
-			p.fail("tol", "tol must be positive, got %v", tol)
-		}
-		label = fmt.Sprintf("svm-%s-C%s", kernelS, fmtNum(c))
-		if kernelS == "rbf" || kernelS == "poly" {
-			if gammaS != "scale" {
-				label += "-g" + gammaS
-			}
-		}
-		if kernelS == "poly" {
-			label += fmt.Sprintf("-d%d", degree)
-		}
-		ms.Params["kernel"], ms.Params["C"], ms.Params["gamma"] = kernelS, c, gammaS
-		ms.Params["degree"], ms.Params["coef0"], ms.Params["tol"] = degree, coef0, tol
-		ms.build = func(uint64) baselines.Model {
-			return &baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: coef0, Tol: tol}
-		}
+		label = parseSVM(p, &ms)
 	case "logreg":
-		c := p.number("C", 1)
-		maxIter := p.integer("max_iter", 0)
-		if p.err == nil && !(c > 0) {
-			p.fail("C", "C must be positive, got %v", c)
-		}
-		if p.err == nil && maxIter < 0 {
-			p.fail("max_iter", "max_iter must be non-negative, got %d", maxIter)
-		}
-		label = "logreg-C" + fmtNum(c)
-		ms.Params["C"], ms.Params["max_iter"] = c, maxIter
-		ms.build = func(uint64) baselines.Model {
-			return &baselines.LogReg{C: c, MaxIter: maxIter}
-		}
+		label = parseLogReg(p, &ms)
 	case "command":
 		label = parseCommand(p, &ms)
 	case "counts":
@@ -225,6 +129,131 @@ func Parse(m map[string]any) (Spec, error) {
 	}
 	ms.Name = label
 	return ms, nil
+}
+
+// parseInterferenceModel reads the keys of an interference model (see
+// parseInterference), sets the model's params and builder and returns its
+// default label.
+func parseInterferenceModel(p *params, ms *Spec) string {
+	q, label, noise := parseInterference(p)
+	ms.Params["mode"], ms.Params["balance"] = q.Mode.String(), q.Balance
+	ms.Params["shots"], ms.Params["train_subset"] = q.Shots, q.TrainSubset
+	if noise != nil {
+		ms.Params["noise"] = noise
+	}
+	ms.build = func(seed uint64) baselines.Model {
+		c := q
+		c.Seed = seed
+		return &c
+	}
+	ms.Interference = &q
+	return label
+}
+
+// parseKNN reads the keys of a k-NN model: k, metric and weights.
+func parseKNN(p *params, ms *Spec) string {
+	var label string
+	k := p.integer("k", 5)
+	metricS := p.str("metric", "euclidean")
+	weightsS := p.str("weights", "uniform")
+	if p.err == nil && k < 1 {
+		p.fail("k", "k must be at least 1, got %d", k)
+	}
+	metric, err := baselines.ParseMetric(metricS)
+	if err != nil {
+		p.fail("metric", "%v", err)
+	}
+	weights, err := baselines.ParseWeighting(weightsS)
+	if err != nil {
+		p.fail("weights", "%v", err)
+	}
+	label = fmt.Sprintf("knn-k%d", k)
+	if metricS != "euclidean" {
+		label += "-" + metricS
+	}
+	if weightsS != "uniform" {
+		label += "-" + weightsS
+	}
+	ms.Params["k"], ms.Params["metric"], ms.Params["weights"] = k, metricS, weightsS
+	ms.build = func(uint64) baselines.Model {
+		return &baselines.KNN{K: k, Metric: metric, Weights: weights}
+	}
+	return label
+}
+
+// parseSVM reads the keys of an SVM: kernel, C, gamma (a positive number
+// or "scale"), degree, coef0 and tol.
+func parseSVM(p *params, ms *Spec) string {
+	var label string
+	kernelS := p.str("kernel", "rbf")
+	c := p.number("C", 1)
+	gamma := 0.0
+	gammaS := "scale"
+	if p.has("gamma") {
+		switch v := p.m["gamma"].(type) {
+		case string:
+			p.used["gamma"] = true
+			if v != "scale" {
+				p.fail("gamma", "gamma is a positive number or \"scale\", got %q", v)
+			}
+		default:
+			gamma = p.number("gamma", 0)
+			if p.err == nil && !(gamma > 0) {
+				p.fail("gamma", "gamma must be positive, got %v", gamma)
+			}
+			gammaS = fmtNum(gamma)
+		}
+	}
+	degree := p.integer("degree", 3)
+	coef0 := p.number("coef0", 0)
+	tol := p.number("tol", 1e-3)
+	kernel, err := baselines.ParseKernel(kernelS)
+	if err != nil {
+		p.fail("kernel", "%v", err)
+	}
+	if p.err == nil && !(c > 0) {
+		p.fail("C", "C must be positive, got %v", c)
+	}
+	if p.err == nil && degree < 1 {
+		p.fail("degree", "degree must be at least 1, got %d", degree)
+	}
+	if p.err == nil && !(tol > 0) {
+		p.fail("tol", "tol must be positive, got %v", tol)
+	}
+	label = fmt.Sprintf("svm-%s-C%s", kernelS, fmtNum(c))
+	if kernelS == "rbf" || kernelS == "poly" {
+		if gammaS != "scale" {
+			label += "-g" + gammaS
+		}
+	}
+	if kernelS == "poly" {
+		label += fmt.Sprintf("-d%d", degree)
+	}
+	ms.Params["kernel"], ms.Params["C"], ms.Params["gamma"] = kernelS, c, gammaS
+	ms.Params["degree"], ms.Params["coef0"], ms.Params["tol"] = degree, coef0, tol
+	ms.build = func(uint64) baselines.Model {
+		return &baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: coef0, Tol: tol}
+	}
+	return label
+}
+
+// parseLogReg reads the keys of a logistic regression: C and max_iter.
+func parseLogReg(p *params, ms *Spec) string {
+	var label string
+	c := p.number("C", 1)
+	maxIter := p.integer("max_iter", 0)
+	if p.err == nil && !(c > 0) {
+		p.fail("C", "C must be positive, got %v", c)
+	}
+	if p.err == nil && maxIter < 0 {
+		p.fail("max_iter", "max_iter must be non-negative, got %d", maxIter)
+	}
+	label = "logreg-C" + fmtNum(c)
+	ms.Params["C"], ms.Params["max_iter"] = c, maxIter
+	ms.build = func(uint64) baselines.Model {
+		return &baselines.LogReg{C: c, MaxIter: maxIter}
+	}
+	return label
 }
 
 func kindList() string {

@@ -165,11 +165,30 @@ func Parse(file string, data []byte) (*Spec, error) {
 	}
 	s.Seed = uint64(*raw.Seed)
 
+	if s.Datasets, err = parseDatasets(&raw, lines, bad); err != nil {
+		return nil, err
+	}
+	if s.Pipelines, err = parsePipelines(raw.Pipelines, bad); err != nil {
+		return nil, err
+	}
+	if s.CV, err = parseCV(raw.CV, bad); err != nil {
+		return nil, err
+	}
+	if s.Models, err = parseModels(raw.Model, s.CV.Reference, file, lines, bad); err != nil {
+		return nil, err
+	}
+	return s, nil
+}
+
+// parseDatasets reads the datasets list and the [[dataset]] tables, in
+// that order, and refuses empty and repeated display names.
+func parseDatasets(raw *rawSpec, lines keyLines, bad func(key, format string, args ...any) error) ([]Dataset, error) {
+	var out []Dataset
 	for _, n := range raw.Datasets {
 		if n == "" {
 			return nil, bad("datasets", "empty dataset name")
 		}
-		s.Datasets = append(s.Datasets, Dataset{Name: n, Line: lines.find("datasets")})
+		out = append(out, Dataset{Name: n, Line: lines.find("datasets")})
 	}
 	for i, d := range raw.Dataset {
 		key := fmt.Sprintf("dataset[%d]", i+1)
@@ -190,25 +209,29 @@ func Parse(file string, data []byte) (*Spec, error) {
 				return nil, bad(key+".features", "features are names or 0-based indices, got %v", f)
 			}
 		}
-		s.Datasets = append(s.Datasets, ds)
+		out = append(out, ds)
 	}
-	if len(s.Datasets) == 0 {
+	if len(out) == 0 {
 		return nil, bad("datasets", "no datasets (give `datasets = [...]` or [[dataset]] tables)")
 	}
 	seen := map[string]bool{}
-	for _, d := range s.Datasets {
+	for _, d := range out {
 		if seen[d.Display()] {
 			return nil, bad("datasets", "dataset %q appears twice (use `as` to tell two selections apart)", d.Display())
 		}
 		seen[d.Display()] = true
 	}
+	return out, nil
+}
 
-	s.Pipelines = raw.Pipelines
-	if len(s.Pipelines) == 0 {
-		s.Pipelines = []string{"raw"}
+// parsePipelines validates the pipelines list ("raw" when absent).
+func parsePipelines(pipes []string, bad func(key, format string, args ...any) error) ([]string, error) {
+	out := pipes
+	if len(out) == 0 {
+		out = []string{"raw"}
 	}
 	seenP := map[string]bool{}
-	for _, p := range s.Pipelines {
+	for _, p := range out {
 		if seenP[p] {
 			return nil, bad("pipelines", "pipeline %q appears twice", p)
 		}
@@ -217,10 +240,14 @@ func Parse(file string, data []byte) (*Spec, error) {
 			return nil, bad("pipelines", "%v", err)
 		}
 	}
+	return out, nil
+}
 
+// parseCV reads the [cv] table (nil: the defaults).
+func parseCV(raw *rawCV, bad func(key, format string, args ...any) error) (CV, error) {
 	cv := CV{Method: CVStratified, Folds: 10, Repeats: 1, TestFraction: 0.3}
-	if raw.CV != nil {
-		switch raw.CV.Method {
+	if raw != nil {
+		switch raw.Method {
 		case "", "stratified":
 			cv.Method = CVStratified
 		case "loo":
@@ -228,48 +255,54 @@ func Parse(file string, data []byte) (*Spec, error) {
 		case "holdout":
 			cv.Method = CVHoldout
 		default:
-			return nil, bad("cv.method", "unknown method %q (want stratified, loo or holdout)", raw.CV.Method)
+			return CV{}, bad("cv.method", "unknown method %q (want stratified, loo or holdout)", raw.Method)
 		}
-		if raw.CV.Folds != nil {
+		if raw.Folds != nil {
 			if cv.Method != CVStratified {
-				return nil, bad("cv.folds", "folds applies to method = \"stratified\" only")
+				return CV{}, bad("cv.folds", "folds applies to method = \"stratified\" only")
 			}
-			cv.Folds = *raw.CV.Folds
+			cv.Folds = *raw.Folds
 			if cv.Folds < 2 {
-				return nil, bad("cv.folds", "folds must be at least 2, got %d", cv.Folds)
+				return CV{}, bad("cv.folds", "folds must be at least 2, got %d", cv.Folds)
 			}
 		}
-		if raw.CV.Repeats != nil {
-			if cv.Method == CVLeaveOneOut && *raw.CV.Repeats != 1 {
-				return nil, bad("cv.repeats", "leave-one-out is deterministic: repeats must be 1")
+		if raw.Repeats != nil {
+			if cv.Method == CVLeaveOneOut && *raw.Repeats != 1 {
+				return CV{}, bad("cv.repeats", "leave-one-out is deterministic: repeats must be 1")
 			}
-			cv.Repeats = *raw.CV.Repeats
+			cv.Repeats = *raw.Repeats
 			if cv.Repeats < 1 {
-				return nil, bad("cv.repeats", "repeats must be at least 1, got %d", cv.Repeats)
+				return CV{}, bad("cv.repeats", "repeats must be at least 1, got %d", cv.Repeats)
 			}
 		}
-		if raw.CV.TestFraction != nil {
+		if raw.TestFraction != nil {
 			if cv.Method != CVHoldout {
-				return nil, bad("cv.test_fraction", "test_fraction applies to method = \"holdout\" only")
+				return CV{}, bad("cv.test_fraction", "test_fraction applies to method = \"holdout\" only")
 			}
-			cv.TestFraction = *raw.CV.TestFraction
+			cv.TestFraction = *raw.TestFraction
 			if !(cv.TestFraction > 0 && cv.TestFraction < 1) {
-				return nil, bad("cv.test_fraction", "test_fraction must lie in (0, 1), got %v", cv.TestFraction)
+				return CV{}, bad("cv.test_fraction", "test_fraction must lie in (0, 1), got %v", cv.TestFraction)
 			}
 		}
 	}
-	if raw.CV != nil {
-		if err := parseCVTests(&cv, raw.CV, bad); err != nil {
-			return nil, err
+	if raw != nil {
+		if err := parseCVTests(&cv, raw, bad); err != nil {
+			return CV{}, err
 		}
 	}
-	s.CV = cv
+	return cv, nil
+}
 
-	if len(raw.Model) == 0 {
+// parseModels validates every [[model]] table through modelkit.Parse,
+// locating its errors, refuses repeated model names and checks the
+// reference model of the tests (ref, "" for none) against the names.
+func parseModels(tables []map[string]any, ref, file string, lines keyLines, bad func(key, format string, args ...any) error) ([]modelkit.Spec, error) {
+	var out []modelkit.Spec
+	if len(tables) == 0 {
 		return nil, bad("model", "no models (add [[model]] tables)")
 	}
 	names := map[string]int{}
-	for i, m := range raw.Model {
+	for i, m := range tables {
 		key := fmt.Sprintf("model[%d]", i+1)
 		ms, err := modelkit.Parse(m)
 		if err != nil {
@@ -285,14 +318,14 @@ func Parse(file string, data []byte) (*Spec, error) {
 			return nil, bad(key, "model name %q is also used by model[%d]; give one of them a distinct `name`", ms.Name, j)
 		}
 		names[ms.Name] = i + 1
-		s.Models = append(s.Models, ms)
+		out = append(out, ms)
 	}
-	if s.CV.Reference != "" {
-		if _, ok := names[s.CV.Reference]; !ok {
-			return nil, bad("cv.reference", "reference %q is not the name of a model of the spec", s.CV.Reference)
+	if ref != "" {
+		if _, ok := names[ref]; !ok {
+			return nil, bad("cv.reference", "reference %q is not the name of a model of the spec", ref)
 		}
 	}
-	return s, nil
+	return out, nil
 }
 
 // LineOf returns the 1-based line of a key path such as "model[2].gamma",
