@@ -362,7 +362,6 @@ func foldAcc(p *plan.Plan, res []runner.TaskResult, pipe, model string) map[fold
 // assessRow computes the row of one (dataset, pipeline) and its resource
 // rows.
 func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]int]circuit.Resources) (results.AssessRow, []results.AssessResource, []string, error) {
-	nan := math.NaN()
 	data := ad.data
 	row := results.AssessRow{
 		Dataset: ad.spec.Display(), Pipeline: pipe, Instances: data.Len(), Classes: len(data.Classes),
@@ -372,7 +371,6 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 	if o.Uniform {
 		assessed, row.Weights = assessUniform, "uniform"
 	}
-	var warns []string
 	qsum := runner.Summarise(ad.quantum, ad.qres)
 	if s, ok := cellOf(qsum, pipe, assessUniform); ok {
 		row.Uniform = s.Metrics[0]
@@ -385,7 +383,27 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 		row.Exact = row.Uniform
 	}
 
-	// Post-selection and shots of the assessed form.
+	postSelection(&row, ad, pi, assessed)
+	warns, err := baselineGap(&row, ad, pipe, assessed)
+	if err != nil {
+		return row, nil, nil, err
+	}
+	if err := normShare(&row, ad, pipe); err != nil {
+		return row, nil, nil, err
+	}
+	out, err := circuitResources(&row, o, ad, pi, pipe, cache)
+	if err != nil {
+		return row, nil, nil, err
+	}
+	row.Verdict = verdict(row, pipe)
+	return row, out, warns, nil
+}
+
+// postSelection fills the post-selection probability and the shots a
+// confident decision needs, over the test predictions of the assessed form
+// of the classifier on pipeline pi.
+func postSelection(row *results.AssessRow, ad *assessDataset, pi int, assessed string) {
+	nan := math.NaN()
 	var pacc, margin, shots []float64
 	for _, r := range ad.qres {
 		if r.Task.Pipeline != pi || ad.quantum.Spec.Models[r.Task.Model].Name != assessed {
@@ -410,7 +428,14 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 	row.ShotsMedian = percentile(shots, 0.5)
 	row.Shots90 = percentile(shots, 0.9)
 
-	// Best baseline and the paired difference.
+}
+
+// baselineGap fills the best classical baseline and the paired corrected
+// interval and test of the assessed form's accuracy against it; it returns
+// the statistics' warnings.
+func baselineGap(row *results.AssessRow, ad *assessDataset, pipe, assessed string) ([]string, error) {
+	nan := math.NaN()
+	var warns []string
 	csum := runner.Summarise(ad.class, ad.cres)
 	best := -1
 	for i, s := range csum {
@@ -446,22 +471,30 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 		if len(keys) > 0 {
 			iv, err := stats.CorrectedInterval(d, ntr, nte, report.Alpha)
 			if err != nil {
-				return row, nil, nil, fmt.Errorf("assess:  %s/%s: %w", row.Dataset, pipe, err)
+				return nil, fmt.Errorf("assess: %s/%s: %w", row.Dataset, pipe, err)
 			}
 			row.Gap, row.GapLo, row.GapHi = iv.Mean, iv.Lo, iv.Hi
 			warns = append(warns, iv.Warnings...)
 			t, err := stats.CorrectedPairedT(xs, rs, ntr, nte, report.Alpha)
 			if err != nil {
-				return row, nil, nil, fmt.Errorf("assess:  %s/%s: %w", row.Dataset, pipe, err)
+				return nil, fmt.Errorf("assess: %s/%s: %w", row.Dataset, pipe, err)
 			}
 			row.GapP = t.P
 		}
 	}
 
-	// What unit-norm scaling throws away.
+	return warns, nil
+}
+
+// normShare fills what unit-norm scaling throws away: k-NN before and
+// after it, after lift and on the norm alone, and the share of what k-NN
+// reaches that the norm alone carries.
+func normShare(row *results.AssessRow, ad *assessDataset, pipe string) error {
+	nan := math.NaN()
+	data := ad.data
 	before, lift, err := beforeNorm(pipe)
 	if err != nil {
-		return row, nil, nil, &input.Error{Key: "pipelines", Err: err}
+		return &input.Error{Key: "pipelines", Err: err}
 	}
 	row.Before, row.Lift = before, lift
 	nsum := runner.Summarise(ad.norm, ad.nres)
@@ -482,17 +515,26 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 		row.NormShare = (row.NormOnly - row.Chance) / den
 	}
 
-	// The first split: alignment and circuits.
+	return nil
+}
+
+// circuitResources fills the kernel-target alignments on the first split
+// and the registers, gates, depth and noise budget of the compiled circuit
+// for each train_subset size and the full training part, returning one
+// resource row per size. Gate counts depend only on the register sizes, so
+// cache keeps one compiled circuit per (M, d, C).
+func circuitResources(row *results.AssessRow, o Options, ad *assessDataset, pi int, pipe string, cache map[[3]int]circuit.Resources) ([]results.AssessResource, error) {
+	data := ad.data
 	sp := ad.quantum.Datasets[0].Splits[0]
 	prep, err := ad.quantum.Prepare(0, pi, 0)
 	if err != nil {
-		return row, nil, nil, err
+		return nil, err
 	}
 	where, Ztr, ytr, Zte := prep.Where, prep.Ztr, prep.Ytr, prep.Zte
 	T := TargetKernel(ytr)
 	K, err := InterferenceGram(Ztr)
 	if err != nil {
-		return row, nil, nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
+		return nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
 	}
 	row.KTAInterference = CenteredAlignment(K, T)
 	row.RBFGamma = report.ScaleGamma(Ztr)
@@ -530,12 +572,12 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 			var w []float64
 			if !o.Uniform {
 				if w, err = circuit.BalancedWeights(y, C); err != nil {
-					return row, nil, nil, fmt.Errorf("assess:  %s: %w", where, err)
+					return nil, fmt.Errorf("assess: %s: %w", where, err)
 				}
 			}
 			c, err := circuit.Compile(Zte.RawRowView(0), train, y, C, w)
 			if err != nil {
-				return row, nil, nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
+				return nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
 			}
 			r = c.Resources()
 			cache[key] = r
@@ -554,8 +596,7 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 			row.CNOT, row.SingleQubit, row.Depth, row.NoiseBudget = res.CNOT, res.SingleQubit, res.Depth, res.NoiseBudget
 		}
 	}
-	row.Verdict = verdict(row, pipe)
-	return row, out, warns, nil
+	return out, nil
 }
 
 // verdict sums a row up in a few words.

@@ -37,7 +37,7 @@ type assessManifest struct {
 func Write(dir string, a *results.Assessment) error {
 	figs, err := results.AssessFigures(a, outdir.SafeName)
 	if err != nil {
-		return fmt.Errorf("assess:  figures: %w", err)
+		return fmt.Errorf("assess: figures: %w", err)
 	}
 	a.Figures = a.Figures[:0]
 	for _, f := range figs {

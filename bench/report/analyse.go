@@ -228,108 +228,12 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 	where := fmt.Sprintf("%s/%s/%s vs %s/%s (%s)", x.Dataset, x.Pipeline, x.Model, ref.Pipeline, ref.Model, c.Metric)
 	switch a.test {
 	case spec.TestMcNemar:
-		if mi != 0 {
-			return c, false, nil
+		if ok, err := a.mcnemar(&c, x, ref, mi, where); !ok || err != nil {
+			return c, false, err
 		}
-		cx, cr := a.correct[idOf(x)], a.correct[idOf(ref)]
-		if len(cx) == 0 || len(cr) == 0 {
-			return c, false, fmt.Errorf("report: McNemar needs the predictions of %s", where)
-		}
-		keys := make([]instKey, 0, len(cx))
-		for k := range cx {
-			keys = append(keys, k)
-		}
-		slices.SortFunc(keys, func(p, q instKey) int { return cmp.Or(cmp.Compare(p.repeat, q.repeat), cmp.Compare(p.row, q.row)) })
-		var b, cc, n int
-		for _, k := range keys {
-			rv, both := cr[k]
-			if !both {
-				continue
-			}
-			n++
-			switch xv := cx[k]; {
-			case xv && !rv:
-				b++
-			case !xv && rv:
-				cc++
-			}
-		}
-		if n != len(cx) || n != len(cr) {
-			a.warn = append(a.warn, [2]string{where, fmt.Sprintf("only %d of %d/%d predictions pair up", n, len(cx), len(cr))})
-		}
-		r, err := stats.McNemar(b, cc, a.alpha)
-		if err != nil {
-			return c, false, fmt.Errorf("report: %s: %w", where, err)
-		}
-		c.Statistic, c.DF, c.P = r.Statistic, r.DF, r.P
-		if b+cc < stats.McNemarSmall {
-			c.P = r.PExact
-		}
-		if n > 0 {
-			c.Diff = float64(b-cc) / float64(n)
-		}
-		c.Warnings = r.Warnings
 	case spec.TestCorrectedT, spec.Test5x2CV:
-		fx, fr := a.folds[idOf(x)], a.folds[idOf(ref)]
-		if len(fx) == 0 || len(fr) == 0 {
-			return c, false, fmt.Errorf("report: no fold records for %s", where)
-		}
-		keys := make([]foldKey, 0, len(fx))
-		for k := range fx {
-			if _, ok := fr[k]; ok {
-				keys = append(keys, k)
-			}
-		}
-		slices.SortFunc(keys, func(p, q foldKey) int { return cmp.Or(cmp.Compare(p.repeat, q.repeat), cmp.Compare(p.fold, q.fold)) })
-		if len(keys) != len(fx) || len(keys) != len(fr) {
-			a.warn = append(a.warn, [2]string{where, fmt.Sprintf("only %d of %d/%d folds pair up", len(keys), len(fx), len(fr))})
-		}
-		if len(keys) == 0 {
-			return c, false, fmt.Errorf("report: %s: no folds in common", where)
-		}
-		if a.test == spec.Test5x2CV {
-			var diff [5][2]float64
-			seen := 0
-			var sum float64
-			for _, k := range keys {
-				if k.repeat < 0 || k.repeat >= 5 || k.fold < 0 || k.fold >= 2 {
-					return c, false, fmt.Errorf("report: %s: 5x2cv needs repeats 0-4 and folds 0-1, found repeat %d fold %d", where, k.repeat, k.fold)
-				}
-				d := fx[k].Scores.Values()[mi] - fr[k].Scores.Values()[mi]
-				diff[k.repeat][k.fold] = d
-				sum += d
-				seen++
-			}
-			if seen != 10 {
-				return c, false, fmt.Errorf("report: %s: 5x2cv needs 10 paired folds, found %d", where, seen)
-			}
-			r, err := stats.FiveByTwoCV(diff, a.alpha)
-			if err != nil {
-				return c, false, fmt.Errorf("report: %s: %w", where, err)
-			}
-			c.Diff = sum / 10
-			c.Statistic, c.DF, c.P, c.Warnings = r.Statistic, r.DF, r.P, r.Warnings
-			break
-		}
-		xs, rs := make([]float64, len(keys)), make([]float64, len(keys))
-		d := make([]float64, len(keys))
-		var nTrain, nTest float64
-		for i, k := range keys {
-			xs[i] = fx[k].Scores.Values()[mi]
-			rs[i] = fr[k].Scores.Values()[mi]
-			d[i] = xs[i] - rs[i]
-			nTrain += float64(fx[k].NTrain)
-			nTest += float64(fx[k].NTest)
-		}
-		ntr := int(math.Round(nTrain / float64(len(keys))))
-		nte := int(math.Round(nTest / float64(len(keys))))
-		r, err := stats.CorrectedPairedT(xs, rs, ntr, nte, a.alpha)
-		if err != nil {
-			return c, false, fmt.Errorf("report: %s: %w", where, err)
-		}
-		c.Statistic, c.DF, c.P, c.Warnings = r.Statistic, r.DF, r.P, r.Warnings
-		if iv, err := stats.CorrectedInterval(d, ntr, nte, a.alpha); err == nil {
-			c.Diff, c.Lo, c.Hi = iv.Mean, iv.Lo, iv.Hi
+		if ok, err := a.foldTest(&c, x, ref, mi, where); !ok || err != nil {
+			return c, false, err
 		}
 	default:
 		return c, false, fmt.Errorf("report: unknown test %v", a.test)
@@ -338,6 +242,121 @@ func (a *analyser) compare(x, ref results.Summary, mi int) (c results.Comparison
 		a.warn = append(a.warn, [2]string{where, w})
 	}
 	return c, true, nil
+}
+
+// mcnemar runs McNemar's test of cell x against ref on paired predictions
+// (accuracy only: ok is false for other metrics) into c.
+func (a *analyser) mcnemar(c *results.Comparison, x, ref results.Summary, mi int, where string) (ok bool, err error) {
+	if mi != 0 {
+		return false, nil
+	}
+	cx, cr := a.correct[idOf(x)], a.correct[idOf(ref)]
+	if len(cx) == 0 || len(cr) == 0 {
+		return false, fmt.Errorf("report: McNemar needs the predictions of %s", where)
+	}
+	keys := make([]instKey, 0, len(cx))
+	for k := range cx {
+		keys = append(keys, k)
+	}
+	slices.SortFunc(keys, func(p, q instKey) int { return cmp.Or(cmp.Compare(p.repeat, q.repeat), cmp.Compare(p.row, q.row)) })
+	var b, cc, n int
+	for _, k := range keys {
+		rv, both := cr[k]
+		if !both {
+			continue
+		}
+		n++
+		switch xv := cx[k]; {
+		case xv && !rv:
+			b++
+		case !xv && rv:
+			cc++
+		}
+	}
+	if n != len(cx) || n != len(cr) {
+		a.warn = append(a.warn, [2]string{where, fmt.Sprintf("only %d of %d/%d predictions pair up", n, len(cx), len(cr))})
+	}
+	r, err := stats.McNemar(b, cc, a.alpha)
+	if err != nil {
+		return false, fmt.Errorf("report: %s: %w", where, err)
+	}
+	c.Statistic, c.DF, c.P = r.Statistic, r.DF, r.P
+	if b+cc < stats.McNemarSmall {
+		c.P = r.PExact
+	}
+	if n > 0 {
+		c.Diff = float64(b-cc) / float64(n)
+	}
+	c.Warnings = r.Warnings
+	return true, nil
+}
+
+// foldTest runs the fold-based paired test (corrected resampled t, or
+// 5x2cv) of cell x against ref on metric mi into c, pairing folds by
+// (repeat, fold).
+func (a *analyser) foldTest(c *results.Comparison, x, ref results.Summary, mi int, where string) (ok bool, err error) {
+	fx, fr := a.folds[idOf(x)], a.folds[idOf(ref)]
+	if len(fx) == 0 || len(fr) == 0 {
+		return false, fmt.Errorf("report: no fold records for %s", where)
+	}
+	keys := make([]foldKey, 0, len(fx))
+	for k := range fx {
+		if _, ok := fr[k]; ok {
+			keys = append(keys, k)
+		}
+	}
+	slices.SortFunc(keys, func(p, q foldKey) int { return cmp.Or(cmp.Compare(p.repeat, q.repeat), cmp.Compare(p.fold, q.fold)) })
+	if len(keys) != len(fx) || len(keys) != len(fr) {
+		a.warn = append(a.warn, [2]string{where, fmt.Sprintf("only %d of %d/%d folds pair up", len(keys), len(fx), len(fr))})
+	}
+	if len(keys) == 0 {
+		return false, fmt.Errorf("report: %s: no folds in common", where)
+	}
+	if a.test == spec.Test5x2CV {
+		var diff [5][2]float64
+		seen := 0
+		var sum float64
+		for _, k := range keys {
+			if k.repeat < 0 || k.repeat >= 5 || k.fold < 0 || k.fold >= 2 {
+				return false, fmt.Errorf("report: %s: 5x2cv needs repeats 0-4 and folds 0-1, found repeat %d fold %d", where, k.repeat, k.fold)
+			}
+			d := fx[k].Scores.Values()[mi] - fr[k].Scores.Values()[mi]
+			diff[k.repeat][k.fold] = d
+			sum += d
+			seen++
+		}
+		if seen != 10 {
+			return false, fmt.Errorf("report: %s: 5x2cv needs 10 paired folds, found %d", where, seen)
+		}
+		r, err := stats.FiveByTwoCV(diff, a.alpha)
+		if err != nil {
+			return false, fmt.Errorf("report: %s: %w", where, err)
+		}
+		c.Diff = sum / 10
+		c.Statistic, c.DF, c.P, c.Warnings = r.Statistic, r.DF, r.P, r.Warnings
+		return true, nil
+	}
+	xs, rs := make([]float64, len(keys)), make([]float64, len(keys))
+	d := make([]float64, len(keys))
+	var nTrain, nTest float64
+	for i, k := range keys {
+		xs[i] = fx[k].Scores.Values()[mi]
+		rs[i] = fr[k].Scores.Values()[mi]
+		d[i] = xs[i] - rs[i]
+		nTrain += float64(fx[k].NTrain)
+		nTest += float64(fx[k].NTest)
+	}
+	ntr := int(math.Round(nTrain / float64(len(keys))))
+	nte := int(math.Round(nTest / float64(len(keys))))
+	r, err := stats.CorrectedPairedT(xs, rs, ntr, nte, a.alpha)
+	if err != nil {
+		return false, fmt.Errorf("report: %s: %w", where, err)
+	}
+	c.Statistic, c.DF, c.P, c.Warnings = r.Statistic, r.DF, r.P, r.Warnings
+	if iv, err := stats.CorrectedInterval(d, ntr, nte, a.alpha); err == nil {
+		c.Diff, c.Lo, c.Hi = iv.Mean, iv.Lo, iv.Hi
+	}
+	return true, nil
 }
 
 // holm adjusts the p-values of a family in place and sets the decisions.

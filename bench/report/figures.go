@@ -58,101 +58,128 @@ type sweepSpec struct {
 	sweep         results.Sweep
 }
 
-// sweepSpecs lists the shot-budget and noise-strength sweeps of a report.
-func sweepSpecs(rep *results.Report) []sweepSpec {
-	cell := map[cellID]results.Summary{}
+// sweepIndex holds what the sweep figures of a report are drawn from: its
+// cells by (dataset, pipeline, model), and its datasets, pipelines and
+// interference families in first-seen order.
+type sweepIndex struct {
+	rep          *results.Report
+	cell         map[cellID]results.Summary
+	dss, pipes   []string
+	families     []string
+	manyFamilies bool
+}
+
+func newSweepIndex(rep *results.Report) *sweepIndex {
+	x := &sweepIndex{rep: rep, cell: map[cellID]results.Summary{}}
+	seenD, seenP, seenF := map[string]bool{}, map[string]bool{}, map[string]bool{}
 	for _, s := range rep.Summary {
-		cell[idOf(s)] = s
-	}
-	var dss, pipes []string
-	seenD, seenP := map[string]bool{}, map[string]bool{}
-	for _, s := range rep.Summary {
+		x.cell[idOf(s)] = s
 		if !seenD[s.Dataset] {
 			seenD[s.Dataset] = true
-			dss = append(dss, s.Dataset)
+			x.dss = append(x.dss, s.Dataset)
 		}
 		if !seenP[s.Pipeline] {
 			seenP[s.Pipeline] = true
-			pipes = append(pipes, s.Pipeline)
+			x.pipes = append(x.pipes, s.Pipeline)
 		}
 	}
-	var families []string
-	seenF := map[string]bool{}
 	for _, v := range rep.Variants {
 		if v.Interference && !seenF[v.Family] {
 			seenF[v.Family] = true
-			families = append(families, v.Family)
+			x.families = append(x.families, v.Family)
 		}
 	}
-	bestBaseline := func(ds, pipe string) float64 {
-		best := math.NaN()
-		for _, v := range rep.Variants {
-			if v.Interference {
+	x.manyFamilies = len(x.families) > 1
+	return x
+}
+
+// bestBaseline is the highest mean accuracy of a classical model on
+// (dataset, pipeline), NaN for none.
+func (x *sweepIndex) bestBaseline(ds, pipe string) float64 {
+	best := math.NaN()
+	for _, v := range x.rep.Variants {
+		if v.Interference {
+			continue
+		}
+		if s, ok := x.cell[cellID{ds, pipe, v.Model}]; ok && (math.IsNaN(best) || s.Metrics[0].Mean > best) {
+			best = s.Metrics[0].Mean
+		}
+	}
+	return best
+}
+
+// exactOf is the accuracy of the family's exact variant (mode exact, or
+// else a noiseless circuit simulation without shots), NaN for none.
+func (x *sweepIndex) exactOf(fam, ds, pipe string) float64 {
+	for _, mode := range []string{"exact", "circuit"} {
+		for _, v := range x.rep.Variants {
+			if v.Interference && v.Family == fam && v.Mode == mode && v.Shots == 0 && v.Noise == "" {
+				if s, ok := x.cell[cellID{ds, pipe, v.Model}]; ok {
+					return s.Metrics[0].Mean
+				}
+			}
+		}
+	}
+	return math.NaN()
+}
+
+// suffix and titleFamily name the family in file names and titles when
+// the report has several.
+func (x *sweepIndex) suffix(fam string) string {
+	if x.manyFamilies {
+		return "-" + outdir.SafeName(fam)
+	}
+	return ""
+}
+
+func (x *sweepIndex) titleFamily(fam string) string {
+	if x.manyFamilies {
+		return " (" + fam + ")"
+	}
+	return ""
+}
+
+// lines makes the lines of one sweep over the variants vs (sorted by
+// at(v)), one line per dataset that has any of them.
+func (x *sweepIndex) lines(vs []results.Variant, pipe, fam string, at func(results.Variant) float64) []results.SweepLine {
+	slices.SortStableFunc(vs, func(p, q results.Variant) int { return cmp.Compare(at(p), at(q)) })
+	var lines []results.SweepLine
+	for _, ds := range x.dss {
+		l := results.SweepLine{Label: ds, Exact: x.exactOf(fam, ds, pipe), Baseline: x.bestBaseline(ds, pipe)}
+		for _, v := range vs {
+			s, ok := x.cell[cellID{ds, pipe, v.Model}]
+			if !ok {
 				continue
 			}
-			if s, ok := cell[cellID{ds, pipe, v.Model}]; ok && (math.IsNaN(best) || s.Metrics[0].Mean > best) {
-				best = s.Metrics[0].Mean
-			}
+			m := s.Metrics[0]
+			l.X = append(l.X, at(v))
+			l.Mean = append(l.Mean, m.Mean)
+			l.Lo = append(l.Lo, m.Lo)
+			l.Hi = append(l.Hi, m.Hi)
 		}
-		return best
-	}
-	// exactOf is the accuracy of the family's exact variant (mode exact,
-	// or else a noiseless circuit simulation without shots).
-	exactOf := func(fam, ds, pipe string) float64 {
-		for _, mode := range []string{"exact", "circuit"} {
-			for _, v := range rep.Variants {
-				if v.Interference && v.Family == fam && v.Mode == mode && v.Shots == 0 && v.Noise == "" {
-					if s, ok := cell[cellID{ds, pipe, v.Model}]; ok {
-						return s.Metrics[0].Mean
-					}
-				}
-			}
+		if len(l.X) > 0 {
+			lines = append(lines, l)
 		}
-		return math.NaN()
 	}
-	suffix := func(fam string) string {
-		if len(families) > 1 {
-			return "-" + outdir.SafeName(fam)
-		}
-		return ""
-	}
-	titleFamily := func(fam string) string {
-		if len(families) > 1 {
-			return " (" + fam + ")"
-		}
-		return ""
-	}
-	// build makes one sweep over the variants vs (sorted by x(v)).
-	build := func(vs []results.Variant, pipe, fam string, x func(results.Variant) float64) []results.SweepLine {
-		slices.SortStableFunc(vs, func(p, q results.Variant) int { return cmp.Compare(x(p), x(q)) })
-		var lines []results.SweepLine
-		for _, ds := range dss {
-			l := results.SweepLine{Label: ds, Exact: exactOf(fam, ds, pipe), Baseline: bestBaseline(ds, pipe)}
-			for _, v := range vs {
-				s, ok := cell[cellID{ds, pipe, v.Model}]
-				if !ok {
-					continue
-				}
-				m := s.Metrics[0]
-				l.X = append(l.X, x(v))
-				l.Mean = append(l.Mean, m.Mean)
-				l.Lo = append(l.Lo, m.Lo)
-				l.Hi = append(l.Hi, m.Hi)
-			}
-			if len(l.X) > 0 {
-				lines = append(lines, l)
-			}
-		}
-		return lines
-	}
+	return lines
+}
+
+// noiseKey groups noisy variants into one sweep: same noise model, same
+// shot budget.
+type noiseKey struct {
+	noise string
+	shots int
+}
+
+// sweepSpecs lists the shot-budget and noise-strength sweeps of a report:
+// per pipeline and family, one sweep over the shot-mode variants without
+// noise and one per (noise model, shot budget) over the noisy variants.
+func sweepSpecs(rep *results.Report) []sweepSpec {
+	x := newSweepIndex(rep)
 	var out []sweepSpec
-	for _, pipe := range pipes {
-		for _, fam := range families {
+	for _, pipe := range x.pipes {
+		for _, fam := range x.families {
 			var shots []results.Variant
-			type noiseKey struct {
-				noise string
-				shots int
-			}
 			var noiseKeys []noiseKey
 			noisy := map[noiseKey][]results.Variant{}
 			for _, v := range rep.Variants {
@@ -170,50 +197,68 @@ func sweepSpecs(rep *results.Report) []sweepSpec {
 					noisy[k] = append(noisy[k], v)
 				}
 			}
-			if lines := build(shots, pipe, fam, func(v results.Variant) float64 { return float64(v.Shots) }); len(lines) > 0 {
-				out = append(out, sweepSpec{
-					name:    "figures/shots-" + outdir.SafeName(pipe) + suffix(fam),
-					caption: fmt.Sprintf("Accuracy of %s against shot budget, pipeline %s, one line per dataset with its %s interval; exact mode dashed, best baseline dotted", fam, pipe, fmtLevel(rep.Protocol.Level)),
-					sweep: results.Sweep{
-						Title:  fmt.Sprintf("Accuracy against shot budget, pipeline %s%s", pipe, titleFamily(fam)),
-						XLabel: "shots per test instance", YLabel: "accuracy", LogX: true, Lines: lines,
-					},
-				})
+			if sw, ok := x.shotSweep(shots, pipe, fam); ok {
+				out = append(out, sw)
 			}
 			slices.SortStableFunc(noiseKeys, func(p, q noiseKey) int { return cmp.Or(cmp.Compare(p.noise, q.noise), cmp.Compare(p.shots, q.shots)) })
 			for _, k := range noiseKeys {
-				lines := build(noisy[k], pipe, fam, func(v results.Variant) float64 { return v.Strength })
-				if len(lines) == 0 {
-					continue
+				if sw, ok := x.noiseSweep(noisy[k], k, pipe, fam); ok {
+					out = append(out, sw)
 				}
-				logX := true
-				lo, hi := math.Inf(1), math.Inf(-1)
-				for _, l := range lines {
-					for _, x := range l.X {
-						lo, hi = math.Min(lo, x), math.Max(hi, x)
-					}
-				}
-				if !(lo > 0) || hi/lo < 20 {
-					logX = false
-				}
-				name := "figures/noise-" + outdir.SafeName(k.noise) + "-" + outdir.SafeName(pipe) + suffix(fam)
-				shotsText := "exact probabilities"
-				if k.shots > 0 {
-					name += fmt.Sprintf("-shots%d", k.shots)
-					shotsText = fmt.Sprintf("%d shots", k.shots)
-				}
-				out = append(out, sweepSpec{
-					name:    name,
-					caption: fmt.Sprintf("Accuracy of %s against %s strength, pipeline %s, %s, one line per dataset with its %s interval; exact mode dashed, best baseline dotted", fam, k.noise, pipe, shotsText, fmtLevel(rep.Protocol.Level)),
-					sweep: results.Sweep{
-						Title:  fmt.Sprintf("Accuracy against %s noise, pipeline %s%s", k.noise, pipe, titleFamily(fam)),
-						XLabel: k.noise + " strength", YLabel: "accuracy", LogX: logX, Lines: lines,
-					},
-				})
 			}
 		}
 	}
 	return out
+}
+
+// shotSweep is accuracy against shot budget; ok is false without lines.
+func (x *sweepIndex) shotSweep(vs []results.Variant, pipe, fam string) (sweepSpec, bool) {
+	lines := x.lines(vs, pipe, fam, func(v results.Variant) float64 { return float64(v.Shots) })
+	if len(lines) == 0 {
+		return sweepSpec{}, false
+	}
+	return sweepSpec{
+		name:    "figures/shots-" + outdir.SafeName(pipe) + x.suffix(fam),
+		caption: fmt.Sprintf("Accuracy of %s against shot budget, pipeline %s, one line per dataset with its %s interval; exact mode dashed, best baseline dotted", fam, pipe, fmtLevel(x.rep.Protocol.Level)),
+		sweep: results.Sweep{
+			Title:  fmt.Sprintf("Accuracy against shot budget, pipeline %s%s", pipe, x.titleFamily(fam)),
+			XLabel: "shots per test instance", YLabel: "accuracy", LogX: true, Lines: lines,
+		},
+	}, true
+}
+
+// noiseSweep is accuracy against noise strength for one noise model and
+// shot budget, on a log axis when the strengths span a factor of 20 or
+// more; ok is false without lines.
+func (x *sweepIndex) noiseSweep(vs []results.Variant, k noiseKey, pipe, fam string) (sweepSpec, bool) {
+	lines := x.lines(vs, pipe, fam, func(v results.Variant) float64 { return v.Strength })
+	if len(lines) == 0 {
+		return sweepSpec{}, false
+	}
+	logX := true
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, l := range lines {
+		for _, v := range l.X {
+			lo, hi = math.Min(lo, v), math.Max(hi, v)
+		}
+	}
+	if !(lo > 0) || hi/lo < 20 {
+		logX = false
+	}
+	name := "figures/noise-" + outdir.SafeName(k.noise) + "-" + outdir.SafeName(pipe) + x.suffix(fam)
+	shotsText := "exact probabilities"
+	if k.shots > 0 {
+		name += fmt.Sprintf("-shots%d", k.shots)
+		shotsText = fmt.Sprintf("%d shots", k.shots)
+	}
+	return sweepSpec{
+		name:    name,
+		caption: fmt.Sprintf("Accuracy of %s against %s strength, pipeline %s, %s, one line per dataset with its %s interval; exact mode dashed, best baseline dotted", fam, k.noise, pipe, shotsText, fmtLevel(x.rep.Protocol.Level)),
+		sweep: results.Sweep{
+			Title:  fmt.Sprintf("Accuracy against %s noise, pipeline %s%s", k.noise, pipe, x.titleFamily(fam)),
+			XLabel: k.noise + " strength", YLabel: "accuracy", LogX: logX, Lines: lines,
+		},
+	}, true
 }
 
 func fmtLevel(l float64) string { return fmt.Sprintf("%g%%", 100*l) }

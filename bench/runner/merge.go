@@ -39,86 +39,15 @@ func Merge(dirs []string) (*Merged, error) {
 	if len(dirs) == 0 {
 		return nil, partialErr("", "merge: no partial run directories given")
 	}
-	ids := make([]runIdentity, len(dirs))
-	shards := make([]plan.Shard, len(dirs))
-	for k, dir := range dirs {
-		for _, prev := range dirs[:k] {
-			if sameDir(prev, dir) {
-				return nil, bad(dir, "given twice")
-			}
-		}
-		id, err := readIdentity(dir)
-		if errors.Is(err, fs.ErrNotExist) {
-			if _, serr := os.Stat(dir); serr != nil {
-				return nil, bad(dir, "no such directory")
-			}
-			if _, serr := os.Stat(filepath.Join(dir, "summary.csv")); serr == nil {
-				return nil, bad(dir, "a complete run directory, not a shard: only partial run directories (from fringe run -shard i/n) merge")
-			}
-			return nil, bad(dir, "not a partial run directory (no %s)", identityFile)
-		}
-		if err != nil {
-			return nil, bad(dir, "%v", err)
-		}
-		s, err := plan.ParseShard(id.Shard)
-		if err != nil {
-			return nil, bad(dir, "%s records a bad shard %q", identityFile, id.Shard)
-		}
-		ids[k], shards[k] = id, s
-	}
-	first := ids[0]
-	for k := 1; k < len(dirs); k++ {
-		if !ids[k].sameRun(first) {
-			d := ids[k]
-			d.Shard = first.Shard // compare the runs, not the shards
-			return nil, bad(dirs[k], "comes from a different run than %s: %s", dirs[0], d.differences(first))
-		}
-		if shards[k].N != shards[0].N {
-			return nil, bad(dirs[k], "shard %s, but %s is shard %s: shards of different shard counts do not merge", shards[k], dirs[0], shards[0])
-		}
-	}
-	n := shards[0].N
-	byIndex := make([][]string, n+1)
-	for k, s := range shards {
-		byIndex[s.I] = append(byIndex[s.I], dirs[k])
-	}
-	var dups, missing, have []string
-	for i := 1; i <= n; i++ {
-		switch len(byIndex[i]) {
-		case 0:
-			missing = append(missing, strconv.Itoa(i))
-		case 1:
-			have = append(have, strconv.Itoa(i))
-		default:
-			dups = append(dups, fmt.Sprintf("shard %d/%d in %s", i, n, strings.Join(byIndex[i], " and ")))
-		}
-	}
-	if len(dups) > 0 {
-		return nil, partialErr("", "merge: duplicate shards: %s", strings.Join(dups, "; "))
-	}
-	if len(missing) > 0 {
-		return nil, partialErr("", "merge: missing shard(s) %s of %d (given: %s)", strings.Join(missing, ", "), n, strings.Join(have, ", "))
-	}
-
-	sp, err := spec.Parse(first.SpecFile, []byte(first.SpecText))
+	ids, shards, err := readShards(dirs)
 	if err != nil {
-		return nil, bad(dirs[0], "the recorded spec does not parse: %v", err)
+		return nil, err
 	}
-	sp.Dir = first.SpecDir
-	if spec.CanonicalSHA(sp.Source) != first.SpecSHA {
-		return nil, bad(dirs[0], "%s is inconsistent: its spec text does not match its spec_sha256", identityFile)
-	}
-	pl, err := plan.New(sp)
+	first, n := ids[0], shards[0].N
+	pl, err := rebuildPlan(first, dirs[0])
 	if err != nil {
-		return nil, fmt.Errorf("merge: rebuild the plan of spec %q recorded in %s: %w", sp.Name, dirs[0], err)
+		return nil, err
 	}
-	if fp := pl.Fingerprint(); fp != first.PlanSHA {
-		return nil, bad(dirs[0], "the data the shards were computed on has changed since (plan sha256 %.12s, now %.12s): run the shards again", first.PlanSHA, fp)
-	}
-	if len(pl.Tasks) != first.Tasks {
-		return nil, bad(dirs[0], "records %d tasks, the plan has %d", first.Tasks, len(pl.Tasks))
-	}
-
 	m := &Merged{Plan: pl, Shards: n, Workers: first.Workers}
 	all := make([]*TaskResult, len(pl.Tasks))
 	for k, dir := range dirs {
@@ -160,6 +89,100 @@ func Merge(dirs []string) (*Merged, error) {
 		m.Results[i] = *r
 	}
 	return m, nil
+}
+
+// readShards reads the identities of the partial run directories and
+// checks that they are the shards 1/n..n/n of one run, each given once.
+func readShards(dirs []string) ([]runIdentity, []plan.Shard, error) {
+	bad := partialErr
+	ids := make([]runIdentity, len(dirs))
+	shards := make([]plan.Shard, len(dirs))
+	for k, dir := range dirs {
+		for _, prev := range dirs[:k] {
+			if sameDir(prev, dir) {
+				return nil, nil, bad(dir, "given twice")
+			}
+		}
+		id, err := readIdentity(dir)
+		if errors.Is(err, fs.ErrNotExist) {
+			if _, serr := os.Stat(dir); serr != nil {
+				return nil, nil, bad(dir, "no such directory")
+			}
+			if _, serr := os.Stat(filepath.Join(dir, "summary.csv")); serr == nil {
+				return nil, nil, bad(dir, "a complete run directory, not a shard: only partial run directories (from fringe run -shard i/n) merge")
+			}
+			return nil, nil, bad(dir, "not a partial run directory (no %s)", identityFile)
+		}
+		if err != nil {
+			return nil, nil, bad(dir, "%v", err)
+		}
+		s, err := plan.ParseShard(id.Shard)
+		if err != nil {
+			return nil, nil, bad(dir, "%s records a bad shard %q", identityFile, id.Shard)
+		}
+		ids[k], shards[k] = id, s
+	}
+	first := ids[0]
+	for k := 1; k < len(dirs); k++ {
+		if !ids[k].sameRun(first) {
+			d := ids[k]
+			d.Shard = first.Shard // compare the runs, not the shards
+			return nil, nil, bad(dirs[k], "comes from a different run than %s: %s", dirs[0], d.differences(first))
+		}
+		if shards[k].N != shards[0].N {
+			return nil, nil, bad(dirs[k], "shard %s, but %s is shard %s: shards of different shard counts do not merge", shards[k], dirs[0], shards[0])
+		}
+	}
+	n := shards[0].N
+	byIndex := make([][]string, n+1)
+	for k, s := range shards {
+		byIndex[s.I] = append(byIndex[s.I], dirs[k])
+	}
+	var dups, missing, have []string
+	for i := 1; i <= n; i++ {
+		switch len(byIndex[i]) {
+		case 0:
+			missing = append(missing, strconv.Itoa(i))
+		case 1:
+			have = append(have, strconv.Itoa(i))
+		default:
+			dups = append(dups, fmt.Sprintf("shard %d/%d in %s", i, n, strings.Join(byIndex[i], " and ")))
+		}
+	}
+	if len(dups) > 0 {
+		return nil, nil, partialErr("", "merge: duplicate shards: %s", strings.Join(dups, "; "))
+	}
+	if len(missing) > 0 {
+		return nil, nil, partialErr("", "merge: missing shard(s) %s of %d (given: %s)", strings.Join(missing, ", "), n, strings.Join(have, ", "))
+	}
+
+	return ids, shards, nil
+}
+
+// rebuildPlan rebuilds the plan of a run from the spec its first shard
+// (in dir) records, and checks it against the recorded fingerprint.
+func rebuildPlan(first runIdentity, dir string) (*plan.Plan, error) {
+	bad := partialErr
+	sp, err := spec.Parse(first.SpecFile, []byte(first.SpecText))
+	if err != nil {
+		return nil, bad(dir, "the recorded spec does not parse: %v", err)
+	}
+	sp.Dir = first.SpecDir
+	if spec.CanonicalSHA(sp.Source) != first.SpecSHA {
+		return nil, bad(dir, "%s is inconsistent: its spec text does not match its spec_sha256", identityFile)
+	}
+	pl, err := plan.New(sp)
+	if err != nil {
+		return nil, fmt.Errorf("merge: rebuild the plan of spec %q recorded in %s: %w", sp.Name, dir, err)
+	}
+	if fp := pl.Fingerprint(); fp != first.PlanSHA {
+		return nil, bad(dir, "the data the shards were computed on has changed since (plan sha256 %.12s, now %.12s): run the shards again", first.PlanSHA, fp)
+	}
+	if len(pl.Tasks) != first.Tasks {
+		return nil, bad(dir, "records %d tasks, the plan has %d", first.Tasks, len(pl.Tasks))
+	}
+
+	return pl, nil
 }
 
 // sameDir reports whether two paths name the same directory.
