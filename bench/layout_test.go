@@ -48,6 +48,8 @@ var allowed = map[string][]string{
 		"bench/export", "bench/outdir", "bench/stats",
 		"datasets", "qkernel", "qkernel/circuit", "results"},
 	"bench/cluster": {"bench/input", "bench/plan"},
+	// Helpers shared by the harness's tests (imported by tests only).
+	"bench/internal/benchtest": {"bench/input", "bench/spec", "bench/plan"},
 	"bench/cmd/fringe": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/runner", "bench/report",
 		"bench/export", "bench/assess", "bench/cluster", "bench/outdir",
 		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/sim", "results"},

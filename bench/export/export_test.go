@@ -14,10 +14,9 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/modelkit"
-	"fringe/bench/plan"
 	"fringe/bench/runner"
-	"fringe/bench/spec"
 	"fringe/qkernel/sim"
 )
 
@@ -70,7 +69,7 @@ func readIndex(t *testing.T, dir string) [][]string {
 // each gives the p_acc and class probabilities of the exact-mode model on
 // the same instance.
 func TestExportCircuits(t *testing.T) {
-	p := mustPlan(t, exportSpec)
+	p := benchtest.Plan(t, "t.toml", exportSpec)
 	dir := t.TempDir()
 	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
 	sum, err := Circuits(context.Background(), p, a, Options{Model: "exact", Workers: 1})
@@ -180,7 +179,7 @@ func TestExportCircuits(t *testing.T) {
 // TestExportSettings checks which model's settings an export uses, the
 // subset sizes, and the folder rules.
 func TestExportSettings(t *testing.T) {
-	p := mustPlan(t, exportSpec)
+	p := benchtest.Plan(t, "t.toml", exportSpec)
 	for _, c := range []struct {
 		model  string
 		want   string
@@ -203,11 +202,11 @@ func TestExportSettings(t *testing.T) {
 			t.Errorf("model %q: settings %+v (%v), want model %s subset %d", c.model, set, err, c.want, c.subset)
 		}
 	}
-	withCounts := mustPlan(t, exportSpec+"\n[[model]]\nkind = \"counts\"\nfile = \"m.csv\"\ntrain_subset = 5\nbalance = true\n")
+	withCounts := benchtest.Plan(t, "t.toml", exportSpec+"\n[[model]]\nkind = \"counts\"\nfile = \"m.csv\"\ntrain_subset = 5\nbalance = true\n")
 	if set, _ := resolveExport(withCounts, ""); set.model != "counts-m-k5-balanced" || set.subset != 5 || !set.balance {
 		t.Errorf("default with a counts model: %+v", set)
 	}
-	none := mustPlan(t, "name = \"n\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"centroid\"\n")
+	none := benchtest.Plan(t, "t.toml", "name = \"n\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"centroid\"\n")
 	if set, err := resolveExport(none, ""); err != nil || set != (exportSettings{}) {
 		t.Errorf("no interference model: %+v, %v", set, err)
 	}
@@ -261,17 +260,4 @@ func TestBits(t *testing.T) {
 			t.Errorf("modelkit.ParseBits(%q, 1) accepted", s)
 		}
 	}
-}
-
-func mustPlan(t *testing.T, src string) *plan.Plan {
-	t.Helper()
-	s, err := spec.Parse("t.toml", []byte(src))
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.New(s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
 }

@@ -1,22 +1,12 @@
-package modelkit
+package modelkit_test
 
 import (
 	"math"
 	"testing"
-	"time"
+
+	"fringe/bench/internal/benchtest"
+	"fringe/bench/modelkit"
 )
-
-// hangLimit bounds the time one fuzz input may take. The fuzzing engine
-// does not notice a hang; a panic from the watchdog crashes the worker,
-// which makes the engine record the input as a failure.
-const hangLimit = 10 * time.Second
-
-// watchdog panics if the calling fuzz input runs longer than hangLimit;
-// the returned function stops it.
-func watchdog(what string) func() bool {
-	t := time.AfterFunc(hangLimit, func() { panic("fuzz: " + what + " took more than " + hangLimit.String() + " (a hang)") })
-	return t.Stop
-}
 
 // FuzzModelParams feeds one [[model]] table with a fuzzed kind and one
 // fuzzed key of every TOML value type a spec can hold to the model
@@ -34,7 +24,7 @@ func FuzzModelParams(f *testing.F) {
 	f.Add("svm", "gamma", int64(1), math.Inf(1), "scale", false, uint8(1))
 	f.Add("knn", "k", int64(-1<<40), math.NaN(), "", false, uint8(2))
 	f.Fuzz(func(t *testing.T, kind, key string, i int64, x float64, s string, b bool, which uint8) {
-		defer watchdog("modelkit.Parse")()
+		defer benchtest.Watchdog("modelkit.Parse")()
 		var v any
 		switch which % 8 {
 		case 0:
@@ -58,7 +48,7 @@ func FuzzModelParams(f *testing.F) {
 		if key == "kind" {
 			table = map[string]any{"kind": v}
 		}
-		ms, err := Parse(table)
+		ms, err := modelkit.Parse(table)
 		if err != nil {
 			if err.Error() == "" {
 				t.Fatal("empty error message")

@@ -5,8 +5,7 @@ import (
 	"strings"
 	"testing"
 
-	"fringe/bench/plan"
-	"fringe/bench/spec"
+	"fringe/bench/internal/benchtest"
 )
 
 // TestSplitsShared checks the design rule that the splits of a dataset
@@ -15,8 +14,8 @@ import (
 func TestSplitsShared(t *testing.T) {
 	a := "name = \"a\"\nseed = 9\ndatasets = [\"wine\"]\n[cv]\nfolds = 4\nrepeats = 2\n[[model]]\nkind = \"centroid\"\n"
 	b := "name = \"b\"\nseed = 9\ndatasets = [\"iris\", \"wine\"]\npipelines = [\"std\", \"l2\"]\n[cv]\nfolds = 4\nrepeats = 2\n[[model]]\nkind = \"knn\"\n[[model]]\nkind = \"centroid\"\n"
-	pa := mustPlan(t, a)
-	pb := mustPlan(t, b)
+	pa := benchtest.Plan(t, "t.toml", a)
+	pb := benchtest.Plan(t, "t.toml", b)
 	sa, sb := pa.Datasets[0].Splits, pb.Datasets[1].Splits
 	if len(sa) != len(sb) {
 		t.Fatalf("%d vs %d splits", len(sa), len(sb))
@@ -26,7 +25,7 @@ func TestSplitsShared(t *testing.T) {
 			t.Fatalf("split %d differs between specs", i)
 		}
 	}
-	pc := mustPlan(t, strings.Replace(a, "seed = 9", "seed = 10", 1))
+	pc := benchtest.Plan(t, "t.toml", strings.Replace(a, "seed = 9", "seed = 10", 1))
 	if fmtInts(pc.Datasets[0].Splits[0].Test) == fmtInts(sa[0].Test) {
 		t.Error("a different seed gave the same first fold")
 	}
@@ -35,7 +34,7 @@ func TestSplitsShared(t *testing.T) {
 // TestInterferenceSeed checks that the seed handed to exports and counts
 // models is the one the run's interference models get.
 func TestInterferenceSeed(t *testing.T) {
-	p := mustPlan(t, `
+	p := benchtest.Plan(t, "t.toml", `
 name = "s"
 seed = 12
 datasets = ["iris"]
@@ -56,19 +55,6 @@ file = "x.csv"
 			t.Errorf("task %s: interference seed %d, model seed %d", p.Key(task), got, want)
 		}
 	}
-}
-
-func mustPlan(t *testing.T, src string) *plan.Plan {
-	t.Helper()
-	s, err := spec.Parse("t.toml", []byte(src))
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.New(s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
 }
 
 func fmtInts(x []int) string { return fmt.Sprint(x) }

@@ -6,11 +6,10 @@ import (
 	"reflect"
 	"strings"
 	"testing"
-	"time"
 
 	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
-	"fringe/bench/spec"
 )
 
 func TestParseShard(t *testing.T) {
@@ -56,7 +55,7 @@ func TestParseShard(t *testing.T) {
 // whole units, dealt out round-robin, balanced to within one unit, and
 // that every dataset is spread over the shards.
 func TestShardTasks(t *testing.T) {
-	p := clusterPlan(t, readClusterSpec(t))
+	p := benchtest.Plan(t, "cluster.toml", readClusterSpec(t))
 	units := p.Units()
 	if len(units) != 32 {
 		t.Fatalf("%d units, want 32 (2 datasets x 2 pipelines x 8 splits)", len(units))
@@ -112,7 +111,7 @@ func TestShardTasks(t *testing.T) {
 		}
 	}
 	// The same plan built again gives the same shards.
-	q := clusterPlan(t, readClusterSpec(t))
+	q := benchtest.Plan(t, "cluster.toml", readClusterSpec(t))
 	a, _ := p.ShardTasks(plan.Shard{I: 2, N: 7})
 	b, _ := q.ShardTasks(plan.Shard{I: 2, N: 7})
 	if !reflect.DeepEqual(a, b) {
@@ -135,7 +134,7 @@ func FuzzParseShard(f *testing.F) {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
-		defer watchdog("plan.ParseShard")()
+		defer benchtest.Watchdog("plan.ParseShard")()
 		sh, err := plan.ParseShard(s)
 		if err != nil {
 			if !errors.Is(err, input.ErrBad) || !errors.Is(err, plan.ErrShard) {
@@ -152,20 +151,6 @@ func FuzzParseShard(f *testing.F) {
 	})
 }
 
-// clusterPlan plans testdata/cluster.toml (or a variant of its text).
-func clusterPlan(t testing.TB, text string) *plan.Plan {
-	t.Helper()
-	s, err := spec.Parse("cluster.toml", []byte(text))
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.New(s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
-}
-
 func readClusterSpec(t testing.TB) string {
 	t.Helper()
 	b, err := os.ReadFile("testdata/cluster.toml")
@@ -173,16 +158,4 @@ func readClusterSpec(t testing.TB) string {
 		t.Fatal(err)
 	}
 	return string(b)
-}
-
-// hangLimit bounds the time one fuzz input may take. The fuzzing engine
-// does not notice a hang; a panic from the watchdog crashes the worker,
-// which makes the engine record the input as a failure.
-const hangLimit = 10 * time.Second
-
-// watchdog panics if the calling fuzz input runs longer than hangLimit;
-// the returned function stops it.
-func watchdog(what string) func() bool {
-	t := time.AfterFunc(hangLimit, func() { panic("fuzz: " + what + " took more than " + hangLimit.String() + " (a hang)") })
-	return t.Stop
 }

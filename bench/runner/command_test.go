@@ -16,6 +16,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/modelkit"
 	"fringe/bench/outdir"
 	"fringe/bench/plan"
@@ -186,7 +187,7 @@ run = %s
 
 func commandPlan(t *testing.T, run, extra string) *plan.Plan {
 	t.Helper()
-	return mustPlan(t, fmt.Sprintf(commandSpec, run, extra))
+	return benchtest.Plan(t, "t.toml", fmt.Sprintf(commandSpec, run, extra))
 }
 
 // TestCommandMatchesKNN runs a 1-nearest-neighbour program through the
@@ -244,7 +245,7 @@ func TestCommandMatchesKNN(t *testing.T) {
 func TestCommandInputs(t *testing.T) {
 	t.Setenv("TMPDIR", t.TempDir())
 	rec := t.TempDir()
-	p := mustPlan(t, fmt.Sprintf(`
+	p := benchtest.Plan(t, "t.toml", fmt.Sprintf(`
 name = "inputs"
 seed = 8
 pipelines = ["std+lift(1)"]

@@ -2,41 +2,17 @@ package runner
 
 import (
 	"context"
-	"errors"
-	"strings"
 	"testing"
 	"time"
 
-	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
 )
 
 var fixedTime = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 
-// hangLimit bounds the time one fuzz input may take. The fuzzing engine
-// does not notice a hang; a panic from the watchdog crashes the worker,
-// which makes the engine record the input as a failure.
-const hangLimit = 10 * time.Second
-
-// watchdog panics if the calling fuzz input runs longer than hangLimit;
-// the returned function stops it.
-func watchdog(what string) func() bool {
-	t := time.AfterFunc(hangLimit, func() { panic("fuzz: " + what + " took more than " + hangLimit.String() + " (a hang)") })
-	return t.Stop
-}
-
 func executeForFuzz(p *plan.Plan) ([]TaskResult, error) {
 	return Execute(context.Background(), p, Options{Workers: 1})
-}
-
-func checkInputError(t *testing.T, err error) {
-	t.Helper()
-	if !errors.Is(err, input.ErrBad) {
-		t.Fatalf("error %v (%T) is not an input error", err, err)
-	}
-	if msg := err.Error(); strings.Contains(msg, "\n") || msg == "" {
-		t.Fatalf("message is empty or spans lines: %q", msg)
-	}
 }
 
 // FuzzTaskFile feeds arbitrary bytes to the task-file decoder of partial
@@ -44,7 +20,7 @@ func checkInputError(t *testing.T, err error) {
 // anything it accepts must be safe for the run writer, so the decoded
 // results are turned into records and summaries.
 func FuzzTaskFile(f *testing.F) {
-	p := clusterPlan(f, clusterSpec)
+	p := benchtest.Plan(f, "cluster.toml", clusterSpec)
 	id := identity(p, plan.Shard{}, len(p.Tasks), 1, fixedTime)
 	res, err := executeForFuzz(p)
 	if err != nil {
@@ -65,7 +41,7 @@ func FuzzTaskFile(f *testing.F) {
 		member[i] = i%2 == 0
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		defer watchdog("decodeTasks")()
+		defer benchtest.Watchdog("decodeTasks")()
 		for _, m := range [][]bool{nil, member} {
 			rs, err := decodeTasks(p, id.digest(), m, data)
 			if err != nil {

@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
@@ -34,7 +35,7 @@ func writeShards(t *testing.T, p *plan.Plan, dir string, n int) []string {
 // exactly the results of the whole run, in task order, for several shard
 // counts and in any order of the directories.
 func TestMergeEqualsWholeRun(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	want, err := Execute(context.Background(), p, Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
@@ -62,10 +63,10 @@ func TestMergeEqualsWholeRun(t *testing.T) {
 
 // TestMergeRefuses checks every refusal of Merge and its message.
 func TestMergeRefuses(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	base := t.TempDir()
 	dirs := writeShards(t, p, filepath.Join(base, "a"), 3)
-	seed4 := clusterPlan(t, strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1))
+	seed4 := benchtest.Plan(t, "cluster.toml", strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1))
 	other := writeShards(t, seed4, filepath.Join(base, "b"), 3)
 	four := writeShards(t, p, filepath.Join(base, "c"), 4)
 

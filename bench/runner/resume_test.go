@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
 )
 
@@ -58,7 +59,7 @@ func runPartial(t *testing.T, p *plan.Plan, pr *Partial) {
 // included), that nothing is missing, and that the directory has the
 // documented layout.
 func TestPartialRoundTrip(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	want, err := Execute(context.Background(), p, Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
@@ -110,7 +111,7 @@ func TestPartialRoundTrip(t *testing.T) {
 // refused with a message naming the difference; comments, blank lines and
 // key order are not a change.
 func TestPartialIdentity(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	dir := filepath.Join(t.TempDir(), "run.partial")
 	pr, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	if err != nil {
@@ -122,7 +123,7 @@ func TestPartialIdentity(t *testing.T) {
 	}
 	pr.Close()
 	reordered := "# the same experiment, reformatted\n" + strings.Replace(clusterSpec, "name = \"cluster-test\"\nseed = 3", "seed   =   3   # same\nname = 'cluster-test'", 1)
-	same, err := OpenPartial(dir, clusterPlan(t, reordered), plan.Shard{}, PartialOptions{})
+	same, err := OpenPartial(dir, benchtest.Plan(t, "cluster.toml", reordered), plan.Shard{}, PartialOptions{})
 	if err != nil {
 		t.Fatalf("a reformatted spec is refused: %v", err)
 	}
@@ -141,7 +142,7 @@ func TestPartialIdentity(t *testing.T) {
 		{"name", strings.Replace(clusterSpec, `"cluster-test"`, `"other"`, 1), plan.Shard{}, `spec "cluster-test", not "other"`},
 		{"shard", clusterSpec, plan.Shard{I: 1, N: 2}, "shard 1/1, not 1/2"},
 	} {
-		_, err := OpenPartial(dir, clusterPlan(t, c.spec), c.shard, PartialOptions{})
+		_, err := OpenPartial(dir, benchtest.Plan(t, "cluster.toml", c.spec), c.shard, PartialOptions{})
 		if err == nil || !errors.Is(err, input.ErrBad) || !errors.Is(err, ErrPartial) {
 			t.Errorf("%s change: err %v, want a refusal", c.name, err)
 			continue
@@ -153,7 +154,7 @@ func TestPartialIdentity(t *testing.T) {
 		}
 	}
 	// -fresh discards it.
-	fresh, err := OpenPartial(dir, clusterPlan(t, strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1)), plan.Shard{}, PartialOptions{Fresh: true})
+	fresh, err := OpenPartial(dir, benchtest.Plan(t, "cluster.toml", strings.Replace(clusterSpec, "seed = 3", "seed = 4", 1)), plan.Shard{}, PartialOptions{Fresh: true})
 	if err != nil || fresh.Loaded() != 0 {
 		t.Fatalf("fresh: %v, %d loaded", err, fresh.Loaded())
 	}
@@ -169,7 +170,7 @@ func TestPartialIdentity(t *testing.T) {
 // temporary files are ignored and removed; a directory that is not a
 // partial run is never taken over, not even with Fresh.
 func TestPartialDamage(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	dir := filepath.Join(t.TempDir(), "run.partial")
 	pr, _ := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	runPartial(t, p, pr)
@@ -267,7 +268,7 @@ func TestPartialDamage(t *testing.T) {
 // Execute returned, and that the rest can be run later to the same
 // results.
 func TestExecuteCancelKeepsFinished(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	want, err := Execute(context.Background(), p, Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
@@ -309,7 +310,7 @@ func TestExecuteCancelKeepsFinished(t *testing.T) {
 // TestSaveErrorStopsRun checks that a failing Save stops the run with its
 // error.
 func TestSaveErrorStopsRun(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	boom := errors.New("disk full")
 	_, err := Execute(context.Background(), p, Options{Workers: 2, Save: func([]TaskResult) error { return boom }})
 	if !errors.Is(err, boom) {
@@ -322,7 +323,7 @@ func TestSaveErrorStopsRun(t *testing.T) {
 // and for one that two runs create at the same time, and is free again
 // after Close.
 func TestPartialLock(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	dir := filepath.Join(t.TempDir(), "run.partial")
 	a, _ := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 	b, _ := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})

@@ -8,8 +8,8 @@ import (
 	"reflect"
 	"testing"
 
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
-	"fringe/bench/spec"
 )
 
 // clusterSpec is a small grid for the shard, resume and merge tests
@@ -22,24 +22,11 @@ var clusterSpec = func() string {
 	return string(b)
 }()
 
-func clusterPlan(t testing.TB, text string) *plan.Plan {
-	t.Helper()
-	s, err := spec.Parse("cluster.toml", []byte(text))
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.New(s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
-}
-
 // TestExecuteSubset checks that a task's result does not depend on which
 // other tasks run in the same process: running one shard gives exactly
 // the results the whole run gives for its tasks.
 func TestExecuteSubset(t *testing.T) {
-	p := clusterPlan(t, clusterSpec)
+	p := benchtest.Plan(t, "cluster.toml", clusterSpec)
 	all, err := Execute(context.Background(), p, Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)

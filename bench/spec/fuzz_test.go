@@ -1,14 +1,11 @@
 package spec_test
 
 import (
-	"errors"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
-	"time"
 
-	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
@@ -32,10 +29,10 @@ func FuzzParseSpec(f *testing.F) {
 	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"svm\"\ngamma = \"scale\"\n"))
 	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[cv]\nmethod = \"holdout\"\ntest_fraction = 0.5\n[[model]]\nkind = \"interference\"\nmode = \"noisy\"\nnoise = { readout = [0.1, 0.2] }\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		defer watchdog("spec.Parse/NewPlan")()
+		defer benchtest.Watchdog("spec.Parse/NewPlan")()
 		s, err := spec.Parse("fuzz.toml", data)
 		if err != nil {
-			checkInputError(t, err)
+			benchtest.CheckInputError(t, err)
 			return
 		}
 		if s.Name == "" || len(s.Datasets) == 0 || len(s.Pipelines) == 0 || len(s.Models) == 0 {
@@ -59,29 +56,7 @@ func FuzzParseSpec(f *testing.F) {
 			}
 		}
 		if _, err := plan.New(s); err != nil {
-			checkInputError(t, err)
+			benchtest.CheckInputError(t, err)
 		}
 	})
-}
-
-// hangLimit bounds the time one fuzz input may take. The fuzzing engine
-// does not notice a hang; a panic from the watchdog crashes the worker,
-// which makes the engine record the input as a failure.
-const hangLimit = 10 * time.Second
-
-// watchdog panics if the calling fuzz input runs longer than hangLimit;
-// the returned function stops it.
-func watchdog(what string) func() bool {
-	t := time.AfterFunc(hangLimit, func() { panic("fuzz: " + what + " took more than " + hangLimit.String() + " (a hang)") })
-	return t.Stop
-}
-
-func checkInputError(t *testing.T, err error) {
-	t.Helper()
-	if !errors.Is(err, input.ErrBad) {
-		t.Fatalf("error %v (%T) is not an input error", err, err)
-	}
-	if msg := err.Error(); strings.Contains(msg, "\n") || msg == "" {
-		t.Fatalf("message is empty or spans lines: %q", msg)
-	}
 }
