@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Reference values for bench/compare.go (WelchT, TwoProportions).
+"""Reference values for bench/report/compare.go (WelchT, TwoProportions).
 
 Writes bench/report/testdata/ref_compare.json. Run with Debian's /usr/bin/python3
 (scipy 1.10.1):  /usr/bin/python3 scripts/ref_compare.py

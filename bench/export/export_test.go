@@ -3,7 +3,6 @@ package export
 import (
 	"bytes"
 	"context"
-	"encoding/csv"
 	"errors"
 	"os"
 	"path/filepath"
@@ -50,16 +49,7 @@ shots = 100
 // readIndex reads an export's index.csv.
 func readIndex(t *testing.T, dir string) [][]string {
 	t.Helper()
-	f, err := os.Open(filepath.Join(dir, "index.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
-	return recs
+	return benchtest.ReadCSV(t, filepath.Join(dir, "index.csv"))
 }
 
 // TestExportCircuits checks the index (one line per test instance and

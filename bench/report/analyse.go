@@ -91,15 +91,6 @@ type Input struct {
 	Label       string            // LaTeX label of the summary table; "" for none
 }
 
-// cellID identifies a (dataset, pipeline, model) cell.
-type cellID struct{ dataset, pipeline, model string }
-
-// foldKey identifies a split within a dataset.
-type foldKey struct{ repeat, fold int }
-
-// instKey identifies a test instance within a dataset: its repeat and row.
-type instKey struct{ repeat, row int }
-
 type analyser struct {
 	in      Input
 	test    spec.TestKind
@@ -129,7 +120,6 @@ type analyser struct {
 func Analyse(in Input) (*results.Report, error) {
 	a := &analyser{
 		in: in, test: in.CV.ResolvedTest(), alpha: in.CV.TestAlpha(),
-		folds: map[cellID]map[foldKey]results.Fold{}, correct: map[cellID]map[instKey]bool{},
 		cells: map[cellID]int{}, variant: map[string]results.Variant{},
 	}
 	for _, v := range in.Variants {
@@ -138,20 +128,8 @@ func Analyse(in Input) (*results.Report, error) {
 	for i, s := range in.Summary {
 		a.cells[cellID{s.Dataset, s.Pipeline, s.Model}] = i
 	}
-	for _, f := range in.Folds {
-		id := cellID{f.Dataset, f.Pipeline, f.Model}
-		if a.folds[id] == nil {
-			a.folds[id] = map[foldKey]results.Fold{}
-		}
-		a.folds[id][foldKey{f.Repeat, f.Fold}] = f
-	}
-	for _, p := range in.Predictions {
-		id := cellID{p.Dataset, p.Pipeline, p.Model}
-		if a.correct[id] == nil {
-			a.correct[id] = map[instKey]bool{}
-		}
-		a.correct[id][instKey{p.Repeat, p.Row}] = p.Label == p.Predicted
-	}
+	a.folds = foldsByCell(in.Folds)
+	a.correct = correctByCell(in.Predictions)
 	rep := &results.Report{
 		Protocol: protocol(in.Name, in.Seed, in.CV),
 		Label:    in.Label,
@@ -206,8 +184,6 @@ func (a *analyser) rowsOf(dataset string) []int {
 	}
 	return out
 }
-
-func idOf(s results.Summary) cellID { return cellID{s.Dataset, s.Pipeline, s.Model} }
 
 // Tied reports whether two means are equal up to rounding (the tie rule
 // of bench/stats).

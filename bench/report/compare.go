@@ -196,27 +196,16 @@ type predKey struct{ repeat, fold, row int }
 
 func indexRun(r *results.Run) *runIndex {
 	x := &runIndex{
-		summary: map[cellID]int{}, folds: map[cellID]map[foldKey]results.Fold{},
-		inst: map[cellID][]predKey{}, correct: map[cellID]map[instKey]bool{},
+		summary: map[cellID]int{}, folds: foldsByCell(r.Folds),
+		inst: map[cellID][]predKey{}, correct: correctByCell(r.Predictions),
 		hasPred: r.Predictions != nil,
 	}
 	for i, s := range r.Summary {
 		x.summary[idOf(s)] = i
 	}
-	for _, f := range r.Folds {
-		id := cellID{f.Dataset, f.Pipeline, f.Model}
-		if x.folds[id] == nil {
-			x.folds[id] = map[foldKey]results.Fold{}
-		}
-		x.folds[id][foldKey{f.Repeat, f.Fold}] = f
-	}
 	for _, p := range r.Predictions {
 		id := cellID{p.Dataset, p.Pipeline, p.Model}
 		x.inst[id] = append(x.inst[id], predKey{p.Repeat, p.Fold, p.Row})
-		if x.correct[id] == nil {
-			x.correct[id] = map[instKey]bool{}
-		}
-		x.correct[id][instKey{p.Repeat, p.Row}] = p.Label == p.Predicted
 	}
 	for id := range x.inst {
 		slices.SortFunc(x.inst[id], func(a, b predKey) int {

@@ -94,7 +94,7 @@ func TestMergeRefuses(t *testing.T) {
 		{"missing middle", []string{dirs[0], dirs[2]}, []string{"missing shard(s) 2 of 3"}},
 		{"extra shard of another run", []string{dirs[0], dirs[1], dirs[2], other[1]}, []string{other[1], "different run", "seed 4, not 3"}},
 		{"same dir twice", []string{dirs[0], dirs[1], dirs[1], dirs[2]}, []string{dirs[1], "given twice"}},
-		{"copied shard", []string{dirs[0], dirs[1], dirs[2], copyDir(t, dirs[1], filepath.Join(base, "copy"))}, []string{"duplicate shards", "shard 2/3 in", filepath.Join(base, "copy")}},
+		{"copied shard", []string{dirs[0], dirs[1], dirs[2], benchtest.CopyDir(t, dirs[1], filepath.Join(base, "copy"))}, []string{"duplicate shards", "shard 2/3 in", filepath.Join(base, "copy")}},
 		{"other seed", []string{dirs[0], other[1], dirs[2]}, []string{other[1], "seed 4, not 3"}},
 		{"shard count", []string{dirs[0], four[1], dirs[2]}, []string{four[1], "shard 2/4", "shard 1/3", "different shard counts"}},
 		{"incomplete", []string{dirs[0], inc, dirs[2]}, []string{inc, "incomplete", "5 of its"}},
@@ -144,27 +144,4 @@ func TestMergeRefuses(t *testing.T) {
 	if _, err := Merge(sh); err == nil || !strings.Contains(err.Error(), "has changed") {
 		t.Errorf("changed data: %v, want a refusal", err)
 	}
-}
-
-// copyDir copies a directory tree (files only) and returns the copy.
-func copyDir(t *testing.T, from, to string) string {
-	t.Helper()
-	err := filepath.WalkDir(from, func(path string, d os.DirEntry, err error) error {
-		if err != nil {
-			return err
-		}
-		rel, _ := filepath.Rel(from, path)
-		if d.IsDir() {
-			return os.MkdirAll(filepath.Join(to, rel), 0o755)
-		}
-		b, err := os.ReadFile(path)
-		if err != nil {
-			return err
-		}
-		return os.WriteFile(filepath.Join(to, rel), b, 0o644)
-	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return to
 }

@@ -8,26 +8,17 @@ import (
 	"strings"
 	"testing"
 
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
 	"fringe/bench/report"
-	"fringe/bench/spec"
 	"fringe/results"
 )
-
-func mustSpec(t *testing.T, text string) *spec.Spec {
-	t.Helper()
-	s, err := spec.Parse("test.toml", []byte(text))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
 
 // TestWriteRunDirectory runs a small spec with 1 and 2 workers and checks
 // that every file but the manifest and timings is byte-identical,
 // figures included, and that the report files and figures exist.
 func TestWriteRunDirectory(t *testing.T) {
-	s := mustSpec(t, `
+	s := benchtest.Spec(t, "test.toml", `
 name = "small"
 seed = 5
 datasets = ["iris", "wine"]

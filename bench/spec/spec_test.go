@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"fringe/bench/input"
+	"fringe/bench/internal/benchtest"
 	"fringe/bench/plan"
 	"fringe/bench/spec"
 )
@@ -122,7 +123,7 @@ func TestParseSpecErrors(t *testing.T) {
 
 func TestSpecTestKeys(t *testing.T) {
 	base := "name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[cv]\n%s\n[[model]]\nkind = \"knn\"\n[[model]]\nkind = \"centroid\"\n"
-	ok := mustSpec(t, strings.Replace(base, "%s", "method = \"stratified\"\nfolds = 2\nrepeats = 5\ntest = \"5x2cv\"\nalpha = 0.1\nreference = \"centroid\"", 1))
+	ok := benchtest.Spec(t, "test.toml", strings.Replace(base, "%s", "method = \"stratified\"\nfolds = 2\nrepeats = 5\ntest = \"5x2cv\"\nalpha = 0.1\nreference = \"centroid\"", 1))
 	if ok.CV.Test != spec.Test5x2CV || ok.CV.Alpha != 0.1 || ok.CV.Reference != "centroid" {
 		t.Errorf("cv = %+v", ok.CV)
 	}
@@ -166,13 +167,4 @@ func TestCanonicalSpecSHA(t *testing.T) {
 			t.Errorf("%q: digest equals the original's", diff)
 		}
 	}
-}
-
-func mustSpec(t *testing.T, text string) *spec.Spec {
-	t.Helper()
-	s, err := spec.Parse("test.toml", []byte(text))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
 }

@@ -1,7 +1,10 @@
 package benchtest
 
 import (
+	"encoding/csv"
 	"errors"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -48,4 +51,53 @@ func CheckInputError(t testing.TB, err error) {
 	if msg := err.Error(); strings.Contains(msg, "\n") || msg == "" {
 		t.Fatalf("message is empty or spans lines: %q", msg)
 	}
+}
+
+// Spec parses src as the spec file named file, failing the test on error.
+func Spec(t testing.TB, file, src string) *spec.Spec {
+	t.Helper()
+	s, err := spec.Parse(file, []byte(src))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+// CopyDir copies the directory tree from into to (created as needed) and
+// returns to.
+func CopyDir(t testing.TB, from, to string) string {
+	t.Helper()
+	err := filepath.WalkDir(from, func(path string, d os.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		rel, _ := filepath.Rel(from, path)
+		if d.IsDir() {
+			return os.MkdirAll(filepath.Join(to, rel), 0o755)
+		}
+		b, err := os.ReadFile(path)
+		if err != nil {
+			return err
+		}
+		return os.WriteFile(filepath.Join(to, rel), b, 0o644)
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return to
+}
+
+// ReadCSV reads a whole CSV file, failing the test on error.
+func ReadCSV(t testing.TB, path string) [][]string {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	recs, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return recs
 }
