@@ -385,4 +385,3 @@ func BoxPlot(b Boxes) (*plot.Plot, error) {
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
 	return p, nil
 }
-
