@@ -1,6 +1,8 @@
 package results
 
 import (
+	"bytes"
+	"encoding/xml"
 	"fmt"
 	"image"
 	"image/color"
@@ -8,6 +10,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -31,6 +34,7 @@ type recorder struct {
 
 type drawnText struct {
 	text string
+	at   vg.Point // the baseline start on the canvas
 	q    quad
 }
 
@@ -88,7 +92,7 @@ func (r *recorder) FillString(f font.Face, pt vg.Point, txt string) {
 	for i, p := range local {
 		q[i] = r.m.apply(p)
 	}
-	r.texts = append(r.texts, drawnText{text: txt, q: q})
+	r.texts = append(r.texts, drawnText{text: txt, at: r.m.apply(pt), q: q})
 }
 
 // layoutOf draws f on a recorder and returns the text it drew.
@@ -181,10 +185,17 @@ func datasetNames(n int, long bool) []string {
 	return out
 }
 
+// layoutCase is a figure and texts it must show (a wrapped text counts
+// when its lines, joined, contain it).
+type layoutCase struct {
+	fig  Figure
+	want []string
+}
+
 // cdCases are rank tables of 2 to 14 models, short and long names, with
 // a small, a large and no finite critical difference.
-func cdCases(rng *rand.Rand) []Figure {
-	var figs []Figure
+func cdCases(rng *rand.Rand) []layoutCase {
+	var cases []layoutCase
 	for k := 2; k <= 14; k++ {
 		for _, long := range []bool{false, true} {
 			for _, cd := range []float64{0.4, float64(k) * 0.8, math.Inf(1)} {
@@ -197,21 +208,33 @@ func cdCases(rng *rand.Rand) []Figure {
 				if long {
 					title = "Average ranks, pipeline std+minmax+l2+pad+something-longer-still (123 datasets) with a title too long for one line"
 				}
-				p, h, err := CDDiagram(RankTable{Models: modelNames(k, long), AvgRanks: ranks, CD: cd, Alpha: 0.05}, title)
+				models := modelNames(k, long)
+				p, h, err := CDDiagram(RankTable{Models: models, AvgRanks: ranks, CD: cd, Alpha: 0.05}, title)
 				if err != nil {
 					panic(err)
 				}
-				figs = append(figs, Figure{Name: fmt.Sprintf("cd-k%d-long%v-cd%.3g", k, long, cd), Plot: p, Width: CDWidth, Height: h})
+				// The size of bench.ReportFigures' CD diagrams.
+				c := layoutCase{fig: Figure{Name: fmt.Sprintf("cd-k%d-long%v-cd%.3g", k, long, cd), Plot: p, Width: CDWidth, Height: h}}
+				c.want = append(c.want, title, "1")
+				for i, m := range models {
+					c.want = append(c.want, fmt.Sprintf("%s  %.2f", m, ranks[i]))
+				}
+				if !math.IsInf(cd, 0) {
+					c.want = append(c.want, fmt.Sprintf("CD = %.3f (α = 0.05)", cd))
+				}
+				cases = append(cases, c)
 			}
 		}
 	}
-	return figs
+	return cases
 }
 
-// sweepCase is a sweep of n datasets over xs.
-func sweepCase(rng *rand.Rand, name string, n int, long, logX bool, xs []float64, title string) Figure {
+// sweepCase is a sweep of n datasets over xs; it must show every
+// dataset, the first x value and the axis labels.
+func sweepCase(rng *rand.Rand, name string, n int, long, logX bool, xs []float64, title string) layoutCase {
 	var lines []SweepLine
-	for i, ds := range datasetNames(n, long) {
+	dss := datasetNames(n, long)
+	for i, ds := range dss {
 		l := SweepLine{Label: ds, Exact: 0.7 + 0.3*rng.Float64(), Baseline: 0.7 + 0.3*rng.Float64()}
 		if i%4 == 3 {
 			l.Exact = math.NaN()
@@ -234,10 +257,15 @@ func sweepCase(rng *rand.Rand, name string, n int, long, logX bool, xs []float64
 		panic(err)
 	}
 	// The size of bench.ReportFigures' sweeps.
-	return Figure{Name: name, Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true}
+	c := layoutCase{fig: Figure{Name: name, Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true}}
+	c.want = append(append(c.want, title, xl, "accuracy", "exact mode (dashed)", "best baseline (dotted)"), dss...)
+	if logX || len(xs) <= maxValueTicks {
+		c.want = append(c.want, tickLabel(xs[0])) // the first value is always labelled
+	}
+	return c
 }
 
-func sweepCases(rng *rand.Rand) []Figure {
+func sweepCases(rng *rand.Rand) []layoutCase {
 	pow := func(base float64, from, to int) []float64 {
 		var xs []float64
 		for e := from; e <= to; e++ {
@@ -247,7 +275,7 @@ func sweepCases(rng *rand.Rand) []Figure {
 	}
 	short := "Accuracy against shot budget, pipeline std+l2"
 	long := "Accuracy against global_depolarizing noise, pipeline std+minmax+l2+pad (interference-noisy-balanced-weights-variant) shots 512"
-	return []Figure{
+	return []layoutCase{
 		sweepCase(rng, "shots-4", 5, false, true, []float64{32, 128, 512, 2048}, short),
 		sweepCase(rng, "shots-1", 2, false, true, []float64{100}, short),
 		sweepCase(rng, "shots-pow2", 14, true, true, pow(2, 3, 20), long),
@@ -260,30 +288,34 @@ func sweepCases(rng *rand.Rand) []Figure {
 	}
 }
 
-func kernelCases() []Figure {
-	var figs []Figure
+func kernelCases() []layoutCase {
+	var cases []layoutCase
 	for _, n := range []int{0, 2, 14} {
 		var curves []KernelCurve
+		c := layoutCase{want: []string{"Kernel profile on unit vectors", "interference κ = 1 − d²/4"}}
 		for i, ds := range datasetNames(n, true) {
 			curves = append(curves, KernelCurve{Label: fmt.Sprintf("RBF γ = scale on %s (%.3g)", ds, 0.5+0.1*float64(i)), Gamma: 0.5 + 0.1*float64(i)})
+			c.want = append(c.want, curves[i].Label)
 		}
 		p, err := KernelProfile(curves)
 		if err != nil {
 			panic(err)
 		}
 		// The size of bench.Plan.KernelFigure.
-		figs = append(figs, Figure{Name: fmt.Sprintf("kernel-%d", n), Plot: p, Width: 6 * vg.Inch, Height: 4 * vg.Inch})
+		c.fig = Figure{Name: fmt.Sprintf("kernel-%d", n), Plot: p, Width: 6 * vg.Inch, Height: 4 * vg.Inch}
+		cases = append(cases, c)
 	}
-	return figs
+	return cases
 }
 
-func boxCases(rng *rand.Rand) []Figure {
-	var figs []Figure
+func boxCases(rng *rand.Rand) []layoutCase {
+	var cases []layoutCase
 	for _, n := range []int{1, 5, 14, 30} {
 		for _, long := range []bool{false, true} {
 			dss := datasetNames(n, long)
 			b := Boxes{Title: "Post-selection probability p_acc of " + modelNames(1, long)[0] + " per test instance", YLabel: "p_acc", Groups: dss}
-			for _, pipe := range []string{"pipeline std+l2", "pipeline l2", "pipeline std+lift"} {
+			pipes := []string{"pipeline std+l2", "pipeline l2", "pipeline std+lift"}
+			for _, pipe := range pipes {
 				s := BoxSeries{Label: pipe, Values: make([][]float64, n)}
 				for g := range s.Values {
 					for range 20 {
@@ -297,15 +329,17 @@ func boxCases(rng *rand.Rand) []Figure {
 				panic(err)
 			}
 			// The size of bench's p_acc figures.
-			figs = append(figs, Figure{Name: fmt.Sprintf("pacc-%d-long%v", n, long), Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true})
+			c := layoutCase{fig: Figure{Name: fmt.Sprintf("pacc-%d-long%v", n, long), Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true}}
+			c.want = append(append(append(c.want, b.Title, "p_acc"), dss...), pipes...)
+			cases = append(cases, c)
 		}
 	}
-	return figs
+	return cases
 }
 
 // assessCase is an assessment of n datasets under three pipelines with
 // invented scores: gaps in [−0.45, 0.02], median shots spread over
-// 10 … 1e12 (log-uniform), every 7th row without a finite budget.
+// 10 … 1e12, every 7th row without a finite budget.
 func assessCase(rng *rand.Rand, n int, long bool) *Assessment {
 	a := &Assessment{Ratio: 10}
 	pipes := []string{"std+l2", "l2", "std+lift"}
@@ -330,22 +364,47 @@ func assessCase(rng *rand.Rand, n int, long bool) *Assessment {
 	return a
 }
 
-func assessCases(rng *rand.Rand) []Figure {
-	var figs []Figure
+func assessCases(rng *rand.Rand) []layoutCase {
+	var cases []layoutCase
 	for _, c := range []struct {
 		n    int
 		long bool
 	}{{3, false}, {11, false}, {14, true}} {
-		fs, err := AssessFigures(assessCase(rng, c.n, c.long), func(s string) string { return s })
+		a := assessCase(rng, c.n, c.long)
+		fs, err := AssessFigures(a, func(s string) string { return s })
 		if err != nil {
 			panic(err)
 		}
 		for _, f := range fs {
-			f.Name = fmt.Sprintf("%s-n%d-long%v", f.Name, c.n, c.long)
-			figs = append(figs, f)
+			lc := layoutCase{fig: f}
+			if f.Name == "figures/assess-cost-gain" {
+				// Every point with a finite budget is labelled.
+				for _, r := range a.Rows {
+					if !math.IsInf(r.ShotsMedian, 0) {
+						lc.want = append(lc.want, r.Dataset)
+					} else {
+						lc.want = append(lc.want, r.Dataset+"/"+r.Pipeline)
+					}
+				}
+				lc.want = append(lc.want, "std+l2", "l2", "std+lift")
+			}
+			lc.fig.Name = fmt.Sprintf("%s-n%d-long%v", f.Name, c.n, c.long)
+			cases = append(cases, lc)
 		}
 	}
-	return figs
+	return cases
+}
+
+// layoutCases are all the scenarios of the layout tests.
+func layoutCases() []layoutCase {
+	rng := rand.New(rand.NewPCG(14, 1))
+	var cases []layoutCase
+	cases = append(cases, cdCases(rng)...)
+	cases = append(cases, sweepCases(rng)...)
+	cases = append(cases, kernelCases()...)
+	cases = append(cases, boxCases(rng)...)
+	cases = append(cases, assessCases(rng)...)
+	return cases
 }
 
 // TestFigureLayout draws every kind of figure at the sizes the bench
@@ -353,22 +412,14 @@ func assessCases(rng *rand.Rand) []Figure {
 // recorder, and requires that no text box crosses another or the edge of
 // the canvas, and that the texts a reader needs are drawn.
 func TestFigureLayout(t *testing.T) {
-	rng := rand.New(rand.NewPCG(14, 1))
-	var figs []Figure
-	figs = append(figs, cdCases(rng)...)
-	figs = append(figs, sweepCases(rng)...)
-	figs = append(figs, kernelCases()...)
-	figs = append(figs, boxCases(rng)...)
-	figs = append(figs, assessCases(rng)...)
 	keep := os.Getenv("FRINGE_KEEP_FIGURES") // a directory to look at the figures
-	for _, f := range figs {
+	for _, c := range layoutCases() {
+		f := c.fig
 		texts := layoutOf(f)
-		if len(texts) == 0 {
-			t.Errorf("%s: no text drawn", f.Name)
-		}
 		for _, p := range layoutProblems(f, texts) {
 			t.Errorf("%s: %s", f.Name, p)
 		}
+		wantTexts(t, f.Name, texts, c.want...)
 		if keep != "" {
 			b, err := f.Render("png")
 			if err != nil {
@@ -378,5 +429,169 @@ func TestFigureLayout(t *testing.T) {
 				t.Fatal(err)
 			}
 		}
+	}
+}
+
+// svgTexts reads the text elements of an SVG written by vgsvg: their
+// strings and their positions on the canvas (y up, as the recorder
+// reports them), through the transforms of the enclosing groups.
+func svgTexts(b []byte, height vg.Length) ([]drawnText, error) {
+	dec := xml.NewDecoder(bytes.NewReader(b))
+	stack := []affine{identity}
+	var out []drawnText
+	var cur *drawnText
+	for {
+		tok, err := dec.Token()
+		if err != nil {
+			if err.Error() == "EOF" {
+				return out, nil
+			}
+			return nil, err
+		}
+		switch el := tok.(type) {
+		case xml.StartElement:
+			m := stack[len(stack)-1]
+			var x, y float64
+			for _, a := range el.Attr {
+				switch a.Name.Local {
+				case "transform":
+					tr, err := parseTransform(a.Value)
+					if err != nil {
+						return nil, err
+					}
+					m = m.then(tr)
+				case "x":
+					x, _ = strconv.ParseFloat(a.Value, 64)
+				case "y":
+					y, _ = strconv.ParseFloat(a.Value, 64)
+				}
+			}
+			if el.Name.Local == "text" {
+				p := m.apply(vg.Point{X: vg.Length(x), Y: vg.Length(y)})
+				out = append(out, drawnText{at: vg.Point{X: p.X, Y: height - p.Y}})
+				cur = &out[len(out)-1]
+			}
+			stack = append(stack, m)
+		case xml.CharData:
+			if cur != nil {
+				cur.text += string(el)
+			}
+		case xml.EndElement:
+			stack = stack[:len(stack)-1]
+			cur = nil
+		}
+	}
+}
+
+// parseTransform reads an SVG transform list of translate, scale and
+// rotate (degrees), composed left to right as SVG does.
+func parseTransform(s string) (affine, error) {
+	m := identity
+	for s = strings.TrimSpace(s); s != ""; s = strings.TrimSpace(s) {
+		open, end := strings.IndexByte(s, '('), strings.IndexByte(s, ')')
+		if open < 0 || end < open {
+			return m, fmt.Errorf("transform %q", s)
+		}
+		name := strings.TrimSpace(s[:open])
+		var args []float64
+		for _, f := range strings.FieldsFunc(s[open+1:end], func(r rune) bool { return r == ',' || r == ' ' }) {
+			v, err := strconv.ParseFloat(f, 64)
+			if err != nil {
+				return m, fmt.Errorf("transform %q: %w", s, err)
+			}
+			args = append(args, v)
+		}
+		for len(args) < 2 {
+			args = append(args, args[0]) // scale(s) is scale(s, s); translate(x) is never written
+		}
+		switch name {
+		case "translate":
+			m = m.then(affine{a: 1, d: 1, e: args[0], f: args[1]})
+		case "scale":
+			m = m.then(affine{a: args[0], d: args[1]})
+		case "rotate":
+			sn, cs := math.Sincos(args[0] * math.Pi / 180)
+			m = m.then(affine{a: cs, b: sn, c: -sn, d: cs})
+		default:
+			return m, fmt.Errorf("transform %q: unknown %s", s, name)
+		}
+		s = s[end+1:]
+	}
+	return m, nil
+}
+
+// TestRecorderMatchesSVG checks the recorder against an independent
+// reading of the same drawing: the SVG backend's text elements, placed
+// through the SVG's own group transforms, must be the recorded texts in
+// the same order at the same baseline points (within 0.02 pt: vgsvg
+// writes coordinates with 5 significant digits, so rounding moves a
+// point of a 600 pt canvas by up to 0.005 pt per coordinate, and a
+// rotated label's position by a few times that).
+func TestRecorderMatchesSVG(t *testing.T) {
+	cases := layoutCases()
+	for i, c := range cases {
+		if i%4 != 0 && !strings.Contains(c.fig.Name, "long") {
+			continue // a quarter of the short-name cases, every long one
+		}
+		b, err := c.fig.Render("svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := svgTexts(b, c.fig.Height)
+		if err != nil {
+			t.Fatalf("%s.svg: %v", c.fig.Name, err)
+		}
+		rec := layoutOf(c.fig)
+		if len(got) != len(rec) {
+			t.Errorf("%s: %d texts in the SVG, %d recorded", c.fig.Name, len(got), len(rec))
+			continue
+		}
+		for j := range rec {
+			d := got[j].at.Sub(rec[j].at)
+			if got[j].text != rec[j].text || math.Hypot(float64(d.X), float64(d.Y)) > 0.02 {
+				t.Errorf("%s: text %d: SVG %q at %v, recorded %q at %v", c.fig.Name, j, got[j].text, got[j].at, rec[j].text, rec[j].at)
+			}
+		}
+	}
+}
+
+// TestLayoutProblemsFound checks that the layout check finds what it must:
+// a plot drawn by gonum/plot alone puts its title above the top edge, and
+// two labels drawn at one point overlap.
+func TestLayoutProblemsFound(t *testing.T) {
+	p, err := SweepPlot(Sweep{Title: "a title", XLabel: "x", YLabel: "y", LogX: true, Lines: []SweepLine{
+		{Label: "a", X: []float64{32, 128}, Mean: []float64{0.5, 0.6}, Lo: []float64{0.4, 0.5}, Hi: []float64{0.6, 0.7}, Exact: math.NaN(), Baseline: math.NaN()}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := Figure{Name: "raw", Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch}
+	rec := newRecorder(f.Width, f.Height)
+	p.Draw(draw.New(rec))
+	probs := layoutProblems(f, rec.texts)
+	if len(probs) == 0 || !strings.Contains(probs[0], `"a title"`) || !strings.Contains(probs[0], "edge") {
+		t.Errorf("title of a plain gonum plot: problems %q, want the title crossing the edge", probs)
+	}
+	// text.Plain.Draw puts the baseline of a one-line YTop text at
+	// y − 2·Ascent − Descent + Size for the point y it is given, and
+	// Plot.Draw gives the title y = top + Descent: its box ends
+	// Size − Ascent above the top (derived by hand from those two
+	// methods). 11 pt Liberation Serif has Ascent 9.80224609375 pt
+	// (font.Face.Extents, printed by hand), so 1.19775390625 pt; the
+	// tolerance is float rounding.
+	for _, x := range rec.texts {
+		if x.text == "a title" {
+			if top := x.q.bounds().Max.Y - f.Height; math.Abs(float64(top)-1.19775390625) > 1e-6 {
+				t.Errorf("title top %v pt above the edge, want 1.19775390625", top)
+			}
+		}
+	}
+
+	rec = newRecorder(100, 100)
+	c := draw.New(rec)
+	sty := p.X.Tick.Label
+	putText(c, sty, vg.Point{X: 50, Y: 50}, 0.5, 0.5, "left")
+	putText(c, sty, vg.Point{X: 52, Y: 51}, 0.5, 0.5, "right")
+	if probs := layoutProblems(Figure{Width: 100, Height: 100}, rec.texts); len(probs) != 1 || !strings.Contains(probs[0], "overlap") {
+		t.Errorf("two labels at one point: problems %q, want one overlap", probs)
 	}
 }

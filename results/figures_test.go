@@ -6,6 +6,7 @@ import (
 	"image/png"
 	"io"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -55,6 +56,27 @@ func buildTestFigures() ([]Figure, error) {
 		return nil, err
 	}
 	figs = append(figs, Figure{Name: "boxes", Plot: bp, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true})
+	// Crowded cases of the layout test: a CD diagram of 14 models with
+	// wrapped names, and two figures of an assessment (the cost-gain map
+	// with its placed labels, the p_acc boxes with turned category labels).
+	rng := rand.New(rand.NewPCG(14, 2))
+	ranks := make([]float64, 14)
+	for i := range ranks {
+		ranks[i] = 1 + 13*rng.Float64()
+	}
+	cd14, h14, err := CDDiagram(RankTable{Models: modelNames(14, true), AvgRanks: ranks, CD: 4.9, Alpha: 0.05}, "ranks of 14")
+	if err != nil {
+		return nil, err
+	}
+	figs = append(figs, Figure{Name: "cd14", Plot: cd14, Width: CDWidth, Height: h14})
+	as, err := AssessFigures(assessCase(rng, 11, true), func(s string) string { return s })
+	if err != nil {
+		return nil, err
+	}
+	for _, f := range as[:2] { // cost-gain and p_acc
+		f.Name = strings.TrimPrefix(f.Name, "figures/")
+		figs = append(figs, f)
+	}
 	return figs, nil
 }
 
