@@ -239,14 +239,30 @@ func decadeRange(lo, hi *float64) {
 }
 
 // decadeTicks marks a log axis at powers of ten, labelled at most seven
-// times (every k-th decade), written 1, 10, ..., 10000 and 1e5, 1e-3.
+// times (every k-th decade from the first within the range), written
+// 1, 10, ..., 10000 and 1e5, 1e-3.
 type decadeTicks struct{}
 
 func (decadeTicks) Ticks(min, max float64) []plot.Tick {
 	if !(min > 0) || !(max > min) {
 		return nil
 	}
-	lo, hi := int(math.Floor(math.Log10(min))), int(math.Ceil(math.Log10(max)))
+	// From the first decade within the range, so that it is labelled.
+	lo, hi := int(math.Ceil(math.Log10(min)-1e-9)), int(math.Floor(math.Log10(max)+1e-9))
+	if hi < lo {
+		// No power of ten within the range: 1, 2, 3 and 5 times one
+		// (neighbours at most a factor 2 apart, so a range of a factor
+		// 2 or more gets one).
+		var ticks []plot.Tick
+		for e := lo - 1; e <= lo; e++ {
+			for _, m := range []float64{1, 2, 3, 5} {
+				if v := m * math.Pow(10, float64(e)); v >= min*(1-1e-9) && v <= max*(1+1e-9) {
+					ticks = append(ticks, plot.Tick{Value: v, Label: tickLabel(v)})
+				}
+			}
+		}
+		return ticks
+	}
 	step := max1((hi-lo+6)/7, 1)
 	var ticks []plot.Tick
 	for e := lo; e <= hi; e++ {

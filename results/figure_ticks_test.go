@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 )
 
@@ -92,6 +93,33 @@ func TestCDTicks(t *testing.T) {
 			if g := cdLayout(tab, tab.Groups(), 150); g.step < 2 {
 				t.Errorf("k = 14 at 150 pt: tick labels every %d ranks, want 2 or more", g.step)
 			}
+		}
+	}
+}
+
+func TestDecadeTicksRanges(t *testing.T) {
+	labelled := func(ts []plot.Tick) (out []string) {
+		for _, tk := range ts {
+			if tk.Label != "" {
+				out = append(out, tk.Label)
+			}
+		}
+		return out
+	}
+	for _, c := range []struct {
+		min, max float64
+		want     []string
+	}{
+		{1, 10000, []string{"1", "10", "100", "1000", "10000"}},
+		// The first decade in the range is labelled (5 is not a decade).
+		{5, 2e12, []string{"10", "1000", "1e5", "1e7", "1e9", "1e11"}},
+		{1e-6, 0.1, []string{"1e-6", "1e-5", "1e-4", "1e-3", "0.01", "0.1"}},
+		// No power of ten inside: 1, 2, 3, 5 times one.
+		{20, 45, []string{"20", "30"}},
+		{0.25, 0.6, []string{"0.3", "0.5"}},
+	} {
+		if got := labelled(decadeTicks{}.Ticks(c.min, c.max)); !slices.Equal(got, c.want) {
+			t.Errorf("decadeTicks [%v, %v]: labels %q, want %q", c.min, c.max, got, c.want)
 		}
 	}
 }

@@ -46,9 +46,13 @@ var pdfDefaults sync.Once
 // pdfEpoch is the fixed creation date written into every PDF figure.
 var pdfEpoch = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
 
-// Render draws the figure in one of FigureFormats. SVG and PNG output is
-// byte-identical for identical figures; so is PDF, whose creation date is
-// fixed (pdfEpoch) and whose catalogues are sorted.
+// Render draws the figure in one of FigureFormats, laid out as described
+// in figure_layout.go (margins, fitted title and axis labels, legend,
+// tick labels that do not collide). It never modifies f.Plot, so a
+// figure may be rendered any number of times and figures concurrently.
+// SVG and PNG output is byte-identical for identical figures; so is PDF,
+// whose creation date is fixed (pdfEpoch) and whose catalogues are
+// sorted.
 func (f Figure) Render(format string) ([]byte, error) {
 	if f.Plot == nil {
 		return nil, errors.New("results: figure " + f.Name + " has no plot")
