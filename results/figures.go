@@ -26,6 +26,18 @@ var FigureFormats = []string{"svg", "pdf", "png"}
 const PNGDPI = 150
 
 // Figure is a plot to be written as Name.svg, Name.pdf and Name.png.
+//
+// Render lays it out itself around gonum/plot's drawing: a blank margin
+// of 6 pt; the title fitted to the width (shrunk by at most 15 %, else
+// wrapped) with 6 pt below it; the axis labels fitted likewise and
+// centred on the data area; with LegendRight a legend strip level with
+// the top of the data area (its font shrinks, down to 6 pt, when it would
+// take over 40 % of the width or not fit the height), else the legend in
+// the data area on a white box; and the x tick labels fitted: sweep axes
+// label every value used unless neighbours would collide (then every
+// s-th, from the first), category labels turn by 30°, 45°, 60° or 90° as
+// their spacing needs. No two text boxes overlap and none leaves the
+// canvas at the sizes the bench uses (TestFigureLayout).
 type Figure struct {
 	Name          string // path relative to the run directory, without extension
 	Caption       string // one line, plain text
@@ -47,9 +59,8 @@ var pdfDefaults sync.Once
 var pdfEpoch = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
 
 // Render draws the figure in one of FigureFormats, laid out as described
-// in figure_layout.go (margins, fitted title and axis labels, legend,
-// tick labels that do not collide). It never modifies f.Plot, so a
-// figure may be rendered any number of times and figures concurrently.
+// at Figure. It never modifies f.Plot, so a figure may be rendered any
+// number of times, and from several goroutines at once.
 // SVG and PNG output is byte-identical for identical figures; so is PDF,
 // whose creation date is fixed (pdfEpoch) and whose catalogues are
 // sorted.

@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 
 	"gonum.org/v1/plot/vg"
@@ -191,5 +192,34 @@ func BenchmarkRender(b *testing.B) {
 			}
 			b.ReportMetric(float64(b.Elapsed().Seconds())/float64(b.N*len(figs))*1e3, "ms/figure")
 		})
+	}
+}
+
+// TestRenderConcurrent renders each figure from several goroutines at
+// once (the bench layer renders figures concurrently); under -race it
+// checks that the layout does not write to the shared plot, and the
+// bytes must be those of a lone rendering.
+func TestRenderConcurrent(t *testing.T) {
+	figs := testFigures(t)
+	for _, f := range figs {
+		want, err := f.Render("svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := make([][]byte, 4)
+		var wg sync.WaitGroup
+		for i := range got {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				got[i], _ = f.Render("svg")
+			}()
+		}
+		wg.Wait()
+		for i := range got {
+			if !bytes.Equal(got[i], want) {
+				t.Errorf("%s: concurrent rendering %d differs", f.Name, i)
+			}
+		}
 	}
 }
