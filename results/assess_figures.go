@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"math"
 	"strconv"
-	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -173,7 +172,22 @@ func costGainPlot(a *Assessment) (*plot.Plot, error) {
 	span := math.Max(ymax-ymin, 0.05)
 	p.Y.Min, p.Y.Max = ymin-0.08*span, ymax+0.12*span
 	if len(left) > 0 {
-		p.Title.Text += "\nnot shown (no finite budget): " + strings.Join(left, ", ")
+		// At most about two lines of names; the rest are counted.
+		shown, n := "", 0
+		for n < len(left) && len(shown)+len(left[n]) <= 150 {
+			if n > 0 {
+				shown += ", "
+			}
+			shown += left[n]
+			n++
+		}
+		if n == 0 {
+			shown, n = left[0], 1
+		}
+		if n < len(left) {
+			shown += fmt.Sprintf(" and %d more (shots_median inf in assess.csv)", len(left)-n)
+		}
+		p.Title.Text += "\nnot shown (no finite budget): " + shown
 	}
 	return p, nil
 }
