@@ -43,7 +43,7 @@ const (
 	legendGap  = vg.Length(10) // between the plot and a legend strip
 	tickGap    = vg.Length(3)  // least distance between two tick labels
 	minLegend  = vg.Length(6)  // smallest legend font size
-	titleBlock = 0.85          // smallest title and axis label size, relative
+	minShrink = 0.85          // smallest title and axis label size, relative
 )
 
 // draw lays the figure out on c (see the layout notes above).
@@ -90,11 +90,11 @@ func (f Figure) draw(dc draw.Canvas) {
 	inner := plotC
 	var xb, yb textBlock
 	if xl.Text != "" {
-		xb = fitText(xl.TextStyle, xl.Text, plotC.Size().X, titleBlock)
+		xb = fitText(xl.TextStyle, xl.Text, plotC.Size().X, minShrink)
 		inner.Min.Y += xb.height() + labelGap
 	}
 	if yl.Text != "" {
-		yb = fitText(yl.TextStyle, yl.Text, inner.Size().Y, titleBlock)
+		yb = fitText(yl.TextStyle, yl.Text, inner.Size().Y, minShrink)
 		yb.sty.Rotation = math.Pi / 2
 		inner.Min.X += yb.height() + labelGap
 	}
@@ -194,7 +194,7 @@ func drawLegendInside(data draw.Canvas, leg plot.Legend) {
 // titleLayout fits a title to the width of a figure's canvas inside the
 // margins.
 func titleLayout(sty text.Style, s string, width vg.Length) textBlock {
-	return fitText(sty, s, width, titleBlock)
+	return fitText(sty, s, width, minShrink)
 }
 
 // drawBlock draws the lines of b centred on cx (moved so that the widest

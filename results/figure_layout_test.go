@@ -608,3 +608,32 @@ func TestLayoutProblemsFound(t *testing.T) {
 		t.Errorf("two labels at one point: problems %q, want one overlap", probs)
 	}
 }
+
+// BenchmarkLayout measures the layout's cost against gonum/plot drawing
+// the same plots by itself, both on a recorder (no output format), in
+// one run: the ratio of the two is the overhead of fitting titles,
+// labels and ticks.
+func BenchmarkLayout(b *testing.B) {
+	figs, err := buildTestFigures()
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Run("draw=gonum", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			for _, f := range figs {
+				f.Plot.Draw(draw.New(newRecorder(f.Width, f.Height)))
+			}
+		}
+		b.ReportMetric(b.Elapsed().Seconds()/float64(b.N*len(figs))*1e3, "ms/figure")
+	})
+	b.Run("draw=layout", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			for _, f := range figs {
+				f.draw(draw.New(newRecorder(f.Width, f.Height)))
+			}
+		}
+		b.ReportMetric(b.Elapsed().Seconds()/float64(b.N*len(figs))*1e3, "ms/figure")
+	})
+}
