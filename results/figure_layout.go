@@ -37,12 +37,12 @@ import (
 // shallow copy, so one figure can be rendered any number of times, and
 // different figures concurrently.
 const (
-	figMargin  = vg.Length(6)  // blank border of every figure, points
-	titleGap   = vg.Length(6)  // between the title and the plot
-	labelGap   = vg.Length(3)  // between an axis label and its tick labels
-	legendGap  = vg.Length(10) // between the plot and a legend strip
-	tickGap    = vg.Length(3)  // least distance between two tick labels
-	minLegend  = vg.Length(6)  // smallest legend font size
+	figMargin = vg.Length(6)  // blank border of every figure, points
+	titleGap  = vg.Length(6)  // between the title and the plot
+	labelGap  = vg.Length(3)  // between an axis label and its tick labels
+	legendGap = vg.Length(10) // between the plot and a legend strip
+	tickGap   = vg.Length(3)  // least distance between two tick labels
+	minLegend = vg.Length(6)  // smallest legend font size
 	minShrink = 0.85          // smallest title and axis label size, relative
 )
 
