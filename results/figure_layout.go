@@ -31,7 +31,11 @@ import (
 //     would collide, only every s-th from the first keeps its label, for
 //     the smallest s that keeps them apart (the ticks stay), category labels
 //     (NominalX) are turned by 30°, 45°, 60° or 90° until neighbours are
-//     apart, and shrunk at 90° if they still collide.
+//     apart, and shrunk at 90° if they still collide; the plot moves right
+//     when the first tick label would reach past the y label (gonum pads
+//     the data area on the left for plotter glyphs only);
+//   - without LegendRight, the legend where gonum would put it, on a white
+//     box with a thin border.
 //
 // The plot passed to Figure is never modified: the layout works on a
 // shallow copy, so one figure can be rendered any number of times, and
