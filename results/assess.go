@@ -369,7 +369,7 @@ func WriteAssessTeX(w io.Writer, a *Assessment) error {
 		r := a.Rows[i]
 		exact := "--"
 		if !math.IsNaN(r.Exact.Mean) {
-			exact = texCell(r.Exact, MarkNone, SpreadInterval, 3)
+			exact = texCell(r.Exact, MarkNone, 3)
 		}
 		fmt.Fprintf(&b, "%d & %d & %s & %s & %s & %s %s & %s & %s & %s & %d & %s \\\\\n",
 			r.Rank, r.Front, TeXEscape(r.Dataset), TeXEscape(r.Pipeline), exact, TeXEscape(r.Baseline), texF3(r.BaselineAcc.Mean),
