@@ -90,7 +90,7 @@ func TestReportTeX(t *testing.T) {
 		// Numbers in dcolumn columns: bold digits on both sides of the point.
 		`D{.}{.}{1.4}@{}>{${}}l<{$}`,
 		`& knn & \mathbf{0}.\mathbf{950} & \hphantom{{}^{\dagger}}\pm 0.050`, // best: bold mean, symmetric interval
-		`& svm \& co & 0.940 & {}^{\dagger}\pm 0.050`,                      // not significantly worse
+		`& svm \& co & 0.940 & {}^{\dagger}\pm 0.050`,                        // not significantly worse
 		`\multicolumn{8}{@{}l@{}}{\emph{iris\_2}} \\*`,
 		`std+l2 & q & \mathbf{0}.\mathbf{970} & \hphantom{{}^{\dagger}}\pm 0.030`, // wine q: [0.94, 1] around 0.97
 		`& q-depol & global\_depolarizing 0.05 &`,
