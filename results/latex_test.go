@@ -599,3 +599,50 @@ func TestTeXWidthsAgainstPdflatex(t *testing.T) {
 		}
 	}
 }
+
+// TestCheckLatexScript runs scripts/check-latex.sh on the fixtures in
+// testdata/latex (a clean table, one 2 pt too wide, one 0.5 pt too wide,
+// a float taller than the page) and on a standalone summary, and checks
+// that it passes and fails them as latexLogProblems judges the same logs.
+// Skipped without bash or pdflatex and under -short.
+func TestCheckLatexScript(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs pdflatex")
+	}
+	bash, err := exec.LookPath("bash")
+	if err != nil {
+		t.Skip("bash not installed")
+	}
+	if _, err := exec.LookPath("pdflatex"); err != nil {
+		t.Skip("pdflatex not installed")
+	}
+	dir := t.TempDir()
+	r := synthReport()
+	if err := os.WriteFile(filepath.Join(dir, "summary.tex"), []byte(mustTeX(t, r).Text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "summary-standalone.tex"), []byte(StandaloneTeX(r, "summary.tex")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		file string
+		ok   bool
+		say  string
+	}{
+		{filepath.Join("testdata", "latex", "clean.tex"), true, "no overfull box over 1 pt"},
+		{filepath.Join("testdata", "latex", "slightly-overfull.tex"), true, "no overfull box over 1 pt"},
+		{filepath.Join("testdata", "latex", "overfull.tex"), false, `Overfull \hbox (2.0`},
+		{filepath.Join("testdata", "latex", "float-too-large.tex"), false, "Float too large for page by 50.0pt"},
+		{filepath.Join(dir, "summary-standalone.tex"), true, "no float too large"},
+	} {
+		out, err := exec.Command(bash, filepath.Join("..", "scripts", "check-latex.sh"), c.file).CombinedOutput()
+		if (err == nil) != c.ok || !strings.Contains(string(out), c.say) {
+			t.Errorf("check-latex.sh %s: err %v, output:\n%s", c.file, err, out)
+		}
+	}
+	// The Go parser agrees with the script on the same kind of log lines.
+	log := "Overfull \\hbox (2.00002pt too wide) in paragraph at lines 4--7\nOverfull \\hbox (0.5pt too wide) in paragraph\nLaTeX Warning: Float too large for page by 50.0pt on input line 5.\n"
+	if got := latexLogProblems(log); len(got) != 2 {
+		t.Errorf("latexLogProblems = %q, want the 2 pt box and the float", got)
+	}
+}

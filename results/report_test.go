@@ -205,13 +205,13 @@ func TestWriteComparisons(t *testing.T) {
 
 func TestRankWriters(t *testing.T) {
 	rt := RankTable{Metric: "score", Models: []string{"a", "b", "c"}, Datasets: []string{"x", "y", "z"},
-		AvgRanks: []float64{2.5, 1, 2.5}, ChiSq: 4.667, ChiSqP: 0.097, DF: 2, F: math.Inf(1), DF1: 2, DF2: 4, P: 0, Alpha: 0.1, Reject: true, CD: 1.5,
+		AvgRanks: []float64{2.5, 1, 2.5}, ChiSq: 4.667, ChiSqP: 0.097, ChiSqTieCorrected: 5.6, ChiSqTieCorrectedP: 0.061, DF: 2, F: math.Inf(1), DF1: 2, DF2: 4, P: 0, Alpha: 0.1, Reject: true, CD: 1.5,
 		Warnings: []string{"ties within 1 data sets (indices 0)"}}
 	var b bytes.Buffer
 	if err := WriteRankText(&b, rt); err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"1     b      1.000", "Iman-Davenport F        ∞", "(data set indices: 0 = x, 1 = y, 2 = z)", "b, a, c"} {
+	for _, want := range []string{"1     b      1.000", "Iman-Davenport F        ∞", "tie-corrected         5.600  (df 2, p = 0.0610; the F below uses it)", "(data set indices: 0 = x, 1 = y, 2 = z)", "b, a, c"} {
 		if !strings.Contains(b.String(), want) {
 			t.Errorf("rank text lacks %q:\n%s", want, b.String())
 		}
@@ -224,13 +224,22 @@ func TestRankWriters(t *testing.T) {
 	if err := json.Unmarshal(b.Bytes(), &j); err != nil {
 		t.Fatalf("rank JSON does not parse: %v\n%s", err, b.String())
 	}
-	for _, k := range []string{"avg_ranks", "friedman_chi2", "iman_davenport_f", "p_value", "critical_difference"} {
+	for _, k := range []string{"avg_ranks", "friedman_chi2", "friedman_chi2_tie_corrected", "p_value_chi2_tie_corrected", "iman_davenport_f", "p_value", "critical_difference"} {
 		if _, ok := j[k]; !ok {
 			t.Errorf("rank JSON lacks %q", k)
 		}
 	}
 	if r := j["avg_ranks"].(map[string]any)["b"].(float64); r != 1 {
 		t.Errorf("avg_ranks.b = %v", r)
+	}
+	// Every dataset tied: no tie-corrected statistic, written as null.
+	rt.ChiSqTieCorrected, rt.ChiSqTieCorrectedP = math.NaN(), math.NaN()
+	b.Reset()
+	if err := WriteRankJSON(&b, rt); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), `"friedman_chi2_tie_corrected": null`) {
+		t.Errorf("NaN tie-corrected chi-square not null:\n%s", b.String())
 	}
 }
 
