@@ -646,3 +646,40 @@ func TestCheckLatexScript(t *testing.T) {
 		t.Errorf("latexLogProblems = %q, want the 2 pt box and the float", got)
 	}
 }
+
+func TestReportTeXLongTableAndOmit(t *testing.T) {
+	r := synthReport()
+	r.Options.LongTable = 5
+	tex := mustTeX(t, r)
+	if !tex.Tables[0].LongTable || !strings.Contains(tex.Text, `\begin{longtable}`) || !strings.Contains(tex.Text, `\caption[]{(continued)}`) {
+		t.Errorf("10 summary rows over a threshold of 5 should be a longtable: %+v", tex.Tables[0])
+	}
+	r.Options.Layout = LayoutColumn
+	tex = mustTeX(t, r)
+	if tex.Tables[0].LongTable || tex.Tables[0].Parts < 2 || strings.Contains(tex.Text, `\begin{longtable}`) {
+		t.Errorf("two-column layout: want the summary split into floats, got %+v", tex.Tables[0])
+	}
+	if !strings.Contains(tex.Text, `continued (part 2 of`) || !strings.Contains(tex.Text, `\emph{iris\_2} (continued)`) {
+		t.Errorf("continuation parts lack their captions or group headers:\n%s", tex.Text)
+	}
+	omit, err := ParseReportTables([]string{"modes", "tests", "ranks", "wilcoxon"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r.Options = ReportOptions{Omit: omit}
+	tex = mustTeX(t, r)
+	if len(tex.Tables) != 1 || strings.Contains(tex.Text, "modes") {
+		t.Errorf("omitted tables written: %+v", tex.Tables)
+	}
+	if _, err := ParseReportTables([]string{"everything"}); err == nil {
+		t.Error("unknown table name accepted")
+	}
+	for _, s := range []string{"page", "column", "wide", "table*", "landscape"} {
+		if _, err := ParseTableLayout(s); err != nil {
+			t.Errorf("layout %q: %v", s, err)
+		}
+	}
+	if _, err := ParseSplitRule("sometimes"); err == nil {
+		t.Error("unknown split rule accepted")
+	}
+}

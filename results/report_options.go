@@ -175,8 +175,9 @@ type ReportOptions struct {
 	// width); 0 takes the layout's value for the standard article class.
 	Width, Height float64
 	// LongTable is the number of body rows above which a table runs over
-	// pages (a longtable, or several floats with LayoutColumn and
-	// LayoutWide); 0 means as many rows as fit Height.
+	// pages (a longtable, or several floats of at most LongTable rows with
+	// LayoutColumn and LayoutWide); 0 means as many rows as fit Height. A
+	// table taller than Height always runs over pages.
 	LongTable int
 	// Split: see SplitRule.
 	Split SplitRule

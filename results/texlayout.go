@@ -666,10 +666,7 @@ func (t *ttable) emit(b *strings.Builder, opt ReportOptions, warn *[]string) TeX
 		*warn = append(*warn, fmt.Sprintf("table %s is about %.0f pt wide, wider than the %.0f pt available: shorten the model labels (report labels), show fewer columns, or choose the wide or landscape layout", t.key, l.total, width))
 	}
 	capW := width
-	tooLong := t.height(l, capW) > 0.97*height
-	if opt.LongTable > 0 {
-		tooLong = len(t.rows) > opt.LongTable
-	}
+	tooLong := t.height(l, capW) > 0.97*height || (opt.LongTable > 0 && len(t.rows) > opt.LongTable)
 	env := "table"
 	if opt.Layout == LayoutWide {
 		env = "table*"
