@@ -192,6 +192,10 @@ func WriteReportTeX(w io.Writer, r *Report) error {
 	return err
 }
 
+// StandaloneName is the file name of the standalone wrapper of
+// summary.tex in a run directory.
+const StandaloneName = "summary-standalone.tex"
+
 // StandaloneTeX returns summary-standalone.tex: a document of the
 // standard article class (two-column for the column and wide layouts;
 // text width and height set by geometry when r.Options gives its own)

@@ -71,10 +71,11 @@
 //
 // With one test instance per split (n_test = 1) the per-split scores of an
 // accuracy are 0 or 1 and the corrected t interval is not meaningful.
-// CorrectedIntervalSizes and CorrectedPairedTSizes still apply their formula — they
-// never switch method on their own — and add a warning; the caller
-// chooses the replacement: Wilson on the pooled count of correct
-// predictions for one model, McNemar on the pooled predictions for two.
+// CorrectedIntervalSizes and CorrectedPairedTSizes still apply their
+// formula — they never switch method on their own — and add a warning;
+// the caller chooses the replacement: Wilson on the pooled count of
+// correct predictions for one model, McNemar on the pooled predictions
+// for two.
 //
 // # Errors, NaN and panics
 //
