@@ -113,12 +113,23 @@ func (r row) errAt(col string, format string, args ...any) error {
 	return &ParseError{File: r.t.file, Line: line, Column: column, Err: fmt.Errorf("column %s: "+format, append([]any{col}, args...)...)}
 }
 
+// str returns a required text cell, undoing the writers' formula
+// neutralisation (UnescapeCSVCell).
 func (r row) str(col string) (string, error) {
 	s := r.rec[r.t.col[col]]
 	if s == "" {
 		return "", r.errAt(col, "empty value")
 	}
-	return s, nil
+	return UnescapeCSVCell(s), nil
+}
+
+// text returns an optional text cell ("" when the column is absent),
+// unescaped.
+func (r row) text(col string) string {
+	if !r.has(col) {
+		return ""
+	}
+	return UnescapeCSVCell(r.rec[r.t.col[col]])
 }
 
 func (r row) integer(col string) (int, error) {
@@ -263,7 +274,7 @@ func ReadSummary(r io.Reader, file string) ([]Summary, error) {
 		if s.Folds < 1 {
 			return s, rw.errAt("n_scores", "want at least 1, got %d", s.Folds)
 		}
-		s.Interval = rw.rec[rw.t.col["interval"]]
+		s.Interval = rw.text("interval")
 		for _, m := range MetricNames {
 			var ms MetricSummary
 			for _, c := range []struct {

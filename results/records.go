@@ -93,8 +93,9 @@ func WritePredictions(w io.Writer, rows []Prediction) error {
 				probs[i] = "nan"
 			}
 		}
-		cw.Write([]string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.Row), r.Label, r.Predicted, correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), r.Exact})
+		name := csvTexts(r.Dataset, r.Pipeline, r.Model, r.Label, r.Predicted, r.Exact)
+		cw.Write([]string{name[0], name[1], name[2], strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), name[5]})
 	}
 	cw.Flush()
 	return cw.Error()
@@ -108,8 +109,8 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 	head = append(head, "mean_p_acc", "mean_shots", "exact_disagreement")
 	cw.Write(head)
 	for _, r := range rows {
-		rec := []string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.NTrain), strconv.Itoa(r.NTest)}
+		rec := append(csvTexts(r.Dataset, r.Pipeline, r.Model), strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.Itoa(r.NTrain), strconv.Itoa(r.NTest))
 		for _, v := range r.Scores.Values() {
 			rec = append(rec, Fmt(v))
 		}
@@ -130,7 +131,7 @@ func WriteSummary(w io.Writer, rows []Summary) error {
 	head = append(head, "mean_p_acc")
 	cw.Write(head)
 	for _, r := range rows {
-		rec := []string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Folds), r.Interval}
+		rec := csvTexts(r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Folds), r.Interval)
 		if len(r.Metrics) != len(MetricNames) {
 			return fmt.Errorf("results: summary row %s/%s/%s has %d metrics, want %d", r.Dataset, r.Pipeline, r.Model, len(r.Metrics), len(MetricNames))
 		}
@@ -150,8 +151,8 @@ func WriteTimings(w io.Writer, rows []Timing) error {
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "seconds"})
 	for _, r := range rows {
-		cw.Write([]string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.FormatFloat(r.Seconds, 'f', 6, 64)})
+		cw.Write(append(csvTexts(r.Dataset, r.Pipeline, r.Model), strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.FormatFloat(r.Seconds, 'f', 6, 64)))
 	}
 	cw.Flush()
 	return cw.Error()
