@@ -200,6 +200,9 @@ func (p *Pipeline) fit(X *mat.Dense, rows []int, wantOut bool) (*mat.Dense, erro
 			return nil, nil
 		}
 		next, err := s.Transform(cur, rows)
+		if err == nil {
+			err = stepCheckOutput(s, next, rows)
+		}
 		if err != nil {
 			return nil, fmt.Errorf("datasets: pipeline %s: fit: %w", p, err)
 		}
@@ -219,6 +222,9 @@ func (p *Pipeline) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	cur := X
 	for _, s := range p.Steps {
 		next, err := s.Transform(cur, rows)
+		if err == nil {
+			err = stepCheckOutput(s, next, rows)
+		}
 		if err != nil {
 			return nil, fmt.Errorf("datasets: pipeline %s: transform: %w", p, err)
 		}
@@ -254,6 +260,22 @@ func stepCheckInput(X *mat.Dense, rows []int) error {
 		for j := range c {
 			if v := X.At(i, j); math.IsNaN(v) || math.IsInf(v, 0) {
 				return &RowError{Row: stepRowID(rows, i), Err: fmt.Errorf("feature %d: %w", j, ErrNotFiniteValue)}
+			}
+		}
+	}
+	return nil
+}
+
+// stepCheckOutput reports the first value of a step's output that is not
+// finite (an overflow: every step's input is checked to be finite) as a
+// *RowError naming the dataset row and wrapping ErrNotFiniteValue.
+func stepCheckOutput(s Step, Z *mat.Dense, rows []int) error {
+	r, _ := Z.Dims()
+	for i := range r {
+		for j, v := range Z.RawRowView(i) {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("%s: %w", s.Name(), &RowError{Row: stepRowID(rows, i),
+					Err: fmt.Errorf("output feature %d overflows float64: %w", j, ErrNotFiniteValue)})
 			}
 		}
 	}
@@ -298,7 +320,11 @@ type Standardize struct {
 func (s *Standardize) Name() string { return "std" }
 
 // Fit learns the per-feature mean and scale with the corrected two-pass
-// algorithm (Chan, Golub & LeVeque 1983), as StandardScaler does.
+// algorithm (Chan, Golub & LeVeque 1983), as StandardScaler does. When the
+// sum or the sum of squares of a feature overflows (values near the float64
+// limit), that feature is computed again on its values divided by their
+// largest magnitude and scaled back, so mean and scale are finite for every
+// finite input; other features are not affected.
 func (s *Standardize) Fit(X *mat.Dense) error {
 	if err := stepCheckInput(X, nil); err != nil {
 		return fmt.Errorf("std: %w", err)
@@ -310,27 +336,45 @@ func (s *Standardize) Fit(X *mat.Dense) error {
 	col := make([]float64, r)
 	for j := range c {
 		mat.Col(col, j, X)
-		m := floats.Sum(col) / n
-		var corr, sq float64
-		for _, v := range col {
-			d := v - m
-			corr += d
-			sq += d * d
+		m, sc := stdMoments(col, n, 1)
+		if math.IsNaN(m) || math.IsInf(m, 0) || math.IsNaN(sc) || math.IsInf(sc, 0) {
+			top := floats.Norm(col, math.Inf(1))
+			for i := range col {
+				col[i] /= top
+			}
+			m, sc = stdMoments(col, n, top)
 		}
-		v := (sq - corr*corr/n) / n
-		const eps = 0x1p-52 // float64 machine epsilon, numpy.finfo(float64).eps
-		if v <= n*eps*v+(n*m*eps)*(n*m*eps) {
-			scale[j] = 1
-		} else {
-			scale[j] = math.Sqrt(v)
-		}
-		mean[j] = m
+		mean[j], scale[j] = m, sc
 	}
 	s.Mean, s.Scale = mean, scale
 	return nil
 }
 
-// Transform returns (x - mean) / scale per feature.
+// stdMoments returns the mean and the scale of the values col times unit:
+// the population standard deviation, or 1 when the values are constant by
+// StandardScaler's test (see Standardize). With unit = 1 it is the plain
+// computation; the near-constant test is homogeneous in the unit, so it
+// reads the same on rescaled values.
+func stdMoments(col []float64, n, unit float64) (mean, scale float64) {
+	m := floats.Sum(col) / n
+	var corr, sq float64
+	for _, v := range col {
+		d := v - m
+		corr += d
+		sq += d * d
+	}
+	v := (sq - corr*corr/n) / n
+	const eps = 0x1p-52 // float64 machine epsilon, numpy.finfo(float64).eps
+	if v <= n*eps*v+(n*m*eps)*(n*m*eps) {
+		return m * unit, 1
+	}
+	return m * unit, math.Sqrt(v) * unit
+}
+
+// Transform returns (x - mean) / scale per feature; where x - mean
+// overflows, x/scale - mean/scale. A result that still overflows (a test
+// value far outside the training range) is left infinite, and Pipeline
+// reports it as a *RowError.
 func (s *Standardize) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckTransform("std", len(s.Mean), X, rows); err != nil {
 		return nil, err
@@ -339,7 +383,12 @@ func (s *Standardize) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	out := mat.NewDense(r, c, nil)
 	for i := range r {
 		for j := range c {
-			out.Set(i, j, (X.At(i, j)-s.Mean[j])/s.Scale[j])
+			x := X.At(i, j)
+			v := (x - s.Mean[j]) / s.Scale[j]
+			if math.IsInf(v, 0) || math.IsNaN(v) {
+				v = x/s.Scale[j] - s.Mean[j]/s.Scale[j] // x - mean overflowed
+			}
+			out.Set(i, j, v)
 		}
 	}
 	return out, nil
@@ -355,9 +404,14 @@ func (s *Standardize) FeatureNames(in []string) []string { return append([]strin
 // training range is below 10*eps (eps the float64 machine epsilon, the
 // threshold of MinMaxScaler) is shifted by its minimum and left unscaled
 // (scale 1).
+//
+// When max - min overflows (values of both signs near the float64 limit),
+// Range is +Inf and Transform computes (x/2 - min/2) / (max/2 - min/2)
+// for that feature instead.
 type MinMax struct {
 	Min   []float64 // per-feature training minimum
 	Range []float64 // per-feature divisor (max - min, or 1)
+	half  []float64 // max/2 - min/2 where Range overflowed, else 0
 }
 
 // Name returns "minmax".
@@ -371,16 +425,21 @@ func (s *MinMax) Fit(X *mat.Dense) error {
 	r, c := X.Dims()
 	lo := make([]float64, c)
 	rng := make([]float64, c)
+	half := make([]float64, c)
 	col := make([]float64, r)
 	for j := range c {
 		mat.Col(col, j, X)
 		lo[j] = floats.Min(col)
-		rng[j] = floats.Max(col) - lo[j]
+		hi := floats.Max(col)
+		rng[j] = hi - lo[j]
 		if rng[j] < 10*0x1p-52 {
 			rng[j] = 1
 		}
+		if math.IsInf(rng[j], 1) {
+			half[j] = hi/2 - lo[j]/2
+		}
 	}
-	s.Min, s.Range = lo, rng
+	s.Min, s.Range, s.half = lo, rng, half
 	return nil
 }
 
@@ -393,7 +452,12 @@ func (s *MinMax) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	out := mat.NewDense(r, c, nil)
 	for i := range r {
 		for j := range c {
-			out.Set(i, j, (X.At(i, j)-s.Min[j])/s.Range[j])
+			x := X.At(i, j)
+			if j < len(s.half) && s.half[j] != 0 {
+				out.Set(i, j, (x/2-s.Min[j]/2)/s.half[j])
+				continue
+			}
+			out.Set(i, j, (x-s.Min[j])/s.Range[j])
 		}
 	}
 	return out, nil
