@@ -91,13 +91,16 @@ func FuzzReadCSV(f *testing.F) {
 
 // FuzzParsePipeline feeds arbitrary pipeline strings to the parser and
 // fits what it accepts on a small matrix (with a zero row, a constant
-// column and extreme values). It must never panic; errors must wrap
+// column and extreme values) with class labels (so that select is fitted
+// too). It must never panic; errors must wrap
 // ErrUnknownStep or ErrStepParam (parsing) or be returned (fitting); an
 // accepted pipeline's canonical name must parse to the same name, and its
 // output must have as many columns as FeatureNames says.
 func FuzzParsePipeline(f *testing.F) {
 	for _, s := range []string{"raw", "std", "minmax", "l2", "pad", "lift", "lift(0.5)", "norm", "std+l2", "minmax+lift(2)+pad",
-		" std + l2 ", "", "+", "std+", "lift(", "lift()", "lift(-1)", "lift(nan)", "lift(1e309)", "raw+std", "whiten", "lift(0x10)", "l2+l2+l2"} {
+		" std + l2 ", "", "+", "std+", "lift(", "lift()", "lift(-1)", "lift(nan)", "lift(1e309)", "raw+std", "whiten", "lift(0x10)", "l2+l2+l2",
+		"pca", "pca(2)", "pca(3)", "pca(4)", "pca(0.95)", "pca(0.5)", "pca(1.0)", "pca(0)", "pca(1.5)", "pca(-2)", "pca(x)", "pca(0x1p-2)", "pca(5e-324)",
+		"select", "select(1)", "select(3)", "select(4)", "select(0)", "std+pca(2)+l2", "std+select(2)+pca(1)+lift", "pca+pad", "select(2)+pca(0.9)"} {
 		f.Add(s, 1.0, false)
 		f.Add(s, 1e300, true)
 	}
@@ -133,7 +136,7 @@ func FuzzParsePipeline(f *testing.F) {
 		if zeroRow {
 			X.SetRow(1, []float64{0, 0, 0})
 		}
-		Z, err := p.FitTransform(X, nil)
+		Z, err := p.FitTransformLabeled(X, []int{0, 1, 0, 1}, nil)
 		if err != nil {
 			return // a zero row under l2, a constant under std...: reported, not a crash
 		}
@@ -143,6 +146,10 @@ func FuzzParsePipeline(f *testing.F) {
 		}
 		if _, err := p.Transform(X, nil); err != nil {
 			t.Fatalf("pipeline %q: Transform of the fitted data fails: %v", name, err)
+		}
+		// The fitted state prints the same canonical name.
+		if p.String() != name {
+			t.Fatalf("pipeline %q: name changed to %q by fitting", name, p.String())
 		}
 	})
 }

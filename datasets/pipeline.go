@@ -78,6 +78,8 @@ func StepInfos() []StepInfo {
 		{Name: "pad", Syntax: "pad", Description: "append zero features up to the next power of two"},
 		{Name: "lift", Syntax: "lift | lift(c)", Description: "append the constant c > 0 (default 1), then scale each row to unit norm; keeps the original norm as an angle"},
 		{Name: "norm", Syntax: "norm", Description: "replace each row by its Euclidean norm (one feature): what unit-norm scaling throws away"},
+		{Name: "pca", Syntax: "pca | pca(k) | pca(f)", Description: "principal components of the centred training rows (features pc1, pc2, ...): all, k >= 1 of them, or the fewest whose cumulative explained variance ratio exceeds f in (0,1); each axis signed so its largest loading is positive"},
+		{Name: "select", Syntax: "select | select(k)", Description: "keep the k features (default 10) with the largest one-way ANOVA F between the classes of the training rows, in their original order; constant features rank last, ties to the lower index"},
 	}
 }
 
@@ -153,10 +155,74 @@ func parseStep(text string) (Step, error) {
 			return nil, fmt.Errorf("parameter %s must be finite and > 0: %w", arg, ErrStepParam)
 		}
 		return &Lift{C: c}, nil
+	case "pca":
+		if !hasArg {
+			return &PCA{}, nil
+		}
+		return parsePCA(arg)
+	case "select":
+		if !hasArg {
+			return &SelectK{K: defaultSelectK}, nil
+		}
+		k, err := parseCount(arg)
+		if err != nil {
+			return nil, fmt.Errorf("select(%s): %v (write select(k) with k >= 1): %w", arg, err, ErrStepParam)
+		}
+		return &SelectK{K: k}, nil
 	case "raw":
 		return nil, fmt.Errorf("raw stands alone and cannot be combined with other steps: %w", ErrUnknownStep)
 	}
-	return nil, fmt.Errorf("%q (known: std, minmax, l2, pad, lift, norm): %w", name, ErrUnknownStep)
+	return nil, fmt.Errorf("%q (known: std, minmax, l2, pad, lift, norm, pca, select): %w", name, ErrUnknownStep)
+}
+
+// parseCount parses a whole number >= 1 written in decimal digits only.
+func parseCount(arg string) (int, error) {
+	if arg == "" {
+		return 0, errors.New("empty parameter")
+	}
+	for i := 0; i < len(arg); i++ {
+		if arg[i] < '0' || arg[i] > '9' {
+			return 0, fmt.Errorf("%q is not a whole number", arg)
+		}
+	}
+	k, err := strconv.Atoi(arg)
+	if err != nil {
+		return 0, fmt.Errorf("%s is too large", arg)
+	}
+	if k < 1 {
+		return 0, fmt.Errorf("%d is below 1", k)
+	}
+	return k, nil
+}
+
+// parsePCA parses the parameter of pca(k) or pca(f): digits only mean a
+// count of components; anything else must be a share of variance in (0, 1).
+func parsePCA(arg string) (Step, error) {
+	isDigits := arg != ""
+	for i := 0; i < len(arg); i++ {
+		if arg[i] < '0' || arg[i] > '9' {
+			isDigits = false
+		}
+	}
+	if isDigits {
+		k, err := parseCount(arg)
+		if err != nil {
+			return nil, fmt.Errorf("pca(%s): %v (write pca(k) with k >= 1 components, or pca(f) with 0 < f < 1): %w", arg, err, ErrStepParam)
+		}
+		return &PCA{K: k}, nil
+	}
+	f, err := strconv.ParseFloat(arg, 64)
+	switch {
+	case arg == "":
+		return nil, fmt.Errorf("empty parameter (write pca, pca(k) or pca(f)): %w", ErrStepParam)
+	case err != nil || math.IsNaN(f) || math.IsInf(f, 0):
+		return nil, fmt.Errorf("pca(%s): parameter is not a number (write pca(k) with k >= 1 components, or pca(f) with 0 < f < 1): %w", arg, ErrStepParam)
+	case f >= 1 && f == math.Trunc(f) && f <= 1<<31:
+		return nil, fmt.Errorf("pca(%s): a share of variance must be below 1; for %d component(s) write pca(%d): %w", arg, int(f), int(f), ErrStepParam)
+	case !(f > 0 && f < 1):
+		return nil, fmt.Errorf("pca(%s): write pca(k) with a whole number k >= 1 of components, or pca(f) with a share 0 < f < 1: %w", arg, ErrStepParam)
+	}
+	return &PCA{Frac: f}, nil
 }
 
 // String returns the canonical pipeline name ("raw" when there are no steps).
@@ -175,25 +241,65 @@ func (p *Pipeline) String() string {
 // the output of step 1, and so on. rows names the dataset rows of X for
 // error messages (nil: positions).
 func (p *Pipeline) Fit(X *mat.Dense, rows []int) error {
-	_, err := p.fit(X, rows, false)
+	_, err := p.fit(X, nil, rows, false)
 	return err
 }
 
 // FitTransform fits the pipeline on X and returns X transformed.
 func (p *Pipeline) FitTransform(X *mat.Dense, rows []int) (*mat.Dense, error) {
-	return p.fit(X, rows, true)
+	return p.fit(X, nil, rows, true)
 }
 
-func (p *Pipeline) fit(X *mat.Dense, rows []int, wantOut bool) (*mat.Dense, error) {
+// FitLabeled is Fit with the class index of every training row, which
+// steps that use classes (LabeledStep: "select") need; the other steps
+// ignore y. A pipeline without such steps gives the same result as Fit.
+func (p *Pipeline) FitLabeled(X *mat.Dense, y, rows []int) error {
+	if y == nil {
+		y = []int{}
+	}
+	_, err := p.fit(X, y, rows, false)
+	return err
+}
+
+// FitTransformLabeled is FitTransform with class labels (see FitLabeled).
+func (p *Pipeline) FitTransformLabeled(X *mat.Dense, y, rows []int) (*mat.Dense, error) {
+	if y == nil {
+		y = []int{}
+	}
+	return p.fit(X, y, rows, true)
+}
+
+// NeedsLabels reports whether a step of the pipeline uses class labels,
+// so that only FitLabeled and FitTransformLabeled can fit it.
+func (p *Pipeline) NeedsLabels() bool {
+	for _, s := range p.Steps {
+		if _, ok := s.(LabeledStep); ok {
+			return true
+		}
+	}
+	return false
+}
+
+// fit fits the steps; y is nil for an unlabeled fit.
+func (p *Pipeline) fit(X *mat.Dense, y, rows []int, wantOut bool) (*mat.Dense, error) {
 	if err := stepCheckInput(X, rows); err != nil {
 		return nil, fmt.Errorf("datasets: pipeline %s: fit: %w", p, err)
+	}
+	if r, _ := X.Dims(); y != nil && len(y) != r {
+		return nil, fmt.Errorf("datasets: pipeline %s: fit: %d labels for %d rows", p, len(y), r)
 	}
 	if !wantOut && len(p.Steps) == 0 {
 		return nil, nil
 	}
 	cur := X
 	for i, s := range p.Steps {
-		if err := s.Fit(cur); err != nil {
+		var err error
+		if ls, ok := s.(LabeledStep); ok && y != nil {
+			err = ls.FitLabeled(cur, y)
+		} else {
+			err = s.Fit(cur)
+		}
+		if err != nil {
 			return nil, fmt.Errorf("datasets: pipeline %s: fit: %w", p, err)
 		}
 		if i == len(p.Steps)-1 && !wantOut {
