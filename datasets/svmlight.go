@@ -75,8 +75,8 @@ func readSVMLight(r io.Reader, name string, opt LoadOptions) (*Dataset, error) {
 		}
 		return maxIdx + 1
 	}
-	tooLarge := func(line int, rows, w int64) error {
-		return fail(line, 0, "", fmt.Errorf("%w: %d rows x %d columns of float64 would take %d bytes, above the limit of %d bytes", ErrTooLarge, rows, w, rows*w*8, limit))
+	tooLarge := func(line, col int, rows, w int64) error {
+		return fail(line, col, "", fmt.Errorf("%w: %d rows x %d columns of float64 would take %d bytes, above the limit of %d bytes", ErrTooLarge, rows, w, rows*w*8, limit))
 	}
 	for {
 		raw, err := lr.next()
@@ -127,7 +127,7 @@ func readSVMLight(r io.Reader, name string, opt LoadOptions) (*Dataset, error) {
 			}
 			prev = idx
 			if w := width(idx); w*8 > limit || int64(len(start)+1)*w*8 > limit {
-				return nil, tooLarge(lr.line, int64(len(start)+1), w)
+				return nil, tooLarge(lr.line, col, int64(len(start)+1), w)
 			}
 			v, err := csvParseValue(string(vs), ' ')
 			if err != nil && bad == nil {
@@ -148,7 +148,7 @@ func readSVMLight(r io.Reader, name string, opt LoadOptions) (*Dataset, error) {
 			maxIdx = max(maxIdx, int64(rowCols[len(rowCols)-1]))
 		}
 		if maxIdx >= 0 && int64(len(start)+1)*width(maxIdx)*8 > limit {
-			return nil, tooLarge(lr.line, int64(len(start)+1), width(maxIdx))
+			return nil, tooLarge(lr.line, 0, int64(len(start)+1), width(maxIdx))
 		}
 		start = append(start, len(cols))
 		cols = append(cols, rowCols...)
