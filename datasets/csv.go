@@ -56,11 +56,15 @@ type CSVOptions struct {
 	DropInvalid bool
 }
 
-// CSVError reports a problem in a CSV file. Line is the 1-based line of the
-// file (for a quoted field spanning lines, the line where the field
-// starts); errors about the whole file (empty, too few classes) name the
-// header line. Column is the 1-based column (field) number and ColumnName
-// its header name; Column is 0 when the problem is the whole line.
+// CSVError reports a problem in a data file: CSV, and also ARFF and
+// svmlight (the name is historical). Line is the 1-based line of the file
+// (for a quoted field spanning lines, the line where the field starts);
+// errors about the whole file (empty, too few classes) name the header
+// line (the @data line for ARFF, the last line for svmlight). Column is
+// the 1-based column (field) number and ColumnName its header name (for
+// ARFF the attribute's position and name; for svmlight the token's
+// position on the line, 1 being the label); Column is 0 when the problem
+// is the whole line.
 type CSVError struct {
 	File       string
 	Line       int
