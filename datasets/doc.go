@@ -1,6 +1,7 @@
 // Package datasets provides the labelled data fringe benchmarks on: embedded
-// open datasets with their provenance, CSV, ARFF and svmlight import, seeded synthetic
-// generators, class and feature subsets, and preprocessing pipelines.
+// open datasets with their provenance, CSV, ARFF and svmlight import,
+// seeded synthetic generators, class and feature subsets, and
+// preprocessing pipelines.
 //
 // # Datasets
 //
