@@ -150,14 +150,10 @@ func (s *PCA) Fit(X *mat.Dense) error {
 		return fmt.Errorf("%s: %w", s.Name(), err)
 	}
 	n, d := X.Dims()
-	if n < 2 {
-		return fmt.Errorf("%s: needs at least 2 training rows, got %d: %w", s.Name(), n, ErrStepData)
+	if err := s.checkDims(n, d); err != nil {
+		return err
 	}
 	maxK := min(n, d)
-	if s.K > maxK {
-		return fmt.Errorf("%s: %d components asked for, but the training part has %d features and %d rows (at most %d components): %w",
-			s.Name(), s.K, d, n, maxK, ErrStepParam)
-	}
 	var top float64
 	for i := range n {
 		top = max(top, floats.Norm(X.RawRowView(i), math.Inf(1)))
@@ -247,6 +243,18 @@ func orientAxis(v []float64) {
 	if v[big] < 0 {
 		floats.Scale(-1, v)
 	}
+}
+
+// checkDims refuses a fit on n rows of d features.
+func (s *PCA) checkDims(n, d int) error {
+	if n < 2 {
+		return fmt.Errorf("%s: needs at least 2 training rows, got %d: %w", s.Name(), n, ErrStepData)
+	}
+	if maxK := min(n, d); s.K > maxK {
+		return fmt.Errorf("%s: %d components asked for, but the training part has %d features and %d rows (at most %d components): %w",
+			s.Name(), s.K, d, n, maxK, ErrStepParam)
+	}
+	return nil
 }
 
 // Transform returns (x - mean) projected on the components, one column per
@@ -353,8 +361,8 @@ func (s *SelectK) FitLabeled(X *mat.Dense, y []int) error {
 	if len(y) != n {
 		return fmt.Errorf("%s: %d labels for %d rows", s.Name(), len(y), n)
 	}
-	if s.K > d {
-		return fmt.Errorf("%s: %d features asked for, but the training part has %d: %w", s.Name(), s.K, d, ErrStepParam)
+	if err := s.checkDims(d); err != nil {
+		return err
 	}
 	class := map[int]int{} // label -> group, in first-seen order
 	group := make([]int, n)
@@ -405,6 +413,49 @@ func (s *SelectK) FitLabeled(X *mat.Dense, y []int) error {
 	slices.Sort(keep)
 	s.Scores, s.Keep, s.in = scores, keep, d
 	return nil
+}
+
+// checkDims refuses a fit on d features.
+func (s *SelectK) checkDims(d int) error {
+	if s.K > d {
+		return fmt.Errorf("%s: %d features asked for, but the training part has %d: %w", s.Name(), s.K, d, ErrStepParam)
+	}
+	return nil
+}
+
+// CheckDims checks, before any fit, that the pipeline can be fitted on a
+// training part of rows x features: every pca(k) must see at least 2 rows
+// and k <= min(rows, width), every select(k) k <= width, where width is
+// the number of features reaching the step. It returns the width of the
+// output, an upper bound after pca(f) or pca (which keep at most
+// min(rows, width) components), and the first violation, with the
+// message Fit would give, wrapping ErrStepParam or ErrStepData. A
+// pipeline that passes can still fail at Fit only through its data (a
+// zero row, an overflow, a select(k) after pca(f) keeping fewer than k
+// components).
+func (p *Pipeline) CheckDims(rows, features int) (int, error) {
+	w := features
+	for _, st := range p.Steps {
+		switch s := st.(type) {
+		case *PCA:
+			if err := s.checkDims(rows, w); err != nil {
+				return 0, fmt.Errorf("datasets: pipeline %s: %w", p, err)
+			}
+			if s.K > 0 {
+				w = s.K
+			} else {
+				w = min(rows, w)
+			}
+		case *SelectK:
+			if err := s.checkDims(w); err != nil {
+				return 0, fmt.Errorf("datasets: pipeline %s: %w", p, err)
+			}
+			w = s.K
+		default:
+			w = len(st.FeatureNames(make([]string, w)))
+		}
+	}
+	return w, nil
 }
 
 // anovaF returns the one-way ANOVA F of the values x in the groups

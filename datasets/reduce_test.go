@@ -683,6 +683,63 @@ func TestReduceBadInput(t *testing.T) {
 	}
 }
 
+// TestCheckDims: the plan-time check gives the errors Fit would give, and
+// the output width.
+func TestCheckDims(t *testing.T) {
+	tests := []struct {
+		pipe           string
+		rows, features int
+		width          int
+		want           error
+		mention        string
+	}{
+		{"std+l2", 100, 4, 4, nil, ""},
+		{"pad+lift", 100, 5, 9, nil, ""},
+		{"std+pca(4)+l2", 100, 4, 4, nil, ""},
+		{"std+pca(5)", 100, 4, 0, ErrStepParam, "pca(5): 5 components asked for, but the training part has 4 features and 100 rows"},
+		{"pca(5)", 3, 13, 0, ErrStepParam, "has 13 features and 3 rows (at most 3 components)"},
+		{"pca", 1, 13, 0, ErrStepData, "at least 2 training rows"},
+		{"pca(0.9)+select(2)", 100, 13, 2, nil, ""},
+		{"pca(0.9)", 5, 13, 5, nil, ""}, // an upper bound: min(rows, width)
+		{"lift+select(5)", 100, 4, 5, nil, ""},
+		{"select(5)", 100, 4, 0, ErrStepParam, "select(5): 5 features asked for, but the training part has 4"},
+		{"norm+select(2)", 100, 4, 0, ErrStepParam, "select(2)"},
+		{"pca(2)+select(3)", 100, 4, 0, ErrStepParam, "select(3)"},
+	}
+	for _, tt := range tests {
+		p, err := ParsePipeline(tt.pipe)
+		if err != nil {
+			t.Fatal(err)
+		}
+		w, err := p.CheckDims(tt.rows, tt.features)
+		if tt.want == nil {
+			if err != nil || w != tt.width {
+				t.Errorf("%s on %dx%d: width %d, %v; want %d", tt.pipe, tt.rows, tt.features, w, err, tt.width)
+			}
+			continue
+		}
+		if !errors.Is(err, tt.want) || !strings.Contains(err.Error(), tt.mention) || !strings.HasPrefix(err.Error(), "datasets: pipeline "+tt.pipe+": ") {
+			t.Errorf("%s on %dx%d: %v, want %v mentioning %q", tt.pipe, tt.rows, tt.features, err, tt.want, tt.mention)
+		}
+	}
+	// The width agrees with an actual fit where it is exact.
+	d, _ := Load("wine")
+	for _, pipe := range []string{"std+pca(4)+l2", "minmax+select(5)+lift", "pad+pca(3)"} {
+		p, _ := ParsePipeline(pipe)
+		w, err := p.CheckDims(d.Len(), d.Dim())
+		if err != nil {
+			t.Fatal(err)
+		}
+		out, err := p.FitTransformLabeled(d.X, d.Y, d.Rows)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, c := out.Dims(); c != w {
+			t.Errorf("%s: CheckDims width %d, fitted output has %d columns", pipe, w, c)
+		}
+	}
+}
+
 // TestReduceLeakage: as TestLeakage for the other steps, pca and select
 // fitted on training rows give the same training output whatever the test
 // rows are, and transforming test rows leaves the fitted state alone.
