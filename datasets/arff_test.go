@@ -279,6 +279,14 @@ func TestLoadFileFormats(t *testing.T) {
 			t.Errorf("ParseFormat(%q) = %v, %v", s, f, err)
 		}
 	}
+	for s, want := range map[string]IndexBase{"": OneBased, "one": OneBased, "zero": ZeroBased, "auto": AutoBase} {
+		if b, err := ParseIndexBase(s); err != nil || b != want {
+			t.Errorf("ParseIndexBase(%q) = %v, %v", s, b, err)
+		}
+	}
+	if _, err := ParseIndexBase("1"); err == nil || !strings.Contains(err.Error(), "one, zero, auto") {
+		t.Errorf("ParseIndexBase(1): %v", err)
+	}
 	if _, err := ParseFormat("libsvm2"); !errors.Is(err, ErrUnknownFormat) || !strings.Contains(err.Error(), "csv, arff, svmlight") {
 		t.Errorf("ParseFormat(libsvm2): %v", err)
 	}

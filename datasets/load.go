@@ -107,6 +107,30 @@ const (
 	AutoBase
 )
 
+var indexBaseNames = []string{"one", "zero", "auto"}
+
+// String returns "one", "zero" or "auto".
+func (b IndexBase) String() string {
+	if b < 0 || int(b) >= len(indexBaseNames) {
+		return fmt.Sprintf("IndexBase(%d)", int(b))
+	}
+	return indexBaseNames[b]
+}
+
+// ParseIndexBase returns the index base named s: "one" (or ""), "zero" or
+// "auto"; anything else is an error that lists the names.
+func ParseIndexBase(s string) (IndexBase, error) {
+	if s == "" {
+		return OneBased, nil
+	}
+	for i, n := range indexBaseNames {
+		if s == n {
+			return IndexBase(i), nil
+		}
+	}
+	return 0, fmt.Errorf("datasets: unknown index base %q (known: %s)", s, strings.Join(indexBaseNames, ", "))
+}
+
 // DefaultMaxDenseBytes is the default bound on the dense float64 matrix a
 // svmlight file may expand to: 2 GiB.
 const DefaultMaxDenseBytes = 2 << 30
@@ -139,8 +163,9 @@ type LoadOptions struct {
 
 // LoadFile reads a dataset from the file at path in the format of
 // opt.Format, or by its name (FormatOf; unknown extensions are read as
-// CSV). A name ending in ".gz" is decompressed (gzip) as it is read. The
-// dataset's Name and Provenance.File are path as given, Provenance.SHA256
+// CSV). A name ending in ".gz" is decompressed (gzip) as it is read (and
+// Lines count lines of the decompressed text). The dataset's Name and
+// Provenance.File are path as given, Provenance.SHA256
 // the digest of the file's bytes (as stored, compressed or not) and
 // Provenance.Origin "user file". Every problem with the contents is a
 // *CSVError naming the file, line and column (see ReadCSV, ReadData).
