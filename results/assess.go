@@ -12,7 +12,7 @@ import (
 // The assessment report (fringe assess): per dataset and pipeline, what the
 // interference classifier would cost on a device and what it would gain
 // against the classical baselines. The numbers are computed by
-// bench.Assess; this file holds the records and writes them.
+// bench/assess.Run; this file holds the records and writes them.
 
 // AssessRow is one (dataset, pipeline) row of the assessment.
 type AssessRow struct {

@@ -22,7 +22,7 @@
 //
 // # Report
 //
-// A Report is computed elsewhere (bench.Analyse) and only formatted here:
+// A Report is computed elsewhere (bench/report.Analyse) and only formatted here:
 // the summary with a Mark per cell and metric (best of its dataset, or not
 // significantly worse than the best), the Variant of every model (how the
 // interference classifier is run: exact, shot budget, noise model and

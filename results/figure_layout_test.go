@@ -213,7 +213,7 @@ func cdCases(rng *rand.Rand) []layoutCase {
 				if err != nil {
 					panic(err)
 				}
-				// The size of bench.ReportFigures' CD diagrams.
+				// The size of bench/report.Figures' CD diagrams.
 				c := layoutCase{fig: Figure{Name: fmt.Sprintf("cd-k%d-long%v-cd%.3g", k, long, cd), Plot: p, Width: CDWidth, Height: h}}
 				c.want = append(c.want, title, "1")
 				for i, m := range models {
@@ -256,7 +256,7 @@ func sweepCase(rng *rand.Rand, name string, n int, long, logX bool, xs []float64
 	if err != nil {
 		panic(err)
 	}
-	// The size of bench.ReportFigures' sweeps.
+	// The size of bench/report.Figures' sweeps.
 	c := layoutCase{fig: Figure{Name: name, Plot: p, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true}}
 	c.want = append(append(c.want, title, xl, "accuracy", "exact mode (dashed)", "best baseline (dotted)"), dss...)
 	if logX || len(xs) <= maxValueTicks {
@@ -301,7 +301,7 @@ func kernelCases() []layoutCase {
 		if err != nil {
 			panic(err)
 		}
-		// The size of bench.Plan.KernelFigure.
+		// The size of bench/report.KernelFigure.
 		c.fig = Figure{Name: fmt.Sprintf("kernel-%d", n), Plot: p, Width: 6 * vg.Inch, Height: 4 * vg.Inch}
 		cases = append(cases, c)
 	}

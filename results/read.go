@@ -351,7 +351,7 @@ type Run struct {
 
 // ReadRun reads the run directory dir: manifest.json, summary.csv and
 // folds.csv are required, predictions.csv is optional (a stored baseline
-// may omit it; paired tests then rely on the manifests, see bench.Compare).
+// may omit it; paired tests then rely on the manifests, see bench/report.Compare).
 // Errors name the file and, for malformed content, the line.
 func ReadRun(dir string) (*Run, error) {
 	st, err := os.Stat(dir)

@@ -467,15 +467,15 @@ func baselineGap(row *results.AssessRow, ad *assessDataset, pipe, assessed strin
 			nTest += float64(len(sp.Test))
 		}
 		nsp := float64(len(ad.quantum.Datasets[0].Splits))
-		ntr, nte := int(math.Round(nTrain/nsp)), int(math.Round(nTest/nsp))
+		sizes := stats.Sizes{Train: nTrain / nsp, Test: nTest / nsp}
 		if len(keys) > 0 {
-			iv, err := stats.CorrectedInterval(d, ntr, nte, report.Alpha)
+			iv, err := stats.CorrectedIntervalSizes(d, sizes, report.Alpha)
 			if err != nil {
 				return nil, fmt.Errorf("assess: %s/%s: %w", row.Dataset, pipe, err)
 			}
 			row.Gap, row.GapLo, row.GapHi = iv.Mean, iv.Lo, iv.Hi
 			warns = append(warns, iv.Warnings...)
-			t, err := stats.CorrectedPairedT(xs, rs, ntr, nte, report.Alpha)
+			t, err := stats.CorrectedPairedTSizes(xs, rs, sizes, report.Alpha)
 			if err != nil {
 				return nil, fmt.Errorf("assess: %s/%s: %w", row.Dataset, pipe, err)
 			}

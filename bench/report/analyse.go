@@ -322,14 +322,13 @@ func (a *analyser) foldTest(c *results.Comparison, x, ref results.Summary, mi in
 		nTrain += float64(fx[k].NTrain)
 		nTest += float64(fx[k].NTest)
 	}
-	ntr := int(math.Round(nTrain / float64(len(keys))))
-	nte := int(math.Round(nTest / float64(len(keys))))
-	r, err := stats.CorrectedPairedT(xs, rs, ntr, nte, a.alpha)
+	sizes := stats.Sizes{Train: nTrain / float64(len(keys)), Test: nTest / float64(len(keys))}
+	r, err := stats.CorrectedPairedTSizes(xs, rs, sizes, a.alpha)
 	if err != nil {
 		return false, fmt.Errorf("report: %s: %w", where, err)
 	}
 	c.Statistic, c.DF, c.P, c.Warnings = r.Statistic, r.DF, r.P, r.Warnings
-	if iv, err := stats.CorrectedInterval(d, ntr, nte, a.alpha); err == nil {
+	if iv, err := stats.CorrectedIntervalSizes(d, sizes, a.alpha); err == nil {
 		c.Diff, c.Lo, c.Hi = iv.Mean, iv.Lo, iv.Hi
 	}
 	return true, nil
@@ -540,6 +539,7 @@ func (a *analyser) acrossDatasets() ([]results.RankTable, []results.PairAcross, 
 		t := results.RankTable{
 			Pipeline: pipe, Metric: results.MetricNames[0], Models: models, Datasets: dss,
 			AvgRanks: fr.AvgRanks, ChiSq: fr.ChiSq, ChiSqP: fr.PChiSq, DF: fr.DF,
+			ChiSqTieCorrected: fr.ChiSqTieCorrected, ChiSqTieCorrectedP: fr.PChiSqTieCorrected,
 			F: fr.ImanDavenportF, DF1: fr.DF1, DF2: fr.DF2, P: fr.P, Alpha: fr.Alpha, Reject: fr.Reject,
 			CD: fr.CD, Warnings: fr.Warnings,
 		}

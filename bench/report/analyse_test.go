@@ -57,7 +57,7 @@ func synthRecords(cells []synthCell, repeats, folds int) ([]results.Fold, []resu
 
 // modeVariants describes the interference classifier exact, with three
 // shot budgets and under one noise model at three strengths, and two
-// baselines, as modelkit.Spec.Variant would from a spec with those modes.
+// baselines, as VariantOf would from a spec with those modes.
 func modeVariants() []results.Variant {
 	nan := math.NaN()
 	q := func(model, mode string, shots int, noise string, strength float64) results.Variant {

@@ -278,13 +278,13 @@ func testChange(ch *results.CellChange, bs, ns results.Summary, bi, ni *runIndex
 				ntr += float64(fb[k].NTrain)
 				nte += float64(fb[k].NTest)
 			}
-			nTrain, nTest := int(math.Round(ntr/float64(len(keys)))), int(math.Round(nte/float64(len(keys))))
-			r, err := stats.CorrectedPairedT(xs, ys, nTrain, nTest, alpha)
+			sizes := stats.Sizes{Train: ntr / float64(len(keys)), Test: nte / float64(len(keys))}
+			r, err := stats.CorrectedPairedTSizes(xs, ys, sizes, alpha)
 			if err != nil {
 				return fmt.Errorf("report: %s: %w", where, err)
 			}
 			ch.Method, ch.Statistic, ch.DF, ch.P = "paired-t", r.Statistic, float64(r.DF), r.P
-			if iv, err := stats.CorrectedInterval(d, nTrain, nTest, alpha); err == nil && !math.IsNaN(iv.Lo) {
+			if iv, err := stats.CorrectedIntervalSizes(d, sizes, alpha); err == nil && !math.IsNaN(iv.Lo) {
 				ch.Delta, ch.Lo, ch.Hi = iv.Mean, iv.Lo, iv.Hi
 			}
 			ch.Note = strings.Join(r.Warnings, "; ")
@@ -378,7 +378,7 @@ func cellInterval(f map[foldKey]results.Fold, mi int, alpha float64) (stats.Inte
 		nte += float64(f[k].NTest)
 	}
 	n := float64(len(keys))
-	return stats.CorrectedInterval(v, int(math.Round(ntr/n)), int(math.Round(nte/n)), alpha)
+	return stats.CorrectedIntervalSizes(v, stats.Sizes{Train: ntr / n, Test: nte / n}, alpha)
 }
 
 // Welch is an unpaired comparison of two means from their standard

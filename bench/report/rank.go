@@ -139,6 +139,7 @@ func Rank(t *ScoreTable, alpha float64) (results.RankTable, error) {
 	return results.RankTable{
 		Metric: "score", Models: t.Models, Datasets: t.Datasets,
 		AvgRanks: fr.AvgRanks, ChiSq: fr.ChiSq, ChiSqP: fr.PChiSq, DF: fr.DF,
+		ChiSqTieCorrected: fr.ChiSqTieCorrected, ChiSqTieCorrectedP: fr.PChiSqTieCorrected,
 		F: fr.ImanDavenportF, DF1: fr.DF1, DF2: fr.DF2, P: fr.P, Alpha: fr.Alpha, Reject: fr.Reject,
 		CD: fr.CD, Warnings: fr.Warnings,
 	}, nil

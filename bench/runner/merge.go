@@ -16,7 +16,7 @@ import (
 
 // Merged is a run rebuilt from the partial run directories of all its
 // shards: the plan (from the spec recorded in the shards) and the results
-// of every task in task order, ready for plan.Plan.Write.
+// of every task in task order, ready for runner.Write.
 type Merged struct {
 	Plan    *plan.Plan
 	Results []TaskResult

@@ -86,7 +86,9 @@ func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fo
 // Summarise computes one summary row per (dataset, pipeline, model) cell, in
 // task order. For k-fold and repeated holdout protocols the interval is the
 // corrected resampled t interval (Nadeau & Bengio 2003, variance factor
-// 1/(r k) + n_test/n_train); for leave-one-out and a single holdout, where
+// 1/(r k) + n_test/n_train, with the mean sizes over the folds, not
+// rounded: uneven folds enter through their mean, so for k-fold
+// cross-validation n_test/n_train is exactly 1/(k-1)); for leave-one-out and a single holdout, where
 // that interval degenerates, the metrics are computed on the pooled
 // predictions and accuracy gets a Wilson score interval (the other metrics
 // get none). Interval bounds are clipped to [0, 1], the range of every metric.
@@ -152,7 +154,7 @@ func Summarise(p *plan.Plan, res []TaskResult) []results.Summary {
 				for i, r := range rs {
 					v[i] = r.Scores.Values()[mi]
 				}
-				iv, err := stats.CorrectedInterval(v, int(math.Round(nTrain)), int(math.Round(nTest)), report.Alpha)
+				iv, err := stats.CorrectedIntervalSizes(v, stats.Sizes{Train: nTrain, Test: nTest}, report.Alpha)
 				if err != nil {
 					// Only impossible inputs (no scores, non-finite metrics) get here.
 					panic(fmt.Sprintf("runner: summary interval: %v", err))
