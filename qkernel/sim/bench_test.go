@@ -148,10 +148,12 @@ func classifierCircuit(tb testing.TB, M, d, nClass int) *circuit.Circuit {
 // the density matrix (16 * 4^n bytes read and written) at the bandwidth of
 // the triad of ../shared/perf/stream.c, measured in the same run.
 //
-// workload=layers is the RY layer and CNOT ladder of numpy_dm.py;
-// workload=classifier is a compiled classifier circuit (M=32, d=8, C=2 on
-// 10 qubits; M=8, d=4, C=2 on 7), decomposed, so its CNOTs join distant
-// qubits and its class qubit is idle until the end. noise=depol is
+// workload=layers is the RY layer and CNOT ladder of numpy_dm.py, applied
+// again and again to one matrix (every gate on all n qubits, as a per-gate
+// cost); workload=classifier is a compiled classifier circuit (M=32, d=8, C=2 on
+// 10 qubits; M=8, d=4, C=2 on 7) simulated from |0...0> by Simulate
+// (decomposed, so its CNOTs join distant qubits; its class qubit is idle
+// until the end), per elementary gate. noise=depol is
 // depolarizing (1e-3, 1e-2); noise=all adds amplitude damping 1e-3 and
 // phase damping 2e-3 after every gate on every qubit it touches.
 func BenchmarkNoisyGate(b *testing.B) {
@@ -180,9 +182,18 @@ func BenchmarkNoisyGate(b *testing.B) {
 			for _, nz := range noises {
 				b.Run(fmt.Sprintf("qubits=%d/workload=%s/noise=%s", n, work, nz.name), func(b *testing.B) {
 					ctx := context.Background()
+					d, err := NewDensity(n)
+					if err != nil {
+						b.Fatal(err)
+					}
 					b.ReportAllocs()
 					for b.Loop() {
-						if _, err := Simulate(ctx, c, Options{Noise: nz.m, Method: DensityMatrix}); err != nil {
+						if work == "layers" {
+							// Layers keep evolving one matrix, every gate on all n qubits.
+							if err := runDensity(ctx, d, c, nz.m); err != nil {
+								b.Fatal(err)
+							}
+						} else if _, err := Simulate(ctx, c, Options{Noise: nz.m, Method: DensityMatrix}); err != nil {
 							b.Fatal(err)
 						}
 					}
