@@ -1,6 +1,7 @@
 package qkernel
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -120,6 +121,8 @@ type Classifier struct {
 	unit    []float64 // n x d row-major: the unit training vectors
 	mass    []float64 // mass[k] = sum of w_m over class k (whole training set)
 	centre  []float64 // nClass x d row-major: centre_k = sum_{m in k} w_m x_m (x_m unit)
+
+	noShare bool // tests and benchmarks: simulate whole circuits forwards (share.go)
 }
 
 // Detail is the classifier's output for one test row.
@@ -292,7 +295,7 @@ func (c *Classifier) makePlan() (*plan, error) {
 // result. The random draws of row i depend only on Seed and i, its position
 // in X.
 func (c *Classifier) Predict(X *mat.Dense) ([]int, error) {
-	pred, _, err := c.predict(X, false)
+	pred, _, err := c.predict(context.Background(), X, false)
 	return pred, err
 }
 
@@ -300,10 +303,26 @@ func (c *Classifier) Predict(X *mat.Dense) ([]int, error) {
 // probability, the class probabilities, the accepted shots and the
 // exact-mode decision behind the prediction.
 func (c *Classifier) PredictDetail(X *mat.Dense) ([]int, []Detail, error) {
-	return c.predict(X, true)
+	return c.predict(context.Background(), X, true)
 }
 
-func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error) {
+// PredictContext is Predict that stops when ctx is cancelled: it checks ctx
+// between rows and, in the gate-level modes, between the gates of every
+// simulation (about every 10^5 amplitudes of work), and returns ctx.Err()
+// (context.Canceled or context.DeadlineExceeded, unwrapped) and no
+// predictions. A run that is not cancelled gives exactly Predict's result.
+func (c *Classifier) PredictContext(ctx context.Context, X *mat.Dense) ([]int, error) {
+	pred, _, err := c.predict(ctx, X, false)
+	return pred, err
+}
+
+// PredictDetailContext is PredictDetail that stops when ctx is cancelled,
+// as PredictContext does.
+func (c *Classifier) PredictDetailContext(ctx context.Context, X *mat.Dense) ([]int, []Detail, error) {
+	return c.predict(ctx, X, true)
+}
+
+func (c *Classifier) predict(ctx context.Context, X *mat.Dense, detail bool) ([]int, []Detail, error) {
 	if err := c.Validate(); err != nil {
 		return nil, nil, err
 	}
@@ -317,6 +336,9 @@ func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error)
 			return nil, nil, err
 		}
 		return nil, nil, fmt.Errorf("qkernel: predict: %w", err)
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, nil, err
 	}
 	if X == nil || X.IsEmpty() {
 		if detail {
@@ -336,16 +358,24 @@ func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error)
 		backing = make([]float64, r*c.nClass)
 	}
 	s := c.newScratch(p)
+	s.share = c.newShareCache(p)
 	probs := make([]float64, c.nClass)
 	for i := range r {
+		// Rows without a simulation cost microseconds: check every 64th.
+		if (p.gate || i%64 == 0) && ctx.Err() != nil {
+			return nil, nil, ctx.Err()
+		}
 		if f := unitInto(s.x, X.RawRowView(i)); f != vectorOK {
 			return nil, nil, &VectorError{Set: "test", Pos: i, Reason: f.String()}
 		}
 		if detail {
 			probs = backing[i*c.nClass : (i+1)*c.nClass : (i+1)*c.nClass]
 		}
-		det, err := c.row(p, s, i, probs)
+		det, err := c.row(ctx, p, s, i, probs)
 		if err != nil {
+			if ctx.Err() != nil && errors.Is(err, ctx.Err()) {
+				return nil, nil, ctx.Err()
+			}
 			return nil, nil, fmt.Errorf("qkernel: predict: test row %d: %w", i, err)
 		}
 		pred[i] = det.pred

@@ -1,6 +1,7 @@
 package qkernel
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math/rand/v2"
@@ -173,7 +174,7 @@ func (c *Classifier) PredictCounts(X *mat.Dense, counts [][]int) ([]int, []Detai
 		if f := unitInto(s.x, X.RawRowView(i)); f != vectorOK {
 			return nil, nil, &VectorError{Set: "test", Pos: i, Reason: f.String()}
 		}
-		ex, err := e.row(p, s, i, scratchProbs)
+		ex, err := e.row(context.Background(), p, s, i, scratchProbs)
 		if err != nil {
 			return nil, nil, fmt.Errorf("qkernel: predict counts: test row %d: %w", i, err)
 		}

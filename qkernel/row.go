@@ -26,6 +26,7 @@ type scratch struct {
 	ysub   []int       // subset labels
 	pcg    *rand.PCG   // re-seeded for every row
 	rng    *rand.Rand  // draws from pcg
+	share  *shareCache // prepared parts shared by rows (nil: none)
 }
 
 func (c *Classifier) newScratch(p *plan) *scratch {
@@ -62,7 +63,7 @@ type outcome struct {
 
 // row classifies the unit test vector s.x at position pos, writing
 // P(k | acc) into probs (len nClass).
-func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome, error) {
+func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, probs []float64) (outcome, error) {
 	var rng *rand.Rand
 	if c.Mode != ModeExact || c.TrainSubset > 0 {
 		s.pcg.Seed(rowSeeds(c.Seed, pos)) // the same stream as rowRand(c.Seed, pos)
@@ -111,7 +112,7 @@ func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome
 		if c.Mode == ModeCircuit {
 			noise = sim.NoiseModel{}
 		}
-		res, err := sim.Simulate(context.Background(), circ, sim.Options{
+		res, err := s.share.simulate(ctx, ysub, circ, sim.Options{
 			Noise: noise, Method: p.method, Trajectories: c.Trajectories, Rng: rng,
 		})
 		if err != nil {

@@ -34,6 +34,10 @@ type lazyPlan struct {
 	tail []int        // bits to insert after the last operation
 	size []int        // size[i]: compact qubits while ops[i] runs
 	work []int        // work[i]: entries of the register while ops[i] runs (4^size or 2^size)
+	// active holds the qubits touched by the operations (and those active
+	// at the start), ascending: the compact register after the last
+	// operation, before the tail.
+	active []int
 }
 
 // knownGate reports whether the lazy planner knows every qubit the gate
@@ -109,6 +113,11 @@ func planLazyFrom(ops []circuit.Op, n int, active []int, density bool) *lazyPlan
 		p.work[i] = 1 << k
 		if density {
 			p.work[i] = 1 << (2 * k)
+		}
+	}
+	for q := range n {
+		if on[q] {
+			p.active = append(p.active, q)
 		}
 	}
 	for q := range n {

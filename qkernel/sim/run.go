@@ -244,14 +244,8 @@ func applyDensity(ctx context.Context, v *Density, full []complex128, lp *lazyPl
 		return nil
 	}
 	d := v
-	after1 := identitySuperop()
-	if p := m.Depolarizing[0]; p != 0 {
-		after1 = after1.Then(DepolarizingSuperop(p))
-	}
+	after1 := m.after1()
 	damp, dampOn := m.dampingSuperop()
-	if dampOn {
-		after1 = after1.Then(damp)
-	}
 	var damp2 *[4][4]float64 // damping of both CNOT qubits, fused into the CNOT's pass
 	if dampOn {
 		r, _ := realSuperop(&damp) // damping superoperators are real
