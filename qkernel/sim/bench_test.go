@@ -46,19 +46,6 @@ func BenchmarkGate(b *testing.B) {
 	}
 }
 
-// layerCircuit is one layer of the workload of ../shared/perf/numpy_dm.py:
-// RY with a random angle on every qubit, then CNOTs (q, q+1) down the line.
-func layerCircuit(n int, rng *rand.Rand) *circuit.Circuit {
-	c := &circuit.Circuit{NQubits: n, Regs: circuit.Layout{Ancilla: 0}}
-	for q := range n {
-		c.Ops = append(c.Ops, circuit.Op{Gate: circuit.RY, Target: q, Angle: rng.Float64() * 6.28})
-	}
-	for q := 0; q+1 < n; q++ {
-		c.Ops = append(c.Ops, circuit.Op{Gate: circuit.CNOT, Controls: []int{q}, Target: q + 1})
-	}
-	return c
-}
-
 // BenchmarkDensityMatrix runs noisy gates on a density matrix: RY layers
 // with single-qubit depolarizing (p1 = 1e-3) after each, CNOT ladders with
 // two-qubit depolarizing (p2 = 1e-2) after each, the workload of
