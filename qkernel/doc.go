@@ -222,6 +222,13 @@
 // O(T 2^n) per elementary gate; n counts the qubits touched so far, and
 // the density matrix skips the class register's gates, see above).
 //
+// EstimateCost gives the same costs before any data is loaded: for a
+// configuration and the sizes of a task (training rows, features, classes,
+// test rows) it returns the qubits, the gate counts, the simulator and the
+// estimated time under a sim.CostModel calibrated on the machine
+// (sim.Calibrate, about 10 ms), within a small factor of a measured run
+// (tested at two sizes).
+//
 // # Concurrency
 //
 // A fitted Classifier is not modified by Predict or PredictDetail; several
