@@ -105,6 +105,12 @@ type Classifier struct {
 	// Trajectories is the number of Monte Carlo trajectories of the
 	// trajectory method; 0 means sim.DefaultTrajectories.
 	Trajectories int
+	// Mitigate configures readout-error mitigation: in ModeNoisy the
+	// decision is taken on the mitigated outcome distribution (see
+	// MitigateReadout and Mitigation) and Detail.Raw keeps the unmitigated
+	// one; PredictCounts mitigates imported counts with the given
+	// confusion matrices. The zero value mitigates nothing.
+	Mitigate Mitigation
 	// Seed is the task seed. Every test row gets its own generator derived
 	// from Seed and the row's position in the matrix passed to Predict; it
 	// draws, in this order, the training subset, the trajectory jumps and
@@ -134,9 +140,10 @@ type Detail struct {
 	// counts_k / N_acc with finite shots). Classes absent from training
 	// have probability 0 without noise; noise can give them (and the
 	// class-register values >= the number of classes, which belong to no
-	// class) some probability, so under noise Probs may sum to less than
-	// 1. When nothing is accepted, present classes get NaN and absent
-	// ones 0 (see the package documentation).
+	// class; see Unused) some probability, so under noise Probs may sum to
+	// less than 1: they are not renormalised over the valid codes. When
+	// nothing is accepted, present classes get NaN and absent ones 0 (see
+	// the package documentation).
 	Probs []float64
 	// Shots is the number of accepted shots N_acc behind the estimate; 0
 	// with exact probabilities (ModeExact, ModeCircuit, ModeNoisy without
@@ -147,6 +154,25 @@ type Detail struct {
 	// count decisions that shots and noise changed. In ModeExact it equals
 	// the prediction.
 	Exact int
+	// Unused is the share of the accepted probability (or accepted shots)
+	// that fell on class-register values k >= the number of classes,
+	// which name no class: P(a=0, k >= C) / P(a=0). So sum(Probs) + Unused
+	// = 1 whenever something is accepted; Unused is 0 without noise (and
+	// whenever C is a power of two) and NaN when nothing is accepted.
+	Unused float64
+	// Raw is the decision before readout mitigation when Mitigate is set
+	// (the fields above are then the mitigated decision's; Shots stays the
+	// raw N_acc); nil without mitigation.
+	Raw *RawDetail
+}
+
+// RawDetail is the unmitigated decision of a row under readout mitigation:
+// what Detail would hold without Mitigate.
+type RawDetail struct {
+	Pred   int
+	PAcc   float64
+	Probs  []float64
+	Unused float64
 }
 
 // reset forgets any fitted state.
@@ -258,6 +284,11 @@ func (c *Classifier) makePlan() (*plan, error) {
 	nm, nd, nq := circuit.RegisterSizes(p.m, c.d, c.nClass)
 	p.qClass = nq
 	p.qubits = 1 + nm + nd + nq
+	if c.Mitigate.Readout {
+		if _, err := c.confusion(nq); err != nil {
+			return nil, err
+		}
+	}
 	switch {
 	case c.Mode == ModeCircuit:
 		p.gate, p.method = true, sim.StateVector
@@ -352,14 +383,22 @@ func (c *Classifier) predict(ctx context.Context, X *mat.Dense, detail bool) ([]
 	}
 	pred := make([]int, r)
 	var details []Detail
-	var backing []float64
+	var backing, rawBacking []float64
+	mit := c.mitigates()
 	if detail {
 		details = make([]Detail, r)
 		backing = make([]float64, r*c.nClass)
+		if mit {
+			rawBacking = make([]float64, r*c.nClass)
+		}
 	}
 	s := c.newScratch(p)
 	s.share = c.newShareCache(p)
 	probs := make([]float64, c.nClass)
+	var rawProbs []float64
+	if mit {
+		rawProbs = make([]float64, c.nClass)
+	}
 	for i := range r {
 		// Rows without a simulation cost microseconds: check every 64th.
 		if (p.gate || i%64 == 0) && ctx.Err() != nil {
@@ -370,8 +409,11 @@ func (c *Classifier) predict(ctx context.Context, X *mat.Dense, detail bool) ([]
 		}
 		if detail {
 			probs = backing[i*c.nClass : (i+1)*c.nClass : (i+1)*c.nClass]
+			if mit {
+				rawProbs = rawBacking[i*c.nClass : (i+1)*c.nClass : (i+1)*c.nClass]
+			}
 		}
-		det, err := c.row(ctx, p, s, i, probs)
+		det, err := c.row(ctx, p, s, i, probs, rawProbs)
 		if err != nil {
 			if ctx.Err() != nil && errors.Is(err, ctx.Err()) {
 				return nil, nil, ctx.Err()
@@ -380,7 +422,7 @@ func (c *Classifier) predict(ctx context.Context, X *mat.Dense, detail bool) ([]
 		}
 		pred[i] = det.pred
 		if detail {
-			details[i] = Detail{PAcc: det.pacc, Probs: probs, Shots: det.shots, Exact: det.exact}
+			details[i] = Detail{PAcc: det.pacc, Probs: probs, Shots: det.shots, Exact: det.exact, Unused: det.unused, Raw: det.raw}
 		}
 	}
 	return pred, details, nil

@@ -99,6 +99,31 @@
 // N_acc) that belong to no class, so under noise Detail.Probs may sum to
 // less than 1; absent classes are reported but never predicted.
 //
+// # Unused class codes
+//
+// With C classes the class register has 2^q >= C values; under noise the
+// values k >= C receive probability too. They are accepted outcomes (they
+// count in p_acc and N_acc) that name no class. Detail.Probs are NOT
+// renormalised over the valid codes (P(k | acc) = P(a=0, k) / P(a=0) as
+// defined above); Detail.Unused reports the rest, P(a=0, k >= C) / P(a=0),
+// so sum(Probs) + Unused = 1 whenever something is accepted.
+//
+// # Readout mitigation
+//
+// Classifier.Mitigate with Readout set inverts the readout confusion of the
+// measured bits (ancilla and class register) before the decision (see
+// MitigateReadout: the tensor product of the per-qubit inverses applied
+// bit by bit, then the Euclidean projection onto the probability simplex,
+// Wang & Carreira-Perpiñán 2013). In ModeNoisy the confusion matrices
+// default to the model's own readout error; with shots the decision needs
+// every joint count, so the merged rejected shots are split over the
+// a = 1 outcomes by a second multinomial draw after the main one (the
+// unmitigated draws are unchanged). Predict then returns the mitigated
+// decisions; Detail's PAcc, Probs and Unused are the mitigated ones and
+// Detail.Raw holds the unmitigated decision, so a harness can report both.
+// PredictCounts mitigates imported counts with the confusion matrices the
+// caller gives (ConfusionFromCounts turns calibration counts into them).
+//
 // # Qubits and simulators
 //
 // The circuit of M training vectors of d features and C classes has
