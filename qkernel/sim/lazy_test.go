@@ -318,4 +318,12 @@ func TestLazyPlan(t *testing.T) {
 	if lp.work[0] != 4 || lp.work[2] != 64 {
 		t.Errorf("work = %v, want 4 ... 64 (4^k entries)", lp.work)
 	}
+	// A gate kind the planner does not know activates every qubit and is
+	// left as it is (its qubit fields are not renumbered): with qubit 3
+	// active, qubits 0, 1 and 2 are inserted at bits 0, 1 and 2.
+	odd := []circuit.Op{{Gate: circuit.H, Target: 3}, {Gate: circuit.Gate(200), Target: 1}}
+	lp = planLazy(odd, 4, true)
+	if fmt.Sprint(lp.grow[1]) != "[0 1 2]" || lp.size[1] != 4 || lp.ops[1].Target != 1 || len(lp.tail) != 0 {
+		t.Errorf("unknown gate: grow %v, size %d, target %d, tail %v; want [0 1 2], 4, 1, []", lp.grow[1], lp.size[1], lp.ops[1].Target, lp.tail)
+	}
 }
