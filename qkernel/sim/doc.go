@@ -56,10 +56,10 @@
 //
 // # Cancellation
 //
-// Simulate, Outcomes, NewShared and Shared.Simulate check their context
+// Simulate, NewShared, Shared.Simulate and Calibrate check their context
 // about every 10^5 register entries of work (every gate from 9 qubits on a
 // density matrix, from 17 on a state vector) and between trajectories,
-// and return ctx.Err() unwrapped.
+// and return ctx.Err() unwrapped. (Outcomes runs without a context.)
 //
 // # Output
 //
@@ -92,7 +92,9 @@
 //
 // Simulate, Outcomes, NoiseModel.Validate and the closed-form models return
 // errors prefixed "sim: " for bad input (invalid circuit, probabilities
-// outside [0,1], qubit limits, missing generator). The low-level kernels
+// outside [0,1], qubit limits, missing generator); NewShared and the
+// estimates likewise, and Shared.Simulate an error wrapping ErrNotShared
+// for a circuit outside its family. The low-level kernels
 // (State and Density methods, SampleCounts) panic on out-of-range qubits,
 // mismatched angle vectors or invalid probabilities: these are broken
 // invariants of callers that validate first. No function returns NaN for
