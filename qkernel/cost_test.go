@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math/rand/v2"
+	"os"
 	"runtime"
 	"testing"
 	"time"
@@ -73,10 +74,13 @@ func TestEstimateCostStructure(t *testing.T) {
 // TestEstimateCostAgainstRun compares EstimateCost with the measured thread
 // CPU time of Fit and Predict for gate-level noisy runs at two sizes (7 and
 // 9 qubits, training subsets) and trajectories: within a factor of 3, a
-// loose bound on purpose. Skipped with -short.
+// loose bound on purpose. Runs only with FRINGE_TIMING=1.
 func TestEstimateCostAgainstRun(t *testing.T) {
-	if testing.Short() {
-		t.Skip("timing")
+	// A timed check depends on the machine's load, so it never runs by
+	// default (speed claims live in benchmarks); run it on a quiet
+	// machine with FRINGE_TIMING=1.
+	if os.Getenv("FRINGE_TIMING") == "" {
+		t.Skip("timed check of the cost model: set FRINGE_TIMING=1 on a quiet machine to run it")
 	}
 	runtime.LockOSThread()
 	defer runtime.UnlockOSThread()

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math/rand/v2"
+	"os"
 	"runtime"
 	"testing"
 	"time"
@@ -51,10 +52,13 @@ func TestCalibrateStructure(t *testing.T) {
 // with measured runs of compiled classifier circuits at two sizes per
 // simulator: the estimate must lie within a factor of 3 of the fastest of
 // three runs (thread CPU time, as Calibrate measures). The bound is loose
-// on purpose (a shared machine, caches); skipped with -short.
+// on purpose (a shared machine, caches); runs only with FRINGE_TIMING=1.
 func TestEstimateAgainstRuns(t *testing.T) {
-	if testing.Short() {
-		t.Skip("timing")
+	// A timed check depends on the machine's load, so it never runs by
+	// default (speed claims live in benchmarks); run it on a quiet
+	// machine with FRINGE_TIMING=1.
+	if os.Getenv("FRINGE_TIMING") == "" {
+		t.Skip("timed check of the cost model: set FRINGE_TIMING=1 on a quiet machine to run it")
 	}
 	cm, err := Calibrate(context.Background())
 	if err != nil {
