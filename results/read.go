@@ -222,8 +222,10 @@ func ReadFolds(r io.Reader, file string) ([]Fold, error) {
 	})
 }
 
-// ReadPredictions reads predictions.csv; p_acc is optional (NaN when
-// absent or empty), the correct column is ignored (it is derived).
+// ReadPredictions reads predictions.csv; p_acc and unused are optional
+// (NaN when absent or empty), so are shots (0), probs (nil; "nan" entries
+// are NaN) and exact_predicted (""); the correct column is ignored (it is
+// derived).
 func ReadPredictions(r io.Reader, file string) ([]Prediction, error) {
 	req := []string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted"}
 	return readRows(r, file, req, func(rw row) (Prediction, error) {
@@ -252,6 +254,33 @@ func ReadPredictions(r io.Reader, file string) ([]Prediction, error) {
 		if p.PAcc, err = rw.number("p_acc"); err != nil {
 			return p, err
 		}
+		if p.Unused, err = rw.number("unused"); err != nil {
+			return p, err
+		}
+		if rw.has("shots") && strings.TrimSpace(rw.rec[rw.t.col["shots"]]) != "" {
+			if p.Shots, err = rw.integer("shots"); err != nil {
+				return p, err
+			}
+			if p.Shots < 0 {
+				return p, rw.errAt("shots", "negative value %d", p.Shots)
+			}
+		}
+		if rw.has("probs") {
+			if s := strings.TrimSpace(rw.rec[rw.t.col["probs"]]); s != "" {
+				for _, f := range strings.Split(s, ";") {
+					if f == "nan" {
+						p.Probs = append(p.Probs, math.NaN())
+						continue
+					}
+					v, err := strconv.ParseFloat(f, 64)
+					if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+						return p, rw.errAt("probs", "want numbers (or nan) separated by ';', got %q", f)
+					}
+					p.Probs = append(p.Probs, v)
+				}
+			}
+		}
+		p.Exact = rw.text("exact_predicted")
 		return p, nil
 	})
 }

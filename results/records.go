@@ -22,7 +22,12 @@ type Prediction struct {
 	PAcc                     float64   // post-selection probability; NaN when the model has none
 	Shots                    int       // accepted shots behind PAcc and Probs; 0 with exact probabilities or no such model
 	Probs                    []float64 // P(k | acc) in the dataset's class order; nil when the model has none
-	Exact                    string    // the exact-mode decision of an interference model run another way; "" otherwise
+	// Unused is the share of the accepted probability (or shots) on class
+	// register values that name no class (noise can reach them): Probs
+	// are not renormalised, so sum(Probs) + Unused = 1. NaN when the
+	// model reports none.
+	Unused float64
+	Exact  string // the exact-mode decision of an interference model run another way; "" otherwise
 }
 
 // Fold is one row of folds.csv.
@@ -76,7 +81,7 @@ func Fmt(v float64) string {
 // WritePredictions writes predictions.csv.
 func WritePredictions(w io.Writer, rows []Prediction) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "exact_predicted"})
+	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "unused", "exact_predicted"})
 	for _, r := range rows {
 		correct := "0"
 		if r.Label == r.Predicted {
@@ -95,7 +100,7 @@ func WritePredictions(w io.Writer, rows []Prediction) error {
 		}
 		name := csvTexts(r.Dataset, r.Pipeline, r.Model, r.Label, r.Predicted, r.Exact)
 		cw.Write([]string{name[0], name[1], name[2], strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), name[5]})
+			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), Fmt(r.Unused), name[5]})
 	}
 	cw.Flush()
 	return cw.Error()

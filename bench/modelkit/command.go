@@ -124,7 +124,7 @@ func (m *commandModel) Predict(X *mat.Dense) ([]int, error) {
 // PredictDetail runs the program and returns its predictions and, when its
 // output has prob_<class> columns, one Detail per row whose Probs are those
 // probabilities in class order, 0 for a class without a column (the
-// program sees only the classes of its training part); PAcc is NaN, Shots
+// program sees only the classes of its training part); PAcc and Unused are NaN, Shots
 // 0 and Exact the prediction. Without such columns the details are nil.
 func (m *commandModel) PredictDetail(X *mat.Dense) ([]int, []qkernel.Detail, error) {
 	if m.Xtr == nil {
@@ -397,7 +397,7 @@ func (m *commandModel) readOutput(path string) ([]int, []qkernel.Detail, error) 
 	det := make([]qkernel.Detail, len(pred))
 	nc := len(tc.Classes)
 	for i := range det {
-		det[i] = qkernel.Detail{PAcc: math.NaN(), Probs: probs[i*nc : (i+1)*nc : (i+1)*nc], Exact: pred[i]}
+		det[i] = qkernel.Detail{PAcc: math.NaN(), Probs: probs[i*nc : (i+1)*nc : (i+1)*nc], Unused: math.NaN(), Exact: pred[i]}
 	}
 	return pred, det, nil
 }

@@ -48,6 +48,24 @@ func FigureFiles(figs []results.Figure) []File {
 // concurrent use (drawing the same plot in two formats at once gave
 // different bytes).
 func Write(dir string, files []File) error {
+	out, err := Render(files)
+	if err != nil {
+		return err
+	}
+	return WriteRendered(dir, out)
+}
+
+// Rendered is a file's name and bytes.
+type Rendered struct {
+	Name string
+	Data []byte
+}
+
+// Render renders files concurrently, each into its own buffer, and returns
+// them in the order given. The formats of one figure (files named
+// figures/<name>.<ext>) are rendered one after another in one goroutine,
+// as Write says. The first error is returned, naming its file.
+func Render(files []File) ([]Rendered, error) {
 	bufs := make([]bytes.Buffer, len(files))
 	var g errgroup.Group
 	g.SetLimit(runtime.NumCPU())
@@ -75,8 +93,18 @@ func Write(dir string, files []File) error {
 		})
 	}
 	if err := g.Wait(); err != nil {
-		return err
+		return nil, err
 	}
+	out := make([]Rendered, len(files))
+	for i, f := range files {
+		out[i] = Rendered{Name: f.Name, Data: bufs[i].Bytes()}
+	}
+	return out, nil
+}
+
+// WriteRendered writes rendered files as the directory dir, atomically
+// (see Write).
+func WriteRendered(dir string, files []Rendered) error {
 	tmp, err := TempBeside(dir)
 	if err != nil {
 		return err
@@ -87,12 +115,12 @@ func Write(dir string, files []File) error {
 			os.RemoveAll(tmp)
 		}
 	}()
-	for i, f := range files {
+	for _, f := range files {
 		path := filepath.Join(tmp, filepath.FromSlash(f.Name))
 		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 			return fmt.Errorf("write %s: %w", f.Name, err)
 		}
-		if err := os.WriteFile(path, bufs[i].Bytes(), 0o644); err != nil {
+		if err := os.WriteFile(path, f.Data, 0o644); err != nil {
 			return fmt.Errorf("write %s: %w", f.Name, err)
 		}
 	}

@@ -59,7 +59,7 @@ func partialErr(file, format string, args ...any) error {
 }
 
 const (
-	partialFormat = "fringe partial run 1"
+	partialFormat = "fringe partial run 2"
 	identityFile  = "run.json"
 	markerFile    = "PARTIAL"
 	tasksDir      = "tasks"
@@ -141,12 +141,7 @@ func (a runIdentity) differences(b runIdentity) string {
 
 // identity builds the identity of a plan's shard.
 func identity(p *plan.Plan, s plan.Shard, nShardTasks, workers int, started time.Time) runIdentity {
-	dir := p.Spec.Dir // "" for a built-in spec
-	if dir != "" {
-		if abs, err := filepath.Abs(dir); err == nil {
-			dir = abs
-		}
-	}
+	dir := absDir(p.Spec.Dir) // "" for a built-in spec
 	return runIdentity{
 		Format: partialFormat, Version: Version,
 		SpecName: p.Spec.Name, SpecSHA: spec.CanonicalSHA(p.Spec.Source), Seed: p.Spec.Seed,
@@ -527,7 +522,7 @@ func loadTasks(dir string, p *plan.Plan, id runIdentity, member []bool, strict b
 				if rerr := os.Remove(path); rerr != nil {
 					return nil, nil, fmt.Errorf("remove damaged %s: %w", path, rerr)
 				}
-				warns = append(warns, fmt.Sprintf("%s was damaged (%v) and is removed; its tasks run again", path, de.err))
+				warns = append(warns, fmt.Sprintf("%s is damaged (%v) and is removed; its tasks run again", path, de.err))
 				continue
 			}
 			return nil, nil, partialErr(path, "%v", err)

@@ -183,7 +183,11 @@ func TestPartialDamage(t *testing.T) {
 	if err := json.Unmarshal(data, &tf); err != nil {
 		t.Fatal(err)
 	}
-	n0 := len(tf.Tasks)
+	var list []taskJSON
+	if err := json.Unmarshal(tf.Tasks, &list); err != nil {
+		t.Fatal(err)
+	}
+	n0 := len(list)
 	os.WriteFile(files[0], data[:len(data)/2], 0o644)
 	os.WriteFile(filepath.Join(dir, "tasks", ".tmp-0000007.json-123"), []byte("{"), 0o644)
 	again, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
@@ -204,27 +208,35 @@ func TestPartialDamage(t *testing.T) {
 	}
 	runPartial(t, p, again)
 
-	// Decodes, but contradicts the plan: refused, not repaired.
-	tamper := func(edit func(*taskFile)) error {
+	// Decodes, matches its digest (recomputed as fringe would), but
+	// contradicts the plan: refused, not repaired.
+	type editable struct {
+		Run   string
+		Tasks []taskJSON
+	}
+	tamper := func(edit func(*editable)) error {
 		files, _ := filepath.Glob(filepath.Join(dir, "tasks", "*.json"))
 		data, _ := os.ReadFile(files[0])
 		var tf taskFile
 		json.Unmarshal(data, &tf)
-		edit(&tf)
-		b, _ := json.Marshal(tf)
+		e := editable{Run: tf.Run}
+		json.Unmarshal(tf.Tasks, &e.Tasks)
+		edit(&e)
+		list, _ := json.Marshal(e.Tasks)
+		b, _ := json.Marshal(taskFile{Run: e.Run, Digest: taskDigest(e.Run, list), Tasks: list})
 		os.WriteFile(files[0], b, 0o644)
 		defer os.WriteFile(files[0], data, 0o644)
 		_, err := OpenPartial(dir, p, plan.Shard{}, PartialOptions{})
 		return err
 	}
-	for name, edit := range map[string]func(*taskFile){
-		"class out of range": func(tf *taskFile) { tf.Tasks[0].Pred[0] = 99 },
-		"key":                func(tf *taskFile) { tf.Tasks[0].Key = "iris/raw/x/0/0" },
-		"index":              func(tf *taskFile) { tf.Tasks[0].Index = 100000 },
-		"short predictions":  func(tf *taskFile) { tf.Tasks[0].Pred = tf.Tasks[0].Pred[:1] },
-		"other run":          func(tf *taskFile) { tf.Run = strings.Repeat("0", 64) },
-		"split size":         func(tf *taskFile) { tf.Tasks[0].NTrain++ },
-		"duplicate":          func(tf *taskFile) { tf.Tasks = append(tf.Tasks, tf.Tasks[0]) },
+	for name, edit := range map[string]func(*editable){
+		"class out of range": func(tf *editable) { tf.Tasks[0].Pred[0] = 99 },
+		"key":                func(tf *editable) { tf.Tasks[0].Key = "iris/raw/x/0/0" },
+		"index":              func(tf *editable) { tf.Tasks[0].Index = 100000 },
+		"short predictions":  func(tf *editable) { tf.Tasks[0].Pred = tf.Tasks[0].Pred[:1] },
+		"other run":          func(tf *editable) { tf.Run = strings.Repeat("0", 64) },
+		"split size":         func(tf *editable) { tf.Tasks[0].NTrain++ },
+		"duplicate":          func(tf *editable) { tf.Tasks = append(tf.Tasks, tf.Tasks[0]) },
 	} {
 		err := tamper(edit)
 		if err == nil || !errors.Is(err, input.ErrBad) {

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"path/filepath"
 	"runtime"
 	"runtime/debug"
 	"time"
@@ -42,11 +43,11 @@ func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fo
 				Repeat: sp.Repeat, Fold: sp.Fold, Row: d.Data.Rows[j],
 				Label:     d.Data.Classes[d.Data.Y[j]],
 				Predicted: d.Data.Classes[r.Pred[i]],
-				PAcc:      math.NaN(),
+				PAcc:      math.NaN(), Unused: math.NaN(),
 			}
 			if r.Details != nil {
 				det := r.Details[i]
-				pr.PAcc, pr.Shots, pr.Probs = det.PAcc, det.Shots, det.Probs
+				pr.PAcc, pr.Shots, pr.Probs, pr.Unused = det.PAcc, det.Shots, det.Probs, det.Unused
 				if notExact {
 					pr.Exact = d.Data.Classes[det.Exact]
 				}
@@ -204,7 +205,7 @@ func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 		Tool: "fringe", Version: Version, GoVersion: runtime.Version(),
 		Modules:  map[string]string{},
 		Command:  info.Command,
-		SpecName: p.Spec.Name, SpecFile: p.Spec.File, SpecText: string(p.Spec.Source),
+		SpecName: p.Spec.Name, SpecFile: p.Spec.File, SpecDir: absDir(p.Spec.Dir), SpecText: string(p.Spec.Source),
 		Seed: p.Spec.Seed, Workers: info.Workers, Tasks: len(p.Tasks),
 		Start:   info.Start.UTC().Format(time.RFC3339Nano),
 		End:     info.End.UTC().Format(time.RFC3339Nano),
@@ -235,48 +236,99 @@ func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 }
 
 // Write writes a complete run directory at dir: the records (CSV), the
-// report (summary.tex, summary.md, comparisons.csv; see report.Analyse), the
-// figures (figures/*.svg, .pdf, .png; see report.Figures and report.KernelFigure)
-// and the manifest, whose warnings gain the grouped warnings of the
-// statistics. Files are first written into a temporary directory beside
-// dir, which is renamed into place only when every file is complete; an
-// existing dir is replaced only then. On error nothing is left behind.
+// report (summary.tex with its standalone wrapper, summary.md,
+// comparisons.csv; see report.Analyse), the figures (figures/*.svg, .pdf,
+// .png; see report.Figures and report.KernelFigure), the digest list
+// (results.DigestsFile) and the manifest, whose warnings gain the grouped
+// warnings of the statistics and of the LaTeX tables, and which seals the
+// digest list, timings.csv and itself (results.SealManifest). Files are
+// first written into a temporary directory beside dir, which is renamed
+// into place only when every file is complete; an existing dir is
+// replaced only then. On error nothing is left behind.
 func Write(p *plan.Plan, dir string, res []TaskResult, info RunInfo, warnings []string) error {
+	c, err := renderRun(p, res, info.NoFigures)
+	if err != nil {
+		return err
+	}
+	var timings bytes.Buffer
+	if err := results.WriteTimings(&timings, c.times); err != nil {
+		return err
+	}
+	content := map[string][]byte{}
+	for _, f := range c.files {
+		content[f.Name] = f.Data
+	}
+	digests := results.DigestList(content)
+	m := Manifest(p, info, append(append([]string(nil), warnings...), c.warnings...))
+	m.DigestsSHA, m.TimingsSHA = results.SHA256Hex(digests), results.SHA256Hex(timings.Bytes())
+	manifest, err := results.SealManifest(m)
+	if err != nil {
+		return err
+	}
+	files := append(c.files,
+		outdir.Rendered{Name: results.DigestsFile, Data: digests},
+		outdir.Rendered{Name: "timings.csv", Data: timings.Bytes()},
+		outdir.Rendered{Name: "manifest.json", Data: manifest})
+	return outdir.WriteRendered(dir, files)
+}
+
+// renderedRun is what a run directory holds but its manifest, timings and
+// digest list: the files that are byte-identical for the same spec and
+// seed, rendered, with the timing records and the warnings of the
+// statistics and the tables.
+type renderedRun struct {
+	files    []outdir.Rendered
+	times    []results.Timing
+	warnings []string
+}
+
+// renderRun renders the deterministic files of a run directory.
+func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, error) {
 	preds, folds, times := Records(p, res)
 	in := reportInput(p, res, preds, folds)
 	summary := in.Summary
 	rep, err := report.Analyse(in)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	var figs []results.Figure
-	if !info.NoFigures {
+	if !noFigures {
 		figs, err = report.Figures(rep, preds)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		kf, err := report.KernelFigure(p)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		figs = append(figs, kf)
 	}
 	for _, f := range figs {
 		rep.Figures = append(rep.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
 	}
-	allWarnings := append(append([]string(nil), warnings...), rep.Warnings...)
+	tex, err := results.ReportTeX(rep)
+	if err != nil {
+		return nil, err
+	}
 	files := []outdir.File{
 		{Name: "predictions.csv", Render: func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
 		{Name: "folds.csv", Render: func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
 		{Name: "summary.csv", Render: func(b *bytes.Buffer) error { return results.WriteSummary(b, summary) }},
-		{Name: "summary.tex", Render: func(b *bytes.Buffer) error { return results.WriteReportTeX(b, rep) }},
+		{Name: "summary.tex", Render: func(b *bytes.Buffer) error { b.WriteString(tex.Text); return nil }},
+		{Name: results.StandaloneName, Render: func(b *bytes.Buffer) error {
+			b.WriteString(results.StandaloneTeX(rep, "summary.tex"))
+			return nil
+		}},
 		{Name: "summary.md", Render: func(b *bytes.Buffer) error { return results.WriteReportMarkdown(b, rep) }},
 		{Name: "comparisons.csv", Render: func(b *bytes.Buffer) error { return results.WriteComparisons(b, rep.Comparisons) }},
-		{Name: "timings.csv", Render: func(b *bytes.Buffer) error { return results.WriteTimings(b, times) }},
-		{Name: "manifest.json", Render: func(b *bytes.Buffer) error { return results.WriteManifest(b, Manifest(p, info, allWarnings)) }},
 	}
 	files = append(files, outdir.FigureFiles(figs)...)
-	return outdir.Write(dir, files)
+	out, err := outdir.Render(files)
+	if err != nil {
+		return nil, err
+	}
+	warns := append(append([]string(nil), rep.Warnings...), tex.Warnings...)
+	return &renderedRun{files: out, times: times, warnings: warns}, nil
 }
 
 // Report analyses a finished run: report.Analyse on its records.
@@ -295,4 +347,15 @@ func reportInput(p *plan.Plan, res []TaskResult, preds []results.Prediction, fol
 		in.Variants = append(in.Variants, report.VariantOf(m))
 	}
 	return in
+}
+
+// absDir is dir made absolute ("" stays "": a built-in spec).
+func absDir(dir string) string {
+	if dir == "" {
+		return ""
+	}
+	if abs, err := filepath.Abs(dir); err == nil {
+		return abs
+	}
+	return dir
 }

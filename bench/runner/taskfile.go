@@ -2,6 +2,8 @@ package runner
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -15,22 +17,44 @@ import (
 )
 
 // The task files of a partial run directory (tasks/NNNNNNN.json): one JSON
-// object {"run": digest, "tasks": [...]}, each task with its index, key,
-// split sizes, elapsed time, predictions and, for models that report them,
-// per-instance details. Floats are written so that they read back bit for
-// bit (jsonFloat). Scores are not stored: they are recomputed from the
-// predictions on loading.
+// object {"run": digest, "sha256": digest, "tasks": [...]}, each task with
+// its index, key, split sizes, elapsed time, predictions and, for models
+// that report them, per-instance details. Floats are written so that they
+// read back bit for bit (jsonFloat). Scores are not stored: they are
+// recomputed from the predictions on loading.
+//
+// Integrity: "sha256" is the SHA-256 of the task list's bytes as written,
+// bound to the run (taskDigest: the run identity's digest — canonical
+// spec, seed, version, plan fingerprint with the data — comes first). A
+// file whose list was edited, even into valid JSON, or that was copied
+// from another run, fails the check: a resumed run recomputes its tasks
+// (with a warning naming the file), a merge refuses the shard. The digest
+// is not keyed, on purpose: the key would have to live beside fringe,
+// where anyone who can run fringe can read it, so a key would protect
+// against nobody who could not also recompute the digest. It catches
+// accidents (editors, partial copies, sync tools, bit rot) and edits made
+// without fringe; it is not a signature, and the README says so.
 
-// damagedError is a task file that does not decode (truncated or garbled),
-// as opposed to one that decodes but contradicts the run.
+// damagedError is a task file that does not decode (truncated or garbled)
+// or whose content does not match its digest, as opposed to one that
+// decodes, matches and contradicts the run.
 type damagedError struct{ err error }
 
 func (e *damagedError) Error() string { return "damaged: " + e.err.Error() }
 
 // taskFile is the JSON form of a batch of finished tasks.
 type taskFile struct {
-	Run   string     `json:"run"` // runIdentity.digest of the run
-	Tasks []taskJSON `json:"tasks"`
+	Run    string          `json:"run"`    // runIdentity.digest of the run
+	Digest string          `json:"sha256"` // taskDigest(Run, Tasks)
+	Tasks  json.RawMessage `json:"tasks"`  // []taskJSON
+}
+
+// taskDigest is the hex SHA-256 of a task list's bytes, bound to the run.
+func taskDigest(run string, tasks []byte) string {
+	h := sha256.New()
+	fmt.Fprintf(h, "fringe task file\x00%s\x00", run)
+	h.Write(tasks)
+	return hex.EncodeToString(h.Sum(nil))
 }
 
 type taskJSON struct {
@@ -44,10 +68,11 @@ type taskJSON struct {
 }
 
 type detailJSON struct {
-	PAcc  jsonFloat   `json:"p_acc"`
-	Probs []jsonFloat `json:"probs"`
-	Shots int         `json:"shots"`
-	Exact int         `json:"exact"`
+	PAcc   jsonFloat   `json:"p_acc"`
+	Probs  []jsonFloat `json:"probs"`
+	Unused jsonFloat   `json:"unused"`
+	Shots  int         `json:"shots"`
+	Exact  int         `json:"exact"`
 }
 
 // jsonFloat is a float64 that survives JSON exactly: finite values as
@@ -89,13 +114,13 @@ func (f *jsonFloat) UnmarshalJSON(b []byte) error {
 
 // encodeTasks writes a batch of results as a task file.
 func encodeTasks(p *plan.Plan, run string, batch []TaskResult) ([]byte, error) {
-	tf := taskFile{Run: run, Tasks: make([]taskJSON, len(batch))}
+	tasks := make([]taskJSON, len(batch))
 	for k, r := range batch {
 		tj := taskJSON{Index: r.Task.Index, Key: p.Key(r.Task), NTrain: r.NTrain, NTest: r.NTest, ElapsedNS: int64(r.Elapsed), Pred: r.Pred}
 		if r.Details != nil {
 			tj.Details = make([]detailJSON, len(r.Details))
 			for i, d := range r.Details {
-				dj := detailJSON{PAcc: jsonFloat(d.PAcc), Shots: d.Shots, Exact: d.Exact}
+				dj := detailJSON{PAcc: jsonFloat(d.PAcc), Unused: jsonFloat(d.Unused), Shots: d.Shots, Exact: d.Exact}
 				if d.Probs != nil {
 					dj.Probs = make([]jsonFloat, len(d.Probs))
 					for j, v := range d.Probs {
@@ -105,9 +130,13 @@ func encodeTasks(p *plan.Plan, run string, batch []TaskResult) ([]byte, error) {
 				tj.Details[i] = dj
 			}
 		}
-		tf.Tasks[k] = tj
+		tasks[k] = tj
 	}
-	data, err := json.Marshal(tf)
+	list, err := json.Marshal(tasks)
+	if err != nil {
+		return nil, fmt.Errorf("encode finished tasks: %w", err)
+	}
+	data, err := json.Marshal(taskFile{Run: run, Digest: taskDigest(run, list), Tasks: list})
 	if err != nil {
 		return nil, fmt.Errorf("encode finished tasks: %w", err)
 	}
@@ -119,7 +148,8 @@ func encodeTasks(p *plan.Plan, run string, batch []TaskResult) ([]byte, error) {
 // membership, the split sizes, and every class index. Scores are
 // recomputed from the predictions (results.Score is a function of them),
 // so a task file cannot carry scores that contradict its predictions.
-// Syntax errors are *damagedError.
+// Syntax errors and a content that does not match its digest are
+// *damagedError.
 func decodeTasks(p *plan.Plan, run string, member []bool, data []byte) ([]*TaskResult, error) {
 	var tf taskFile
 	dec := json.NewDecoder(bytes.NewReader(data))
@@ -133,11 +163,20 @@ func decodeTasks(p *plan.Plan, run string, member []bool, data []byte) ([]*TaskR
 	if tf.Run != run {
 		return nil, fmt.Errorf("the tasks belong to another run (run %.12s, not %.12s)", tf.Run, run)
 	}
-	if len(tf.Tasks) == 0 {
+	if tf.Digest != taskDigest(run, tf.Tasks) {
+		return nil, &damagedError{errors.New("its content does not match its sha256 digest (edited or corrupted after fringe wrote it)")}
+	}
+	var tasks []taskJSON
+	dec = json.NewDecoder(bytes.NewReader(tf.Tasks))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&tasks); err != nil {
+		return nil, &damagedError{err}
+	}
+	if len(tasks) == 0 {
 		return nil, errors.New("no tasks")
 	}
-	out := make([]*TaskResult, 0, len(tf.Tasks))
-	for _, tj := range tf.Tasks {
+	out := make([]*TaskResult, 0, len(tasks))
+	for _, tj := range tasks {
 		r, err := decodeTask(p, member, tj)
 		if err != nil {
 			return nil, err
@@ -192,7 +231,7 @@ func decodeTask(p *plan.Plan, member []bool, tj taskJSON) (*TaskResult, error) {
 			if dj.Shots < 0 {
 				return bad("negative shot count")
 			}
-			det := qkernel.Detail{PAcc: float64(dj.PAcc), Shots: dj.Shots, Exact: dj.Exact}
+			det := qkernel.Detail{PAcc: float64(dj.PAcc), Unused: float64(dj.Unused), Shots: dj.Shots, Exact: dj.Exact}
 			if dj.Probs != nil {
 				det.Probs = make([]float64, len(dj.Probs))
 				for j, v := range dj.Probs {
