@@ -10,6 +10,7 @@
 // circuit of one test instance of a dataset for `fringe circuit`.
 //
 // Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
-// bench/outdir and the model packages (qkernel, qkernel/circuit,
-// datasets). It must never import runner, report, assess or cluster.
+// bench/outdir, results (the CSV cell rule) and the model packages
+// (qkernel, qkernel/circuit, datasets). It must never import runner,
+// report, assess or cluster.
 package export

@@ -19,6 +19,7 @@ import (
 	"fringe/bench/plan"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
+	"fringe/results"
 )
 
 // IndexColumns are the columns of index.csv in a circuit export.
@@ -222,7 +223,7 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 				if err := os.WriteFile(filepath.Join(tmp, name), text, 0o644); err != nil {
 					return fmt.Errorf("export: %w", err)
 				}
-				index[k] = []string{name, it.Dataset, it.Pipeline, strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold),
+				index[k] = []string{name, results.EscapeCSVCell(it.Dataset), results.EscapeCSVCell(it.Pipeline), strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold),
 					strconv.Itoa(it.Row), strconv.Itoa(it.Circuit.NQubits), strconv.Itoa(len(it.Circuit.Regs.Class))}
 				sizes[k], qubits[k] = int64(len(text)), it.Circuit.NQubits
 				k++

@@ -74,8 +74,8 @@ func ReadScores(r io.Reader, file string) (*ScoreTable, error) {
 		if len(rec) != len(head) {
 			return nil, bad(line, "", "%d fields, the header has %d", len(rec), len(head))
 		}
-		ds := strings.TrimSpace(rec[col["dataset"]])
-		model := strings.TrimSpace(rec[col["model"]])
+		ds := results.UnescapeCSVCell(strings.TrimSpace(rec[col["dataset"]]))
+		model := results.UnescapeCSVCell(strings.TrimSpace(rec[col["model"]]))
 		if ds == "" {
 			return nil, bad(line, "dataset", "empty dataset name")
 		}

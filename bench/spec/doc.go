@@ -11,7 +11,13 @@
 // blank lines and key order do not change a run's identity while any value
 // does) and the built-in demo spec.
 //
-// Imports: bench/input, bench/modelkit and package datasets (pipeline
-// syntax). It must never import plan, runner, report, export, assess,
-// cluster or results: a spec is read before anything is planned or run.
+// Names: no string of a spec may hold invalid UTF-8 or control characters,
+// and the names the user chooses (spec, dataset display names, model
+// names) may not start like a spreadsheet formula (results.FormulaLike);
+// both are located errors.
+//
+// Imports: bench/input, bench/modelkit, package datasets (pipeline
+// syntax) and results (the one rule of what a spreadsheet reads as a
+// formula). It must never import plan, runner, report, export, assess or
+// cluster: a spec is read before anything is planned or run.
 package spec

@@ -149,10 +149,16 @@ func Parse(file string, data []byte) (*Spec, error) {
 			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, model; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference; in [[dataset]]: name, classes, features, as, label, drop_invalid)")
 		}
 	}
+	if err := checkText(data, bad); err != nil {
+		return nil, err
+	}
 	s := &Spec{File: file, Source: append([]byte(nil), data...)}
 	s.Name = raw.Name
 	if s.Name == "" {
 		return nil, bad("name", "missing spec name")
+	}
+	if msg := checkName("spec name", s.Name); msg != "" {
+		return nil, bad("name", "%s", msg)
 	}
 	if strings.ContainsAny(s.Name, "/\\") || s.Name == "." || s.Name == ".." {
 		return nil, bad("name", "spec name %q must not contain path separators", s.Name)
@@ -215,7 +221,17 @@ func parseDatasets(raw *rawSpec, lines keyLines, bad func(key, format string, ar
 		return nil, bad("datasets", "no datasets (give `datasets = [...]` or [[dataset]] tables)")
 	}
 	seen := map[string]bool{}
-	for _, d := range out {
+	for i, d := range out {
+		if msg := checkName("dataset name", d.Display()); msg != "" {
+			key := "datasets"
+			if i >= len(raw.Datasets) {
+				key = fmt.Sprintf("dataset[%d].name", i-len(raw.Datasets)+1)
+				if d.As != "" {
+					key = fmt.Sprintf("dataset[%d].as", i-len(raw.Datasets)+1)
+				}
+			}
+			return nil, bad(key, "%s", msg)
+		}
 		if seen[d.Display()] {
 			return nil, bad("datasets", "dataset %q appears twice (use `as` to tell two selections apart)", d.Display())
 		}
@@ -314,6 +330,9 @@ func parseModels(tables []map[string]any, ref, file string, lines keyLines, bad 
 			return nil, &input.Error{File: file, Line: lines.find(key), Key: key, Err: err}
 		}
 		ms.Line = lines.find(key)
+		if msg := checkName("model name", ms.Name); msg != "" {
+			return nil, bad(key+".name", "%s", msg)
+		}
 		if j, dup := names[ms.Name]; dup {
 			return nil, bad(key, "model name %q is also used by model[%d]; give one of them a distinct `name`", ms.Name, j)
 		}
