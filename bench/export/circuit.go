@@ -73,7 +73,7 @@ func BuildCircuit(req CircuitRequest) (*CircuitResult, error) {
 	}
 	Xtr, ytr, rowsTr := plan.Gather(data, train)
 	Xte, _, rowsTe := plan.Gather(data, []int{pos})
-	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
+	Ztr, err := pipe.FitTransformLabeled(Xtr, ytr, rowsTr)
 	if err != nil {
 		return nil, &input.Error{Err: fmt.Errorf("dataset %s, pipeline %s: %w", req.Dataset.Display(), req.Pipeline, err)}
 	}

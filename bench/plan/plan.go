@@ -3,6 +3,7 @@ package plan
 import (
 	"errors"
 	"fmt"
+	"math"
 	"path/filepath"
 
 	"fringe/baselines"
@@ -138,27 +139,39 @@ func planDataset(s *spec.Spec, ds spec.Dataset) (*Dataset, error) {
 	return pd, nil
 }
 
-// LoadDataset loads a dataset named in a spec (embedded, synthetic or CSV,
-// relative paths resolved against the spec's directory) and applies its
-// class and feature selection.
+// LoadDataset loads a dataset named in a spec (embedded, synthetic, or a
+// CSV, ARFF or svmlight file, relative paths resolved against the spec's
+// directory) and applies its class and feature selection.
 func LoadDataset(s *spec.Spec, ds spec.Dataset) (*datasets.Dataset, error) {
 	inErr := func(err error) error {
 		return &input.Error{File: s.File, Line: ds.Line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
 	}
 	var data *datasets.Dataset
 	var err error
-	if spec.IsPath(ds.Name) {
+	if ds.IsFile() {
 		path := ds.Name
 		if !filepath.IsAbs(path) && s.Dir != "" {
 			path = filepath.Join(s.Dir, path)
 		}
-		data, err = datasets.LoadCSV(path, datasets.CSVOptions{Label: ds.Label, DropInvalid: ds.DropInvalid})
+		format, err := datasets.ParseFormat(ds.Format)
 		if err != nil {
-			return nil, &input.Error{Err: err} // the CSV error names file, line and column
+			return nil, inErr(err)
+		}
+		base, err := datasets.ParseIndexBase(ds.IndexBase)
+		if err != nil {
+			return nil, inErr(err)
+		}
+		data, err = datasets.LoadFile(path, datasets.LoadOptions{Format: format, Label: ds.Label, DropInvalid: ds.DropInvalid, IndexBase: base})
+		if err != nil {
+			var le *datasets.CSVError
+			if errors.As(err, &le) {
+				return nil, &input.Error{Err: err} // the loader's error names file, line and column
+			}
+			return nil, inErr(err)
 		}
 	} else {
 		if ds.Label != "" || ds.DropInvalid {
-			return nil, inErr(fmt.Errorf("label and drop_invalid apply to CSV files only"))
+			return nil, inErr(fmt.Errorf("label and drop_invalid apply to data files only"))
 		}
 		data, err = datasets.Load(ds.Name)
 		if err != nil {
@@ -191,6 +204,9 @@ func classError(err error, data *datasets.Dataset, folds int) error {
 // train_subset larger than a training part or smaller than the number of
 // classes it holds.
 func (p *Plan) checkModels() error {
+	if err := p.checkPipelines(); err != nil {
+		return err
+	}
 	if err := p.checkQubits(); err != nil {
 		return err
 	}
@@ -235,6 +251,29 @@ func (p *Plan) checkModels() error {
 	return nil
 }
 
+// checkPipelines rejects a pipeline whose steps cannot be fitted on the
+// smallest training part of a dataset (pca(k) with k above its rows or
+// features, select(k) with k above the features), before anything runs.
+func (p *Plan) checkPipelines() error {
+	for _, ps := range p.Spec.Pipelines {
+		pipe, err := datasets.ParsePipeline(ps)
+		if err != nil {
+			return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines", Err: err}
+		}
+		for _, d := range p.Datasets {
+			minTrain := math.MaxInt
+			for _, sp := range d.Splits {
+				minTrain = min(minTrain, len(sp.Train))
+			}
+			if _, err := pipe.CheckDims(minTrain, d.Data.Dim()); err != nil {
+				return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines",
+					Err: fmt.Errorf("dataset %s (smallest training part %d rows, %d features): %w", d.Name, minTrain, d.Data.Dim(), err)}
+			}
+		}
+	}
+	return nil
+}
+
 // checkQubits rejects an interference model whose circuit, for the largest
 // training part (or its train_subset) and the features after each pipeline,
 // needs more qubits than the simulator it will run on holds: the density
@@ -261,10 +300,14 @@ func (p *Plan) checkQubits() error {
 				if err != nil {
 					return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 				}
-				dim := len(pipe.FeatureNames(d.Data.Features))
 				mTrain := 0
 				for _, sp := range d.Splits {
 					mTrain = max(mTrain, len(sp.Train))
+				}
+				// Features after the pipeline: an upper bound after pca(f).
+				dim, err := pipe.CheckDims(mTrain, d.Data.Dim())
+				if err != nil {
+					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines", Err: err}
 				}
 				if q.TrainSubset > 0 {
 					mTrain = min(mTrain, q.TrainSubset)

@@ -28,10 +28,18 @@ func Gather(d *datasets.Dataset, idx []int) (*mat.Dense, []int, []int) {
 }
 
 // classify marks pipeline errors that stem from the data as input errors.
-func (p *Plan) classify(err error, where string) error {
+// An error about one row of the data names the row's source, file and
+// line (datasets.Dataset.LocateError), where the dataset has one; else the
+// spec.
+func (p *Plan) classify(d *datasets.Dataset, err error, where string) error {
 	if errors.Is(err, datasets.ErrZeroVector) || errors.Is(err, datasets.ErrUnknownStep) ||
-		errors.Is(err, datasets.ErrStepParam) || errors.Is(err, datasets.ErrNotFiniteValue) {
-		return &input.Error{File: p.Spec.File, Err: fmt.Errorf("%s: %w", where, err)}
+		errors.Is(err, datasets.ErrStepParam) || errors.Is(err, datasets.ErrNotFiniteValue) ||
+		errors.Is(err, datasets.ErrStepData) {
+		file := p.Spec.File
+		if at, ok := d.LocateError(err); ok {
+			file = at
+		}
+		return &input.Error{File: file, Err: fmt.Errorf("%s: %w", where, err)}
 	}
 	return fmt.Errorf("%s: %w", where, err)
 }
@@ -79,17 +87,17 @@ func (p *Plan) Prepare(di, pi, si int) (*Prepared, error) {
 		return nil, &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 	}
 	pr := &Prepared{Where: fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, ps, sp.Repeat, sp.Fold)}
-	pr.Features = pipe.FeatureNames(d.Data.Features)
 	Xtr, ytr, rowsTr := Gather(d.Data, sp.Train)
 	Xte, _, rowsTe := Gather(d.Data, sp.Test)
-	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
+	Ztr, err := pipe.FitTransformLabeled(Xtr, ytr, rowsTr)
 	if err != nil {
-		return nil, p.classify(err, pr.Where)
+		return nil, p.classify(d.Data, err, pr.Where)
 	}
 	Zte, err := pipe.Transform(Xte, rowsTe)
 	if err != nil {
-		return nil, p.classify(err, pr.Where)
+		return nil, p.classify(d.Data, err, pr.Where)
 	}
+	pr.Features = pipe.FeatureNames(d.Data.Features) // after the fit: pca(f) knows its width only then
 	pr.Ztr, pr.Ytr, pr.RowsTr, pr.Zte, pr.RowsTe = Ztr, ytr, rowsTr, Zte, rowsTe
 	return pr, nil
 }

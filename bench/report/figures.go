@@ -369,7 +369,7 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 			return results.Figure{}, &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 		}
 		for _, d := range p.Datasets {
-			Z, err := pl.FitTransform(d.Data.X, d.Data.Rows)
+			Z, err := pl.FitTransformLabeled(d.Data.X, d.Data.Y, d.Data.Rows)
 			if err != nil {
 				return results.Figure{}, fmt.Errorf("report: kernel figure: dataset %s: %w", d.Name, err)
 			}

@@ -51,7 +51,7 @@ func FuzzParseSpec(f *testing.F) {
 			return
 		}
 		for _, d := range s.Datasets {
-			if spec.IsPath(d.Name) {
+			if d.IsFile() {
 				return
 			}
 		}

@@ -37,7 +37,9 @@ type Dataset struct {
 	Features    []string // optional feature subset (names or 0-based indices)
 	As          string   // optional display name
 	Label       string   // CSV only: label column name (default: last column)
-	DropInvalid bool     // CSV only: drop rows with missing or non-numeric values
+	DropInvalid bool     // files only: drop rows with missing or non-numeric values
+	Format      string   // files only: "csv", "arff" or "svmlight"; "" picks by extension
+	IndexBase   string   // svmlight only: "one" (default), "zero" or "auto"
 
 	Line int // line of the entry in the spec file (0 if unknown)
 }
@@ -99,6 +101,8 @@ type rawDataset struct {
 	As          string   `toml:"as"`
 	Label       string   `toml:"label"`
 	DropInvalid bool     `toml:"drop_invalid"`
+	Format      string   `toml:"format"`
+	IndexBase   string   `toml:"index_base"`
 }
 
 type rawCV struct {
@@ -146,7 +150,7 @@ func Parse(file string, data []byte) (*Spec, error) {
 			if strings.HasPrefix(ks, "model.") || ks == "model" {
 				continue // model keys are checked per kind below
 			}
-			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, model; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference; in [[dataset]]: name, classes, features, as, label, drop_invalid)")
+			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, model; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference; in [[dataset]]: name, classes, features, as, label, drop_invalid, format, index_base)")
 		}
 	}
 	if err := checkText(data, bad); err != nil {
@@ -201,7 +205,17 @@ func parseDatasets(raw *rawSpec, lines keyLines, bad func(key, format string, ar
 		if d.Name == "" {
 			return nil, bad(key+".name", "missing dataset name")
 		}
-		ds := Dataset{Name: d.Name, Classes: d.Classes, As: d.As, Label: d.Label, DropInvalid: d.DropInvalid, Line: lines.find(key + ".name")}
+		ds := Dataset{Name: d.Name, Classes: d.Classes, As: d.As, Label: d.Label, DropInvalid: d.DropInvalid,
+			Format: d.Format, IndexBase: d.IndexBase, Line: lines.find(key + ".name")}
+		if _, err := datasets.ParseFormat(d.Format); err != nil {
+			return nil, bad(key+".format", "%v", err)
+		}
+		if _, err := datasets.ParseIndexBase(d.IndexBase); err != nil {
+			return nil, bad(key+".index_base", "%v", err)
+		}
+		if d.IndexBase != "" && d.Format != "svmlight" && datasets.FormatOf(d.Name) != datasets.FormatSVMLight {
+			return nil, bad(key+".index_base", "index_base applies to svmlight files only")
+		}
 		for _, f := range d.Features {
 			switch v := f.(type) {
 			case string:
@@ -425,8 +439,12 @@ func CheckPipeline(s string) error {
 
 // IsPath reports whether a dataset name refers to a file rather than an
 // embedded or synthetic dataset: it contains a path separator or ends in
-// .csv, .tsv or .txt (write ./name for other files).
+// an extension of a data file (.csv, .tsv, .txt, .arff, .svm, .svmlight,
+// .libsvm, each optionally .gz; write ./name for other files).
 func IsPath(name string) bool {
-	l := strings.ToLower(name)
-	return strings.ContainsAny(name, `/\`) || strings.HasSuffix(l, ".csv") || strings.HasSuffix(l, ".tsv") || strings.HasSuffix(l, ".txt")
+	return strings.ContainsAny(name, `/\`) || datasets.FormatOf(name) != datasets.FormatAuto
 }
+
+// IsFile reports whether the dataset is read from a file: its name is a
+// path (IsPath) or it gives a format.
+func (d Dataset) IsFile() bool { return IsPath(d.Name) || d.Format != "" }

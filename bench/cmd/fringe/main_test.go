@@ -45,7 +45,7 @@ func TestBadInput(t *testing.T) {
 		{"inf.toml", []string{"inf.csv:4", "x2"}},
 		{"one_class.toml", []string{"one_class.csv", "class"}},
 		{"small_class.toml", []string{"small_class.toml", `class "c" has 2 members`, "3 folds"}},
-		{"zero_row.toml", []string{"zero_row.toml", "row 2", "zero"}},
+		{"zero_row.toml", []string{"zero_row.csv:4", "row 2", "zero"}},
 		{"unknown_key.toml", []string{"unknown_key.toml:4", "colour"}},
 		{"unknown_model_key.toml", []string{"unknown_model_key.toml:7", "model[1].gama"}},
 		{"unknown_kind.toml", []string{"unknown_kind.toml:7", "forest"}},
@@ -70,6 +70,9 @@ func TestBadInput(t *testing.T) {
 		{"formula_name.toml", []string{"formula_name.toml:6", "model[1].name", "formula"}},
 		{"formula_dataset.toml", []string{"formula_dataset.toml:5", "dataset[1].as", "formula"}},
 		{"formula_spec.toml", []string{"formula_spec.toml:1", "key name", "formula"}},
+		{"overflow.toml", []string{"overflow.csv:32", "overflows"}},
+		{"pca_too_many.toml", []string{"pca_too_many.toml:4", "key pipelines", "pca(9)", "4 features"}},
+		{"pca_fraction.toml", []string{"pca_fraction.toml:4", "pca(1.5)"}},
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {

@@ -101,3 +101,13 @@ func ReadCSV(t testing.TB, path string) [][]string {
 	}
 	return recs
 }
+
+// PlanOf plans a parsed spec, failing the test on error.
+func PlanOf(t testing.TB, s *spec.Spec) *plan.Plan {
+	t.Helper()
+	p, err := plan.New(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
