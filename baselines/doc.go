@@ -8,9 +8,11 @@
 //   - KNN: k nearest neighbours, brute force and exact, with Euclidean,
 //     Manhattan or cosine distance and uniform or 1/d vote weights.
 //   - Centroid: nearest class mean (Euclidean); a sanity baseline.
-//   - LogReg: multinomial logistic regression with an L2 penalty on the
-//     coefficients, fitted by L-BFGS (finished by Newton steps) to a
-//     gradient tolerance.
+//   - LogReg: logistic regression with an L2 penalty on the coefficients
+//     in scikit-learn's default forms: binary (one weight vector, C as in
+//     LogisticRegression(C=...)) for two classes, multinomial for three or
+//     more; fitted by L-BFGS (finished by Newton steps) to a gradient
+//     tolerance.
 //   - SVM: the support-vector machine with its kernels (its own files).
 //
 // Options are plain struct fields whose zero values are sensible defaults
