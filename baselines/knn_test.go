@@ -337,7 +337,7 @@ func TestKNNEstimateFilterExact(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				s := m.newScratch()
+				s := m.newScratch(0)
 				kept := 0
 				for i := range nt {
 					tr := T.RawRowView(i)

@@ -519,3 +519,33 @@ func BenchmarkLogRegFit(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkLogRegFitRows fits LogReg (C = 1, defaults) on ten and on two
+// Gaussian class clouds in 16 dimensions (knnBenchData) of growing size, to
+// show how the fit time grows with the rows. Metrics: iterations per fit and
+// ns per (row x iteration), which stays flat when the cost per iteration is
+// linear in the rows; the growth exponent of the fit time between two sizes
+// is log(t2/t1)/log(n2/n1).
+func BenchmarkLogRegFitRows(b *testing.B) {
+	const d = 16
+	for _, nClass := range []int{2, 10} {
+		for _, n := range []int{2000, 8000, 32000, 50000} {
+			X, y, _ := knnBenchData(n, 1, d, nClass, 29)
+			b.Run(fmt.Sprintf("classes=%d/n=%d/d=%d", nClass, n, d), func(b *testing.B) {
+				var iters int
+				b.ReportAllocs()
+				for b.Loop() {
+					var m LogReg
+					if err := m.Fit(X, y, nClass); err != nil {
+						b.Fatal(err)
+					}
+					iters += m.Iterations()
+				}
+				per := float64(b.Elapsed().Nanoseconds()) / float64(b.N)
+				b.ReportMetric(float64(iters)/float64(b.N), "iters/fit")
+				b.ReportMetric(per/float64(n)/(float64(iters)/float64(b.N)), "ns/row-iter")
+				b.ReportMetric(per/1e6, "ms/fit")
+			})
+		}
+	}
+}
