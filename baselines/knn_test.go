@@ -111,6 +111,13 @@ func TestKNNScikitLearn(t *testing.T) {
 				t.Fatal(err)
 			}
 			xt := rowsDense(c.XTest)
+			// The k-d tree gives brute force's answers bit for bit
+			// (TestKDTreeMatchesBrute), here too.
+			tree := &KNN{K: e.K, Metric: metric, Weights: weights, Method: KNNTree}
+			if err := tree.Fit(rowsDense(c.XTrain), c.YTrain, c.NClass); err != nil {
+				t.Fatal(err)
+			}
+			compareKNN(t, m, tree, xt)
 			got, err := m.Predict(xt)
 			if err != nil {
 				t.Fatal(err)

@@ -294,34 +294,54 @@ func BenchmarkKNN(b *testing.B) {
 }
 
 // BenchmarkKNNDim is BenchmarkKNN at n = 50000 over the dimension, to show
-// where the tree stops paying; it also reports the rows whose distance the
-// tree computed per query (rows/query) and the fit time of the tree.
+// where the tree stops paying, on two kinds of data: data=clouds
+// (knnBenchData: ten well separated class clouds, so a query's search stays
+// mostly within its own cloud of 5000 rows) and data=gauss (one standard
+// Gaussian cloud, labels round robin: the intrinsic dimension is d). The
+// tree reports the rows whose key it computed per query (rows/query);
+// method=auto reports whether KNNAuto's rule chose the tree (tree=1) for a
+// call on at least kdMinQueries rows, and times that choice.
 func BenchmarkKNNDim(b *testing.B) {
 	const n, nt, nClass = 50000, 200, 10
-	for _, d := range []int{2, 4, 8, 12, 16, 20, 24, 32} {
-		X, y, T := knnBenchData(n, nt, d, nClass, 19)
-		for _, method := range []KNNMethod{KNNTree, KNNBrute} {
-			b.Run(fmt.Sprintf("n=%d/d=%d/method=%v", n, d, method), func(b *testing.B) {
-				m := &KNN{K: 5, Method: method}
-				if err := m.Fit(X, y, nClass); err != nil {
-					b.Fatal(err)
-				}
-				b.ReportAllocs()
-				for b.Loop() {
-					if _, err := m.Predict(T); err != nil {
+	for _, data := range []string{"clouds", "gauss"} {
+		for _, d := range []int{2, 4, 8, 12, 16, 20, 24, 32} {
+			X, y, T := knnBenchData(n, nt, d, nClass, 19)
+			if data == "gauss" {
+				X, _, T = knnBenchData(n, nt, d, 1, 19)
+			}
+			for _, method := range []KNNMethod{KNNTree, KNNBrute, KNNAuto} {
+				b.Run(fmt.Sprintf("data=%s/n=%d/d=%d/method=%v", data, n, d, method), func(b *testing.B) {
+					m := &KNN{K: 5, Method: method}
+					if err := m.Fit(X, y, nClass); err != nil {
 						b.Fatal(err)
 					}
-				}
-				b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/nt, "ns/query")
-				if method == KNNTree {
-					s := m.newScratch(nt)
-					var rows int
-					for i := range nt {
-						rows += m.tree.search(s, T.RawRowView(i), 0, 5)
+					if method == KNNAuto {
+						m.treeFor(kdMinQueries) // the choice a large call makes
 					}
-					b.ReportMetric(float64(rows)/nt, "rows/query")
-				}
-			})
+					b.ReportAllocs()
+					for b.Loop() {
+						if _, err := m.Predict(T); err != nil {
+							b.Fatal(err)
+						}
+					}
+					b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/nt, "ns/query")
+					switch method {
+					case KNNTree:
+						s := m.newScratch(nt)
+						var rows int
+						for i := range nt {
+							rows += s.tree.search(s, T.RawRowView(i), 0, 5)
+						}
+						b.ReportMetric(float64(rows)/nt, "work/query")
+					case KNNAuto:
+						chosen := 0.0
+						if m.MethodUsed() == KNNTree {
+							chosen = 1
+						}
+						b.ReportMetric(chosen, "tree")
+					}
+				})
+			}
 		}
 	}
 }
