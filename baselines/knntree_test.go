@@ -58,15 +58,19 @@ func TestKDTreeMatchesBrute(t *testing.T) {
 			}
 			return X
 		}
-		X := gen(c.n, 0)
-		T := gen(300, c.testOff)
-		y := make([]int, c.n)
+		n, nt := c.n, 300
+		if testing.Short() { // -race -short in CI: a fifth of the work
+			n, nt = max(c.n/2, min(c.n, 9)), 60
+		}
+		X := gen(n, 0)
+		T := gen(nt, c.testOff)
+		y := make([]int, n)
 		for i := range y {
 			y[i] = rng.IntN(3)
 		}
 		for _, metric := range []Metric{Euclidean, Manhattan, Cosine} {
 			for _, k := range []int{1, 5, 15} {
-				if k > c.n {
+				if k > n {
 					continue
 				}
 				for _, w := range []Weighting{Uniform, Distance} {
