@@ -5,12 +5,15 @@
 //
 // Models:
 //
-//   - KNN: k nearest neighbours, brute force and exact, with Euclidean,
+//   - KNN: k nearest neighbours, exact (brute force or a k-d tree, chosen
+//     by a documented rule, with identical answers), with Euclidean,
 //     Manhattan or cosine distance and uniform or 1/d vote weights.
 //   - Centroid: nearest class mean (Euclidean); a sanity baseline.
-//   - LogReg: multinomial logistic regression with an L2 penalty on the
-//     coefficients, fitted by L-BFGS (finished by Newton steps) to a
-//     gradient tolerance.
+//   - LogReg: logistic regression with an L2 penalty on the coefficients
+//     in scikit-learn's default forms: binary (one weight vector, C as in
+//     LogisticRegression(C=...)) for two classes, multinomial for three or
+//     more; fitted by L-BFGS (finished by Newton steps) to a gradient
+//     tolerance.
 //   - SVM: the support-vector machine with its kernels (its own files).
 //
 // Options are plain struct fields whose zero values are sensible defaults
@@ -42,6 +45,15 @@
 // distance) a zero row. Error messages start with "baselines: " and name the
 // model. Nothing panics on user input; the only panics are broken internal
 // invariants, documented where they can occur.
+//
+// Plan-time checks. SVM.CheckParams rejects option values no sensible
+// search reaches (bounds with their reasons at SVMMinC) and SVM.CheckData
+// also rejects a kernel that is not finite or collapses to a constant on
+// the data at hand; both return a *ParamError naming the option (wrapping
+// ErrParam) or an ErrData error. CheckDegenerate tells, from a model's
+// predictions and decision values (Decisions) over the folds of a run,
+// whether it predicted one class everywhere or gave every test row the
+// same decision values.
 //
 // LogReg does not fail when it runs out of iterations: like scikit-learn it
 // returns its best point, and Converged reports false. Its probabilities and

@@ -111,6 +111,13 @@ func TestKNNScikitLearn(t *testing.T) {
 				t.Fatal(err)
 			}
 			xt := rowsDense(c.XTest)
+			// The k-d tree gives brute force's answers bit for bit
+			// (TestKDTreeMatchesBrute), here too.
+			tree := &KNN{K: e.K, Metric: metric, Weights: weights, Method: KNNTree}
+			if err := tree.Fit(rowsDense(c.XTrain), c.YTrain, c.NClass); err != nil {
+				t.Fatal(err)
+			}
+			compareKNN(t, m, tree, xt)
 			got, err := m.Predict(xt)
 			if err != nil {
 				t.Fatal(err)
@@ -337,7 +344,7 @@ func TestKNNEstimateFilterExact(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				s := m.newScratch()
+				s := m.newScratch(0)
 				kept := 0
 				for i := range nt {
 					tr := T.RawRowView(i)

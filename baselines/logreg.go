@@ -22,39 +22,61 @@ const (
 // short of the tolerance.
 const logregNewtonSteps = 30
 
-// LogReg is multinomial logistic regression with an L2 penalty on the
-// coefficients. For the K classes present in the training labels it fits a
-// full K x d coefficient matrix W and intercepts b (the symmetric
-// over-parameterisation scikit-learn 1.2.1 uses for multi_class='multinomial',
-// also when K = 2) by minimising
+// LogReg is L2-penalised logistic regression in the two forms of
+// scikit-learn 1.2.1's LogisticRegression with its defaults
+// (multi_class='auto', solver='lbfgs'): the binary model for two classes and
+// the multinomial (softmax) model for three or more. The intercepts are never
+// penalised, and C means what it means there.
+//
+// Two classes. With the classes present in the training labels a < b, the
+// class b is the positive one (scikit-learn's classes_[1]) and Fit finds one
+// weight vector w and intercept c minimising
+//
+//	f(w, c) = sum_i softplus(t_i) - y_i t_i + ||w||^2 / (2C),  t_i = w x_i + c,
+//
+// y_i = 1 for class b and 0 for class a (softplus(t) = log(1 + e^t)); this is
+// scikit-learn's C sum_i log(1 + exp(-s_i t_i)) + ||w||^2/2, s_i = 2y_i - 1,
+// divided by C. Coef holds w in the row of class b and zeros in the row of
+// class a, Intercept holds c and 0: the decision values of a row are
+// (0, t), so Predict gives b exactly when t > 0 (a for t = 0, the lower index,
+// as scikit-learn's predict) and PredictProba gives (1 - sigma(t), sigma(t)).
+// scikit-learn's coef_ and intercept_ are the row of class b.
+//
+// The softmax form with two classes (multi_class='multinomial') is not
+// fitted: its minimiser has W_a = -W_b, t = 2(W_b x + b_b) and a penalty of
+// ||W_b||^2 / C = ||2 W_b||^2 / (4C), so it is the binary model with C
+// doubled (2 W_b = w, 2 b_b = c at C' = 2C).
+//
+// Three or more classes. For the K classes present it fits a full K x d
+// coefficient matrix W and intercepts b (the symmetric over-parameterisation
+// of scikit-learn's multinomial model) by minimising
 //
 //	f(W, b) = sum_i CE(softmax(W x_i + b), y_i) + ||W||_F^2 / (2C)
 //
-// which has the minimiser of 0.5*||W||_F^2 + C * sum_i CE. The intercepts are
-// not penalised; f does not change when a constant is added to every b_k, and
-// Fit returns the intercepts with sum_k b_k = 0 (the solution scikit-learn's
-// L-BFGS reaches from zero). At the minimum the rows of W sum to zero, so for
-// two classes W_1 = -W_0, and scikit-learn's coef_ is row 1 of Coef.
+// which has the minimiser of 0.5*||W||_F^2 + C * sum_i CE. f does not change
+// when a constant is added to every b_k, and Fit returns the intercepts with
+// sum_k b_k = 0 (the solution scikit-learn's L-BFGS reaches from zero).
+//
+// Classes absent from the training labels get a zero coefficient row and an
+// intercept of -Inf: probability 0, never predicted. A training part of a
+// three-class problem in which only two classes occur is fitted in the
+// binary form on those two (the lower index negative), as scikit-learn fits
+// the labels it sees; the third class is never predicted.
 //
 // The fit is L-BFGS (gonum optimize: LBFGS directions with its default
 // history of 15 and Bisection line search) from zero, stopped when the
 // infinity norm of the gradient of f falls to Tol (the meaning scikit-learn
-// 1.2.1 gives tol for solver='lbfgs', whose loss is also the sum over rows).
-// With two classes it runs on the symmetric solutions W_0 = -W_1,
-// b_0 = -b_1 only, in orthonormal coordinates of that subspace, where the
-// minimiser and every L-BFGS iterate from zero lie: the same steps at half
-// the cost (see logregBinary). Near
-// the minimum the decrease of f per step falls below the resolution of f
-// (about 1e-16 |f|), the line search fails, and L-BFGS stops with a gradient
-// of roughly sqrt(1e-16 |f| ||H||); Fit then finishes with Newton steps
-// (Hessian-vector products and conjugate gradients), each accepted only if
-// it lowers the gradient norm, which needs no function values. Each Newton
-// step counts as one of MaxIter iterations. When Tol is not reached, Fit
-// still returns the best point and nil, and Converged reports false
-// (scikit-learn warns in that case).
-//
-// Classes absent from the training labels get a zero coefficient row and an
-// intercept of -Inf: probability 0, never predicted.
+// 1.2.1 gives tol for solver='lbfgs', whose loss is also the sum over rows;
+// scipy's L-BFGS-B also stops scikit-learn on a relative decrease of f below
+// 2.2e-9, often before the gradient reaches tol, so its answer is usually
+// the less precise of the two). Near the minimum the decrease of f per step
+// falls below the resolution of f (about 1e-16 |f|), the line search fails,
+// and L-BFGS stops with a gradient of roughly sqrt(1e-16 |f| ||H||); Fit then
+// finishes with Newton steps (Hessian-vector products and conjugate
+// gradients), each accepted only if it lowers the gradient norm, which needs
+// no function values. Each Newton step counts as one of MaxIter iterations.
+// When Tol is not reached, Fit still returns the best point and nil, and
+// Converged reports false (scikit-learn warns in that case).
 type LogReg struct {
 	// C is the inverse penalty strength; 0 means DefaultLogRegC.
 	C float64
@@ -119,19 +141,17 @@ func (m *LogReg) Fit(X *mat.Dense, y []int, nClass int) error {
 	for i, c := range y {
 		yc[i] = compact[c]
 	}
-	// Two classes are fitted in the coordinates of the symmetric solution
-	// (see logregBinary), more in those of theta.
+	// Two classes: the binary model (w, c); more: theta, kp rows (W_k, b_k).
 	var (
-		prob  logregProblem
-		scale = 1.0 // |gradient in prob's coordinates|_inf / |gradient of f|_inf
-		dim   = kp * (d + 1)
+		prob logregProblem
+		dim  = kp * (d + 1)
 	)
 	if kp == 2 {
-		prob, scale, dim = newLogregBinary(X, yc, 1/C), math.Sqrt2, d+1
+		prob, dim = newLogregBinary(X, yc, 1/C), d+1
 	} else {
 		prob = newLogregMulti(X, yc, kp, 1/C)
 	}
-	norm := func(g []float64) float64 { return floats.Norm(g, math.Inf(1)) / scale }
+	norm := func(g []float64) float64 { return floats.Norm(g, math.Inf(1)) }
 	x := make([]float64, dim)
 	grad := make([]float64, dim)
 	prob.gradient(grad, x)
@@ -149,18 +169,21 @@ func (m *LogReg) Fit(X *mat.Dense, y []int, nClass int) error {
 	if !allFiniteValues(x) {
 		return fmt.Errorf("baselines: logreg: optimisation diverged (C = %v): %w", C, ErrParam)
 	}
-	theta := x
-	if kp == 2 {
-		theta = binaryToTheta(x, d)
-	}
 
 	coef := mat.NewDense(nClass, d, nil)
 	intercept := make([]float64, nClass)
+	var theta []float64
 	var bmean float64
-	for r := range kp {
-		bmean += theta[r*(d+1)+d]
+	if kp == 2 {
+		// The negative class keeps a zero row and intercept 0.
+		theta = append(make([]float64, d+1), x...)
+	} else {
+		theta = x
+		for r := range kp {
+			bmean += theta[r*(d+1)+d]
+		}
+		bmean /= float64(kp)
 	}
-	bmean /= float64(kp)
 	for k := range nClass {
 		r := compact[k]
 		if r < 0 {
@@ -193,7 +216,10 @@ func (m *LogReg) Predict(X *mat.Dense) ([]int, error) {
 }
 
 // Decision returns the decision values W x + b, one row per row of X and one
-// column per class; -Inf for classes absent from the training labels.
+// column per class; -Inf for classes absent from the training labels. With
+// two classes present the negative class's column is 0 and the positive
+// class's column is the binary decision value t = w x + c (scikit-learn's
+// decision_function).
 func (m *LogReg) Decision(X *mat.Dense) (*mat.Dense, error) {
 	if !m.fitted {
 		return nil, fmt.Errorf("baselines: logreg: %w", ErrNotFitted)
@@ -211,7 +237,8 @@ func (m *LogReg) Decision(X *mat.Dense) (*mat.Dense, error) {
 }
 
 // PredictProba returns the class probabilities softmax(W x + b), one row per
-// row of X; each row sums to 1.
+// row of X; each row sums to 1. With two classes present this is
+// (1 - sigma(t), sigma(t)) in the columns of the two classes.
 func (m *LogReg) PredictProba(X *mat.Dense) (*mat.Dense, error) {
 	z, err := m.Decision(X)
 	if err != nil {
@@ -229,7 +256,8 @@ func (m *LogReg) PredictProba(X *mat.Dense) (*mat.Dense, error) {
 }
 
 // Coef returns a copy of the coefficient matrix W (classes x features), or
-// nil before Fit.
+// nil before Fit. With two classes present the positive class's row is w
+// and the negative class's row is zero (see LogReg).
 func (m *LogReg) Coef() *mat.Dense {
 	if !m.fitted {
 		return nil
@@ -237,8 +265,9 @@ func (m *LogReg) Coef() *mat.Dense {
 	return mat.DenseCopyOf(m.coef)
 }
 
-// Intercept returns a copy of the intercepts b (sum zero over the classes
-// present), or nil before Fit.
+// Intercept returns a copy of the intercepts b, or nil before Fit: with
+// three or more classes present they sum to zero over those classes; with
+// two, the negative class has 0 and the positive class c (see LogReg).
 func (m *LogReg) Intercept() []float64 {
 	if !m.fitted {
 		return nil
@@ -496,30 +525,23 @@ func (o *logregMulti) hessVec(hv, v []float64) {
 	}
 }
 
-// logregBinary is f for two classes restricted to the symmetric solutions
-// W_0 = -W_1, b_0 = -b_1, in the coordinates v = (w, c) with
-// W_1 = w/sqrt2 and b_1 = c/sqrt2. The minimiser of f lies there (the rows
-// of W sum to zero at the minimum, and Fit centres the intercepts), and so
-// does every point L-BFGS visits from zero in theta's coordinates: on that
-// subspace the gradient of f is (-a, a) for the class-1 part a, and each
-// direction is a combination of such gradients. theta = Q v with Q = [-I; I]/sqrt2,
-// whose columns are orthonormal, so value, inner products and norms of
-// steps and gradients are those of f in theta's coordinates, and L-BFGS
-// takes the same steps (in exact arithmetic) at half the cost. With
-// t = z_1 - z_0 = sqrt2 (w x + c) and p = sigma(t):
+// logregBinary is the binary objective of LogReg in the coordinates
+// v = (w, c), t = w x + c, p = sigma(t):
 //
 //	f = sum_i softplus(t_i) - y_i t_i + ||w||^2 / (2C)
-//	grad_w = sqrt2 sum_i (p_i - y_i) x_i + w/C,  grad_c = sqrt2 sum_i (p_i - y_i)
+//	grad_w = sum_i (p_i - y_i) x_i + w/C,  grad_c = sum_i (p_i - y_i)
+//	H = sum_i p_i (1 - p_i) x~_i x~_i^T + diag(1/C, ..., 1/C, 0),  x~ = (x, 1)
 //
-// The gradient in v is sqrt2 times the class-1 part of the gradient of f,
-// so its infinity norm is sqrt2 times that of f.
+// (d/dt softplus(t) = sigma(t), d/dt sigma(t) = sigma(t)(1 - sigma(t))). H is
+// positive definite: the penalty covers w, and the intercept direction has
+// curvature sum_i p_i (1 - p_i) > 0.
 type logregBinary struct {
 	logregData
-	y1   []bool // label is the second class
+	y1   []bool // label is the positive (second) class
 	invC float64
 
 	at    []float64
-	prob  []float64 // p_i = P(second class | x_i) at `at`
+	prob  []float64 // p_i = P(positive class | x_i) at `at`
 	resid []float64 // p_i - y_i
 	grad  []float64
 	f     float64
@@ -550,11 +572,12 @@ func (o *logregBinary) eval(v []float64) {
 	d := o.d
 	t := o.prob
 	o.linear(t, v[:d], v[d])
-	// softplus(t) - y t = max(t, 0) - y t + log(1 + exp(-|t|)).
+	// softplus(t) - y t = max(t, 0) - y t + log(1 + exp(-|t|)), and
+	// sigma(t) = 1/(1 + e) for t >= 0, e/(1 + e) otherwise, e = exp(-|t|):
+	// no overflow for any t.
 	e := o.resid // exp(-|t_i|), then p_i - y_i
 	for i, ti := range t {
-		t[i] = math.Sqrt2 * ti
-		e[i] = -math.Abs(t[i])
+		e[i] = -math.Abs(ti)
 	}
 	expNegSlice(e)
 	var lin float64
@@ -577,7 +600,7 @@ func (o *logregBinary) eval(v []float64) {
 		t[i] = p
 		e[i] = r
 	}
-	o.backProject(o.grad, o.resid, math.Sqrt2, o.invC, v)
+	o.backProject(o.grad, o.resid, 1, o.invC, v)
 	o.f = lin + ls.value() + 0.5*o.invC*rowDot(v[:d], v[:d])
 	copy(o.at, v)
 	o.ok = true
@@ -594,25 +617,15 @@ func (o *logregBinary) gradient(grad, v []float64) {
 }
 
 // hessVec sets hv to the Hessian at the point of the cached probabilities
-// times s: 2 sum_i p_i (1 - p_i) (x~_i . s) x~_i plus s_w / C, x~ = (x, 1).
+// times s: sum_i p_i (1 - p_i) (x~_i . s) x~_i plus s_w / C.
 func (o *logregBinary) hessVec(hv, s []float64) {
 	d := o.d
 	u := o.u
 	o.linear(u, s[:d], s[d])
 	for i, p := range o.prob {
-		u[i] *= 2 * p * (1 - p)
+		u[i] *= p * (1 - p)
 	}
 	o.backProject(hv, u, 1, o.invC, s)
-}
-
-// binaryToTheta maps logregBinary's coordinates to theta's (two rows).
-func binaryToTheta(v []float64, d int) []float64 {
-	theta := make([]float64, 2*(d+1))
-	for j, x := range v {
-		theta[d+1+j] = x / math.Sqrt2
-		theta[j] = -theta[d+1+j]
-	}
-	return theta
 }
 
 // polish takes Newton steps from x, whose gradient is grad, until

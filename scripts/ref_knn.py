@@ -4,7 +4,10 @@ classifiers from scikit-learn, for the tests of fringe/baselines.
 
 Run with the Debian interpreter (python3-sklearn 1.2.1, numpy 1.24.2):
 
-    /usr/bin/python3 scripts/ref_knn.py > baselines/testdata/knn_reference.json
+    /usr/bin/python3 scripts/ref_knn.py
+
+writes baselines/testdata/knn_reference.json (scripts/check-references.sh
+reruns it and compares).
 
 Cases:
   gauss  - three Gaussian classes in 5 dimensions (continuous values, so no
@@ -30,6 +33,7 @@ The centroid entries use NearestCentroid() (Euclidean) on the gauss and iris
 cases.
 """
 import json
+import os
 import re
 import sys
 
@@ -137,7 +141,10 @@ def main():
     # diffs readable.
     text = re.sub(r"\[\s*([-0-9.e+,\s]+?)\s*\]",
                   lambda m: "[" + ", ".join(m.group(1).split()).replace(",,", ",") + "]", text)
-    sys.stdout.write(text + "\n")
+    out = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "baselines",
+                       "testdata", "knn_reference.json")
+    with open(out, "w") as f:
+        f.write(text + "\n")
 
 
 if __name__ == "__main__":

@@ -1,10 +1,14 @@
 #!/usr/bin/python3
-"""Reference coefficients of L2-penalised multinomial logistic regression
-from scikit-learn, for the tests of fringe/baselines (LogReg).
+"""Reference coefficients of L2-penalised logistic regression (multinomial,
+and binary for the two-class cases) from scikit-learn, for the tests of
+fringe/baselines (LogReg).
 
 Run with the Debian interpreter (python3-sklearn 1.2.1, numpy 1.24.2):
 
-    /usr/bin/python3 scripts/ref_logreg.py > baselines/testdata/logreg_reference.json
+    /usr/bin/python3 scripts/ref_logreg.py
+
+writes baselines/testdata/logreg_reference.json (scripts/check-references.sh
+reruns it and compares).
 
 Every case is fitted twice, with
 
@@ -12,6 +16,17 @@ Every case is fitted twice, with
                        tol=1e-10, max_iter=10000)
     LogisticRegression(C=C, multi_class='multinomial', solver='newton-cg',
                        tol=1e-10, max_iter=10000)
+
+The two-class cases are also fitted in scikit-learn's default binary form
+(multi_class='auto', one weight vector; keys binary_lbfgs, binary_newton_cg):
+
+    LogisticRegression(C=C, solver='lbfgs', tol=1e-10, max_iter=10000)
+    LogisticRegression(C=C, solver='newton-cg', tol=1e-10, max_iter=10000)
+
+minimising sum_i log(1 + exp(-s_i t_i)) + ||w||^2 / (2C), t_i = w x_i + c,
+with the gradient and the smallest Hessian eigenvalue of that objective
+recorded in the same way (its Hessian is positive definite: no flat
+direction).
 
 The lbfgs fit stops on scipy's L-BFGS-B default relative-decrease test
 (ftol = 2.2e-9, not exposed by scikit-learn 1.2.1) long before its gradient
@@ -42,6 +57,7 @@ distance of scikit-learn's answer from the exact minimiser, which justifies
 the tolerance of the Go test.
 """
 import json
+import os
 import re
 import sys
 import warnings
@@ -55,6 +71,7 @@ from sklearn.preprocessing import StandardScaler
 
 CALL = ("LogisticRegression(C={C}, multi_class='multinomial', solver='{solver}', "
         "tol=1e-10, max_iter=10000)")
+BINARY_CALL = "LogisticRegression(C={C}, solver='{solver}', tol=1e-10, max_iter=10000)"
 
 
 def full_parameters(model, n_class):
@@ -102,6 +119,39 @@ def smallest_eigenvalue_off_intercept_shift(hess, k, d):
     return float(np.linalg.eigvalsh(basis.T @ hess @ basis).min())
 
 
+def binary_gradient_hessian(coef, icpt, x, y, C):
+    """Gradient and Hessian of sum_i softplus(t_i) - y_i t_i + ||w||^2/(2C),
+    t = x w + c, at (w, c), parameters ordered (w, c)."""
+    n, d = x.shape
+    xa = np.hstack([x, np.ones((n, 1))])
+    theta = np.append(coef, icpt)
+    t = xa @ theta
+    p = 0.5 * (1.0 + np.tanh(0.5 * t))  # sigma(t), no overflow
+    pen = np.ones(d + 1) / C
+    pen[d] = 0.0
+    grad = xa.T @ (p - y) + theta * pen
+    hess = (xa * (p * (1 - p))[:, None]).T @ xa + np.diag(pen)
+    return grad, hess
+
+
+def fit_binary(x, y, C, solver):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # as in fit
+        model = LogisticRegression(C=C, solver=solver, tol=1e-10, max_iter=10000).fit(x, y)
+    grad, hess = binary_gradient_hessian(model.coef_[0], model.intercept_[0], x, y, C)
+    return {
+        "call": BINARY_CALL.format(C=C, solver=solver),
+        "coef": model.coef_.tolist(),
+        "intercept": model.intercept_.tolist(),
+        "proba": model.predict_proba(x).tolist(),
+        "predicted": model.predict(x).tolist(),
+        "n_iter": int(model.n_iter_[0]),
+        "grad_inf_norm": float(np.abs(grad).max()),
+        "grad_2_norm": float(np.linalg.norm(grad)),
+        "hessian_min_eig": float(np.linalg.eigvalsh(hess).min()),
+    }
+
+
 def cases():
     iris = load_iris()
     x, y = iris.data, iris.target
@@ -141,7 +191,7 @@ def fit(x, y, C, solver):
 def main():
     entries = []
     for name, x, y, C in cases():
-        entries.append({
+        entry = {
             "name": name,
             "C": C,
             "x": x.tolist(),
@@ -149,7 +199,11 @@ def main():
             "n_class": int(y.max()) + 1,
             "lbfgs": fit(x, y, C, "lbfgs"),
             "newton_cg": fit(x, y, C, "newton-cg"),
-        })
+        }
+        if entry["n_class"] == 2:
+            entry["binary_lbfgs"] = fit_binary(x, y, C, "lbfgs")
+            entry["binary_newton_cg"] = fit_binary(x, y, C, "newton-cg")
+        entries.append(entry)
     doc = {
         "source": "scripts/ref_logreg.py",
         "versions": {"sklearn": sklearn.__version__, "numpy": np.__version__,
@@ -161,7 +215,10 @@ def main():
     # diffs readable.
     text = re.sub(r"\[\s*([-0-9.e+,\s]+?)\s*\]",
                   lambda m: "[" + ", ".join(m.group(1).split()).replace(",,", ",") + "]", text)
-    sys.stdout.write(text + "\n")
+    out = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "baselines",
+                       "testdata", "logreg_reference.json")
+    with open(out, "w") as f:
+        f.write(text + "\n")
 
 
 if __name__ == "__main__":
