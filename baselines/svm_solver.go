@@ -21,6 +21,8 @@ type smoResult struct {
 	gap       float64 // m(a) − M(a) over all variables at the end
 	shrinks   int     // shrinking passes
 	minActive int     // smallest active set
+	quad      float64 // aᵀQa at the solution
+	sum       float64 // Σ a_t
 }
 
 // shrinkEvery is the number of iterations between two shrinking passes for
@@ -315,6 +317,12 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 		g[t] = -yp[t] * v[t]
 	}
 	res.rho = bias(alpha, g, yp, c)
+	for t, a := range alpha {
+		if a > 0 {
+			res.quad += a * (g[t] + 1) // (Qa)_t = ∇_t + 1
+			res.sum += a
+		}
+	}
 	res.alpha = make([]float64, n)
 	for q, t := range perm {
 		res.alpha[t] = alpha[q]

@@ -765,13 +765,13 @@ func TestSVMMaxIter(t *testing.T) {
 	}
 }
 
-// BenchmarkSVMFit fits seeded two-class Gaussian data of breast-cancer size
+// BenchmarkSVMFitSmall fits seeded two-class Gaussian data of breast-cancer size
 // (n×30). Metrics: solver iterations, kernel evaluations and support
 // vectors per fit, and fit-ns/keval, the whole fit time divided by the
 // kernel evaluations (an upper bound on the cost of one evaluation; for the
 // RBF kernel rows are about half the fit, see BenchmarkKernelRow for the
 // evaluation alone).
-func BenchmarkSVMFit(b *testing.B) {
+func BenchmarkSVMFitSmall(b *testing.B) {
 	for _, n := range []int{128, 512} {
 		for _, kind := range []KernelKind{KernelRBF, KernelLinear} {
 			b.Run(fmt.Sprintf("n=%d/d=30/kernel=%v", n, kind), func(b *testing.B) {
