@@ -201,7 +201,12 @@ func (s *SVM) Fit(X *mat.Dense, y []int, nClass int) error {
 //
 // The fits share work; each returned model equals an independent Fit with
 // that C up to the solver's tolerance (both meet m(a) − M(a) ≤ Tol, so
-// their decision values on training points agree to about Tol):
+// their decision values on training points agree to about Tol). The one
+// exception is a task without a free support vector, where every ρ in an
+// interval is optimal (the primal bias is not unique): a multiplier within
+// rounding of a bound may count as free on one path (ρ at that point) and
+// not on the other (ρ at the midpoint), so decision values may differ by
+// up to half the interval's width.
 //
 //   - Kernel rows: each two-class task keeps one kernel cache (bounded by
 //     CacheMiB) for all values of C, since the kernel does not depend on C
@@ -528,23 +533,30 @@ func (s *SVM) Predict(X *mat.Dense) ([]int, error) {
 	pred := make([]int, r)
 	votes := make([]int, f.nClass)
 	for i := range r {
-		clear(votes)
-		for j, t := range f.tasks {
-			if vals[i*nt+j] >= 0 {
-				votes[t.a]++
-			} else {
-				votes[t.b]++
-			}
-		}
-		best := f.tasks[0].a // a present class; absent classes have no votes
-		for c, v := range votes {
-			if v > votes[best] {
-				best = c
-			}
-		}
-		pred[i] = best
+		pred[i] = f.vote(vals[i*nt:(i+1)*nt], votes)
 	}
 	return pred, nil
+}
+
+// vote returns the one-vs-one winner for the task values vals (one per
+// task, positive toward the task's class a); votes is scratch of length
+// nClass.
+func (f *svmFit) vote(vals []float64, votes []int) int {
+	clear(votes)
+	for j, t := range f.tasks {
+		if vals[j] >= 0 {
+			votes[t.a]++
+		} else {
+			votes[t.b]++
+		}
+	}
+	best := f.tasks[0].a // a present class; absent classes have no votes
+	for c, v := range votes {
+		if v > votes[best] {
+			best = c
+		}
+	}
+	return best
 }
 
 // DecisionFunction returns the decision values of the rows of X, with
