@@ -245,7 +245,13 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 		var ki []float64
 		if i >= 0 {
 			ki = cache.row(i, active)[:active]
-			objMin := math.Inf(1)
+			// best = −objMin. A candidate can only win if b²/a ≥ best, so
+			// b² < best·a·(1 − 1e-12) rules it out without the division:
+			// the slack is far above the rounding of either side (a few
+			// units of 2^-53), so every candidate the division would
+			// accept passes, and the selection (ties included) is that of
+			// the plain loop.
+			objMin, best := math.Inf(1), 0.0
 			di := diag[i]
 			diag := diag[:active]
 			low := low[:active]
@@ -261,8 +267,12 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 					if a <= 0 {
 						a = tau
 					}
+					if b*b < best*a*(1-1e-12) {
+						continue
+					}
 					if obj := -b * b / a; obj <= objMin {
 						objMin, j = obj, t
+						best = -obj
 					}
 				}
 			}
