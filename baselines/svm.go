@@ -362,12 +362,19 @@ func trainPath(o *SVM, kern kernel, pts [][]float64, y []int, rows []int, nClass
 			}
 			var prev *smoResult
 			for _, k := range order {
+				so := smoOpts{c: cs[k], eps: o.Tol, maxIter: o.MaxIter, shrink: !o.NoShrinking}
 				var alpha0 []float64
 				if warm && prev != nil {
-					alpha0 = seedAlpha(*prev, cs[k])
+					var s float64
+					alpha0, s = seedAlpha(*prev, cs[k])
+					// u = Σ_s a_s y_s K_ts scales with a, and v = y − u.
+					so.v0 = make([]float64, len(lab))
+					for t, yt := range lab {
+						so.v0[t] = (1-s)*yt + s*prev.v[t]
+					}
 				}
 				evals := cache.evals
-				res, err := solveSMO(cache, lab, alpha0, smoOpts{c: cs[k], eps: o.Tol, maxIter: o.MaxIter, shrink: !o.NoShrinking})
+				res, err := solveSMO(cache, lab, alpha0, so)
 				fits[k].iter += res.iter
 				fits[k].evals += cache.evals - evals
 				if err != nil {
@@ -404,15 +411,15 @@ type rawTask struct {
 
 // seedAlpha returns the warm start for C = to from the solution res for
 // C = from: the solution scaled by the s that minimises the dual objective
-// along the ray {s·a} inside the new box (see FitPath).
-func seedAlpha(res smoResult, to float64) []float64 {
+// along the ray {s·a} inside the new box (see FitPath), and s.
+func seedAlpha(res smoResult, to float64) ([]float64, float64) {
 	var amax float64
 	for _, a := range res.alpha {
 		amax = max(amax, a)
 	}
 	out := make([]float64, len(res.alpha))
 	if amax == 0 || res.quad <= 0 {
-		return out
+		return out, 0
 	}
 	smax := to / amax
 	s := min(res.sum/res.quad, smax)
@@ -425,7 +432,7 @@ func seedAlpha(res smoResult, to float64) []float64 {
 			out[t] = min(a*s, to)
 		}
 	}
-	return out
+	return out, s
 }
 
 // assemble fills f's support vectors and tasks from the solved tasks.

@@ -125,7 +125,7 @@ func TestSeedAlphaFeasible(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		seed := seedAlpha(res, tc.to)
+		seed, _ := seedAlpha(res, tc.to)
 		var sum, sumOld float64
 		ratio := math.NaN()
 		for i, a := range seed {

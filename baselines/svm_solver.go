@@ -11,6 +11,10 @@ type smoOpts struct {
 	eps     float64 // stopping tolerance on m(a) − M(a)
 	maxIter int     // limit on two-variable updates
 	shrink  bool    // shrink the active set (Chang & Lin 2011, section 5.1)
+	// v0, with a warm start, is v = −y∘∇ at the starting point (in the
+	// order the cache's points were given); nil computes it from kernel
+	// rows.
+	v0 []float64
 }
 
 // smoResult is the solution of one two-class dual problem.
@@ -21,8 +25,9 @@ type smoResult struct {
 	gap       float64 // m(a) − M(a) over all variables at the end
 	shrinks   int     // shrinking passes
 	minActive int     // smallest active set
-	quad      float64 // aᵀQa at the solution
-	sum       float64 // Σ a_t
+	quad      float64   // aᵀQa at the solution
+	sum       float64   // Σ a_t
+	v         []float64 // −y_t ∇_t at the solution, in the order of alpha
 }
 
 // shrinkEvery is the number of iterations between two shrinking passes for
@@ -34,8 +39,9 @@ const shrinkEvery = 1000
 // points were given) over the Gram matrix of cache by SMO with the
 // second-order working-set selection of Fan, Chen & Lin (2005), and returns
 // the multipliers and the bias ρ. alpha0, when not nil, is a feasible
-// starting point (0 ≤ a_t ≤ C, Σ y_t a_t = 0; a warm start); nil starts
-// from a = 0. It returns an error wrapping ErrNotConverged after maxIter
+// starting point (0 ≤ a_t ≤ C, Σ y_t a_t = 0; a warm start), with its v in
+// o.v0 if known (otherwise computed from the rows of the non-zero
+// multipliers); nil starts from a = 0. It returns an error wrapping ErrNotConverged after maxIter
 // updates without meeting m(a) − M(a) ≤ eps.
 //
 // It keeps v_t = −y_t ∇_t (the quantity both selections compare) rather than
@@ -60,9 +66,9 @@ const shrinkEvery = 1000
 //
 //	v_t = y_t − w̄_t − Σ_{s free} a_s y_s K_ts,   w̄_t = Σ_{s: a_s = C} C y_s K_ts,
 //
-// with w̄ kept up to date over all variables whenever a multiplier reaches
-// or leaves C (the inactive ones are at a bound, so they hold no free
-// multiplier). The reconstruction happens once when m(a) − M(a) over the
+// with w̄ built at the first shrinking pass and from then on kept up to date
+// over all variables whenever a multiplier reaches or leaves C (the
+// inactive ones are at a bound, so they hold no free multiplier). The reconstruction happens once when m(a) − M(a) over the
 // active set first falls to 10·eps (then the active set is rebuilt from all
 // variables), and whenever the active set meets the stopping rule: then the
 // rule is checked on all variables, and the solve only ends when it holds
@@ -78,10 +84,7 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 	v := make([]float64, n) // −y_t ∇_t; ∇ = −e at a = 0
 	up := make([]bool, n)   // t in I_up: y_t = +1, a_t < C or y_t = −1, a_t > 0
 	low := make([]bool, n)  // t in I_low: y_t = +1, a_t > 0 or y_t = −1, a_t < C
-	var wbar []float64      // Σ_{s: a_s = C} C y_s K_ts, with shrinking only
-	if o.shrink {
-		wbar = make([]float64, n)
-	}
+	var wbar []float64      // Σ_{s: a_s = C} C y_s K_ts, from the first shrinking pass on
 	setFlags := func(t int) {
 		if yp[t] > 0 {
 			up[t], low[t] = alpha[t] < c, alpha[t] > 0
@@ -96,7 +99,12 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 			alpha[q] = alpha0[t]
 		}
 	}
-	if alpha0 != nil {
+	switch {
+	case alpha0 != nil && o.v0 != nil:
+		for q, t := range perm {
+			v[q] = o.v0[t]
+		}
+	case alpha0 != nil:
 		// v_t = y_t − Σ_s a_s y_s K_ts over the non-zero multipliers.
 		for s := range n {
 			if alpha[s] <= 0 {
@@ -106,12 +114,6 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 			as := alpha[s] * yp[s]
 			for t, k := range ks {
 				v[t] -= as * k
-			}
-			if wbar != nil && alpha[s] >= c {
-				cs := c * yp[s]
-				for t, k := range ks {
-					wbar[t] += cs * k
-				}
 			}
 		}
 	}
@@ -191,6 +193,21 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 	// violating pair (see above) from the active set.
 	shrinkPass := func() {
 		res.shrinks++
+		if wbar == nil {
+			// w̄ is needed once variables are set aside; build it now and
+			// keep it up to date from here on (updateBar).
+			wbar = make([]float64, n)
+			for s := range n {
+				if alpha[s] < c {
+					continue
+				}
+				ks := cache.row(s, n)
+				cs := c * yp[s]
+				for t, k := range ks {
+					wbar[t] += cs * k
+				}
+			}
+		}
 		bounds := func(to int) (float64, float64) {
 			m, M := math.Inf(-1), math.Inf(1)
 			for t, vt := range v[:to] {
@@ -334,8 +351,10 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 		}
 	}
 	res.alpha = make([]float64, n)
+	res.v = make([]float64, n)
 	for q, t := range perm {
 		res.alpha[t] = alpha[q]
+		res.v[t] = v[q]
 	}
 	return res, nil
 }
