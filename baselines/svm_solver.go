@@ -21,10 +21,10 @@ type smoOpts struct {
 type smoResult struct {
 	alpha     []float64 // multipliers, in the order the cache's points were given
 	rho       float64
-	iter      int     // two-variable updates made
-	gap       float64 // m(a) − M(a) over all variables at the end
-	shrinks   int     // shrinking passes
-	minActive int     // smallest active set
+	iter      int       // two-variable updates made
+	gap       float64   // m(a) − M(a) over all variables at the end
+	shrinks   int       // shrinking passes
+	minActive int       // smallest active set
 	quad      float64   // aᵀQa at the solution
 	sum       float64   // Σ a_t
 	v         []float64 // −y_t ∇_t at the solution, in the order of alpha
