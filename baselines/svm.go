@@ -282,7 +282,7 @@ func (s *SVM) fitPath(X *mat.Dense, y []int, nClass int, cs []float64) ([]*svmFi
 		cs = []float64{o.C}
 	}
 	kern := o.kernelFor(pts, nil)
-	return trainPath(&o, kern, pts, y, nil, nClass, cs, nil, true)
+	return trainPath(&o, kern, pts, y, nil, nClass, cs, nil, true, true)
 }
 
 // kernelFor returns the kernel of the resolved options o for the training
@@ -308,8 +308,10 @@ func (o *SVM) kernelFor(pts [][]float64, rows []int) kernel {
 // o and kernel kern. With parent (a cache over all of pts for kern) the
 // tasks' kernel rows are gathered from it. warm seeds each C from the
 // previous one (see FitPath). Support-vector indices of the models index
-// pts. Inputs are valid (checked by the callers).
-func trainPath(o *SVM, kern kernel, pts [][]float64, y []int, rows []int, nClass int, cs []float64, parent *kernelCache, warm bool) ([]*svmFit, error) {
+// pts. Without keepPts the models hold no copy of their support vectors
+// (they can only be evaluated through kernel rows over pts, rowValues).
+// Inputs are valid (checked by the callers).
+func trainPath(o *SVM, kern kernel, pts [][]float64, y []int, rows []int, nClass int, cs []float64, parent *kernelCache, warm, keepPts bool) ([]*svmFit, error) {
 	members := make([][]int, nClass)
 	if rows == nil {
 		for i, c := range y {
@@ -395,7 +397,7 @@ func trainPath(o *SVM, kern kernel, pts [][]float64, y []int, rows []int, nClass
 		}
 	}
 	for k, f := range fits {
-		f.assemble(pts, raws[k])
+		f.assemble(pts, raws[k], keepPts)
 	}
 	return fits, nil
 }
@@ -435,8 +437,9 @@ func seedAlpha(res smoResult, to float64) ([]float64, float64) {
 	return out, s
 }
 
-// assemble fills f's support vectors and tasks from the solved tasks.
-func (f *svmFit) assemble(pts [][]float64, raw []rawTask) {
+// assemble fills f's support vectors (with a copy of their points if
+// keepPts) and tasks from the solved tasks.
+func (f *svmFit) assemble(pts [][]float64, raw []rawTask, keepPts bool) {
 	n := len(pts)
 	isSV := make([]bool, n)
 	for _, rt := range raw {
@@ -450,11 +453,13 @@ func (f *svmFit) assemble(pts [][]float64, raw []rawTask) {
 		if sv {
 			pos[i] = len(f.svIndex)
 			f.svIndex = append(f.svIndex, i)
-			svRows = append(svRows, pts[i])
+			if keepPts {
+				svRows = append(svRows, pts[i])
+			}
 		}
 	}
 	f.svPts = denseRows(svRows, f.d) // no rows if every multiplier is 0 (Tol >= 2)
-	if f.kern.kind == KernelRBF {
+	if keepPts && f.kern.kind == KernelRBF {
 		f.svSq = make([]float64, len(svRows))
 		for i, p := range svRows {
 			f.svSq[i] = sqNorm(p)

@@ -210,7 +210,7 @@ func scoreShared(o *SVM, pts [][]float64, y []int, nClass int, cs []float64, tes
 	defer parent.release()
 	n := len(pts)
 	for f, train := range trains {
-		fits, err := trainPath(o, kern, pts, y, train, nClass, cs, parent, true)
+		fits, err := trainPath(o, kern, pts, y, train, nClass, cs, parent, true, false)
 		if err != nil {
 			return fmt.Errorf("fold %d: %w", f, err)
 		}
@@ -252,7 +252,7 @@ func (f *svmFit) rowValues(dst, krow []float64) []float64 {
 func scoreScale(o *SVM, pts [][]float64, y []int, nClass int, cs []float64, tests, trains [][]int, acc [][]float64) error {
 	for f, train := range trains {
 		kern := o.kernelFor(pts, train)
-		fits, err := trainPath(o, kern, pts, y, train, nClass, cs, nil, true)
+		fits, err := trainPath(o, kern, pts, y, train, nClass, cs, nil, true, true)
 		if err != nil {
 			return fmt.Errorf("fold %d: %w", f, err)
 		}
