@@ -130,6 +130,7 @@ type svmFit struct {
 	tasks   []svmTask      // one per pair of present classes, in (a, b) order
 	iter    int            // iterations over all tasks
 	evals   int64          // kernel evaluations in training over all tasks
+	shrinks int            // shrinking passes over all tasks
 }
 
 // svmTask is one two-class decision function f(x) = Σ coef_s k(sv_s, x) − rho,
@@ -378,6 +379,7 @@ func trainPath(o *SVM, kern kernel, pts [][]float64, y []int, rows []int, nClass
 				evals := cache.evals
 				res, err := solveSMO(cache, lab, alpha0, so)
 				fits[k].iter += res.iter
+				fits[k].shrinks += res.shrinks
 				fits[k].evals += cache.evals - evals
 				if err != nil {
 					cache.release()

@@ -9,6 +9,7 @@ type SVMStats struct {
 	Tasks       int   // two-class tasks (one-vs-one pairs of present classes)
 	Iterations  int   // two-variable updates over all tasks
 	KernelEvals int64 // kernel evaluations spent on training rows over all tasks
+	Shrinks     int   // shrinking passes over all tasks (0 with NoShrinking)
 }
 
 // Stats returns the work of the last successful Fit (zero before one).
@@ -16,7 +17,7 @@ func (s *SVM) Stats() SVMStats {
 	if s.fit == nil {
 		return SVMStats{}
 	}
-	return SVMStats{Tasks: len(s.fit.tasks), Iterations: s.fit.iter, KernelEvals: s.fit.evals}
+	return SVMStats{Tasks: len(s.fit.tasks), Iterations: s.fit.iter, KernelEvals: s.fit.evals, Shrinks: s.fit.shrinks}
 }
 
 // Per-row byte counts of the memory estimate (see MemoryBytes), from the
