@@ -66,9 +66,9 @@ const shrinkEvery = 1000
 //
 //	v_t = y_t − w̄_t − Σ_{s free} a_s y_s K_ts,   w̄_t = Σ_{s: a_s = C} C y_s K_ts,
 //
-// with w̄ built at the first shrinking pass and from then on kept up to date
-// over all variables whenever a multiplier reaches or leaves C (the
-// inactive ones are at a bound, so they hold no free multiplier). The reconstruction happens once when m(a) − M(a) over the
+// with w̄ kept up to date over all variables whenever a multiplier reaches
+// or leaves C (the inactive ones are at a bound, so they hold no free
+// multiplier). The reconstruction happens once when m(a) − M(a) over the
 // active set first falls to 10·eps (then the active set is rebuilt from all
 // variables), and whenever the active set meets the stopping rule: then the
 // rule is checked on all variables, and the solve only ends when it holds
@@ -84,7 +84,27 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 	v := make([]float64, n) // −y_t ∇_t; ∇ = −e at a = 0
 	up := make([]bool, n)   // t in I_up: y_t = +1, a_t < C or y_t = −1, a_t > 0
 	low := make([]bool, n)  // t in I_low: y_t = +1, a_t > 0 or y_t = −1, a_t < C
-	var wbar []float64      // Σ_{s: a_s = C} C y_s K_ts, from the first shrinking pass on
+	// wbar_t = Σ_{s: a_s = C} C y_s K_ts, needed once variables are set
+	// aside and kept up to date from then on (updateBar). When the cache
+	// holds the whole Gram matrix it is built at the first shrinking pass
+	// (many solves end before one); otherwise it is kept from the start,
+	// because the rows of the multipliers reaching C are in the cache just
+	// then (they were a working pair), while building it later would
+	// recompute evicted rows.
+	var wbar []float64
+	buildBar := func() {
+		wbar = make([]float64, n)
+		for s := range n {
+			if alpha[s] < c {
+				continue
+			}
+			ks := cache.row(s, n)
+			cs := c * yp[s]
+			for t, k := range ks {
+				wbar[t] += cs * k
+			}
+		}
+	}
 	setFlags := func(t int) {
 		if yp[t] > 0 {
 			up[t], low[t] = alpha[t] < c, alpha[t] > 0
@@ -119,6 +139,9 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 	}
 	for t := range n {
 		setFlags(t)
+	}
+	if o.shrink && !cache.full {
+		buildBar()
 	}
 	diag := cache.diag[:n] // swapped in place by cache.swap
 
@@ -194,19 +217,7 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 	shrinkPass := func() {
 		res.shrinks++
 		if wbar == nil {
-			// w̄ is needed once variables are set aside; build it now and
-			// keep it up to date from here on (updateBar).
-			wbar = make([]float64, n)
-			for s := range n {
-				if alpha[s] < c {
-					continue
-				}
-				ks := cache.row(s, n)
-				cs := c * yp[s]
-				for t, k := range ks {
-					wbar[t] += cs * k
-				}
-			}
+			buildBar()
 		}
 		bounds := func(to int) (float64, float64) {
 			m, M := math.Inf(-1), math.Inf(1)
