@@ -69,12 +69,11 @@ const tau = 1e-12
 // fits holds it (n² values, computed only where the solver asks), a
 // larger one never allocates n × n and recomputes evicted rows when
 // needed; the diagonal is kept apart. Memory of one two-class task of m
-// rows in d features: the cache bound (at most 8m² bytes), plus about
-// 8m·(d + 14) bytes of points, diagonal, multipliers, gradients and
-// bookkeeping, plus 48 bytes per cached row (see MemoryBytes for the
-// whole fit). Tasks run one after the other, so one cache is alive at a
-// time. Row memory of tasks whose Gram matrix fits is recycled from one
-// fit to the next.
+// rows in d features: the cache bound (at most 8m² bytes), plus m·(8d +
+// 186) bytes of points, diagonal, multipliers, gradients and bookkeeping
+// (see MemoryBytes for the whole fit). Tasks run one after the other, so
+// one cache is alive at a time. Row memory of small tasks is recycled from
+// one fit to the next.
 //
 // More than two classes are handled one-vs-one: one two-class task for every
 // pair (a, b), a < b, of classes present in the training data, on the rows of

@@ -13,17 +13,20 @@ import (
 
 // blobs returns n seeded rows in d dimensions from k classes (labels dealt
 // round robin), each class a Gaussian blob of unit spread around its own
-// centre; the centres are drawn N(0, sep²) per coordinate, so sep sets the
-// overlap (and with it the share of support vectors).
+// centre; the centres are drawn N(0, sep²) per coordinate from a generator
+// seeded by k alone, so that every n and seed samples the same
+// distribution, and sep sets the overlap (and with it the share of
+// support vectors).
 func blobs(seed uint64, n, d, k int, sep float64) (*mat.Dense, []int) {
-	rng := rand.New(rand.NewPCG(seed, 0xb10b))
+	crng := rand.New(rand.NewPCG(uint64(k), 0xce47e5)) // the centres depend on k and d only
 	centre := make([][]float64, k)
 	for c := range centre {
 		centre[c] = make([]float64, d)
 		for j := range centre[c] {
-			centre[c][j] = sep * rng.NormFloat64()
+			centre[c][j] = sep * crng.NormFloat64()
 		}
 	}
+	rng := rand.New(rand.NewPCG(seed, 0xb10b))
 	X := mat.NewDense(n, d, nil)
 	y := make([]int, n)
 	for i := range n {

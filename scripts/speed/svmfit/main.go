@@ -1,7 +1,7 @@
 // Command svmfit fits fringe's SVM once on seeded Gaussian blobs (the data
 // of BenchmarkSVMFit in baselines/svm_scale_test.go: n rows, d features, k
 // classes dealt round robin, unit spread around centres drawn N(0, sep²)
-// per coordinate) and prints the fit time, support vectors, iterations and
+// per coordinate by a generator seeded with k) and prints the fit time, support vectors, iterations and
 // kernel evaluations, and the memory estimate of SVM.MemoryBytes. It exists
 // to measure peak memory from outside, e.g.
 //
@@ -71,14 +71,15 @@ func main() {
 
 // blobs is the generator of baselines/svm_scale_test.go (kept identical).
 func blobs(seed uint64, n, d, k int, sep float64) (*mat.Dense, []int) {
-	rng := rand.New(rand.NewPCG(seed, 0xb10b))
+	crng := rand.New(rand.NewPCG(uint64(k), 0xce47e5)) // the centres depend on k and d only
 	centre := make([][]float64, k)
 	for c := range centre {
 		centre[c] = make([]float64, d)
 		for j := range centre[c] {
-			centre[c][j] = sep * rng.NormFloat64()
+			centre[c][j] = sep * crng.NormFloat64()
 		}
 	}
+	rng := rand.New(rand.NewPCG(seed, 0xb10b))
 	X := mat.NewDense(n, d, nil)
 	y := make([]int, n)
 	for i := range n {
