@@ -59,11 +59,11 @@ const (
 // grow to twice the memory still in use before it collects (evicted kernel
 // rows and the vectors of finished tasks are such garbage). Tasks run one
 // after the other, so only one cache is alive at a time. Measured with
-// /usr/bin/time -v (maximum resident set size of scripts/speed/svmfit, the
-// blobs of BenchmarkSVMFit, default cache): one fit of 50,000 rows in 2
-// classes peaked at 231 MB against an estimate of 470 MB, and five fits of
-// 40,000 rows in one process (5-fold cross-validation) at 392 MB against
-// 460 MB.
+// /usr/bin/time -v (maximum resident set size of scripts/speed/svmfit on
+// the blobs of BenchmarkSVMFit, default cache): one fit of 50,000 rows
+// peaked at 230 MB in 2 classes and 273 MB in 10 (estimates 472 and 497
+// MB); five fits of 40,000 rows in one process (5-fold cross-validation)
+// at 413 and 451 MB (estimates 461 and 482 MB).
 //
 // It returns an error wrapping ErrParam for invalid options (as Fit) or
 // negative sizes.

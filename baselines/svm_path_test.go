@@ -28,6 +28,9 @@ func pathCases(t *testing.T) []pathCase {
 	bin := loadSVMFixture(t, "svm_binary.json").Cases[5] // synthetic, linear
 	cases = append(cases, pathCase{"synthetic/linear", denseOf(t, bin.XTrain), denseOf(t, bin.XTest), bin.YTrain, 2, SVM{Kernel: KernelLinear}})
 	for _, k := range []int{2, 4} {
+		if testing.Short() {
+			break // the fixture cases only
+		}
 		X, y := blobs(uint64(40+k), 1500, 16, k, scaleSep)
 		T, _ := blobs(uint64(50+k), 200, 16, k, scaleSep)
 		cases = append(cases, pathCase{fmt.Sprintf("blobs/n=1500/classes=%d", k), X, T, y, k, SVM{}})
