@@ -337,10 +337,11 @@ func solveSMO(cache *kernelCache, y, alpha0 []float64, o smoOpts) (smoResult, er
 		ci := yp[i] * (alpha[i] - oldI)
 		cj := yp[j] * (alpha[j] - oldJ)
 		gmax, i = math.Inf(-1), -1
-		up := up[:active]
-		for t, vt := range v[:active] {
+		va := v[:active]
+		up, ki, kj := up[:len(va)], ki[:len(va)], kj[:len(va)]
+		for t, vt := range va {
 			vt -= ci*ki[t] + cj*kj[t]
-			v[t] = vt
+			va[t] = vt
 			if up[t] && vt >= gmax {
 				gmax, i = vt, t
 			}
