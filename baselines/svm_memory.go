@@ -1,6 +1,7 @@
 package baselines
 
 import (
+	"errors"
 	"fmt"
 )
 
@@ -82,4 +83,41 @@ func (s *SVM) MemoryBytes(nTrain, d, nClass int) (int64, error) {
 	task := min(gram, cache) + m*(8*dd+taskBytesPerRow)
 	model := n*(8*dd+fitBytesPerRow) + n*int64(max(nClass-1, 1))*coefBytes
 	return 2 * (task + model), nil
+}
+
+// ErrMemory marks a fit whose estimated memory exceeds the caller's limit.
+var ErrMemory = errors.New("estimated memory above the limit")
+
+// CheckMemory returns an error wrapping ErrMemory when MemoryBytes(nTrain,
+// d, nClass) exceeds limit bytes, naming the estimate, the limit and the
+// two remedies (a smaller kernel cache, fewer rows), so that a planner can
+// refuse a run before it starts; the planner adds the spec key. It returns
+// MemoryBytes' errors for invalid input, and nil within the limit.
+func (s *SVM) CheckMemory(nTrain, d, nClass int, limit int64) error {
+	est, err := s.MemoryBytes(nTrain, d, nClass)
+	if err != nil {
+		return err
+	}
+	return memoryVerdict("svm", est, limit, nTrain, d, nClass, s.CacheMiB)
+}
+
+// CheckMemory is SVM.CheckMemory for the tuned model (TunedSVM.MemoryBytes).
+func (m *TunedSVM) CheckMemory(nTrain, d, nClass int, limit int64) error {
+	est, err := m.MemoryBytes(nTrain, d, nClass)
+	if err != nil {
+		return err
+	}
+	return memoryVerdict("tuned svm", est, limit, nTrain, d, nClass, m.SVM.CacheMiB)
+}
+
+func memoryVerdict(model string, est, limit int64, n, d, k int, cacheMiB float64) error {
+	if est <= limit {
+		return nil
+	}
+	if cacheMiB == 0 {
+		cacheMiB = DefaultCacheMiB
+	}
+	const gib = 1 << 30
+	return fmt.Errorf("baselines: %s: needs about %.2f GiB for %d training rows of %d features in %d classes, above the limit of %.2f GiB; lower the kernel cache (now %g MiB per two-class task) or use fewer rows: %w",
+		model, float64(est)/gib, n, d, k, float64(limit)/gib, cacheMiB, ErrMemory)
 }

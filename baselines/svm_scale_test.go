@@ -172,4 +172,16 @@ func TestSVMMemoryBytes(t *testing.T) {
 	if _, err := (&SVM{CacheMiB: -1}).MemoryBytes(10, 4, 2); !errors.Is(err, ErrParam) {
 		t.Errorf("CacheMiB -1: %v, want %v", err, ErrParam)
 	}
+	// The plan-time check: within and above a limit.
+	if err := s.CheckMemory(50000, 16, 2, big); err != nil {
+		t.Errorf("CheckMemory at the estimate: %v", err)
+	}
+	err = s.CheckMemory(50000, 16, 2, big-1)
+	if !errors.Is(err, ErrMemory) {
+		t.Fatalf("CheckMemory below the estimate: %v, want %v", err, ErrMemory)
+	}
+	t.Logf("refusal: %v", err)
+	if err := (&TunedSVM{}).CheckMemory(50000, 16, 2, 1<<20); !errors.Is(err, ErrMemory) {
+		t.Errorf("TunedSVM.CheckMemory with 1 MiB: %v, want %v", err, ErrMemory)
+	}
 }
