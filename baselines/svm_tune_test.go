@@ -91,12 +91,28 @@ func TestStratifiedFoldsMatchSklearn(t *testing.T) {
 }
 
 // standardised loads an embedded dataset z-scored with the population
-// standard deviation over all rows (scripts/ref_svm_grid.py's standardise).
+// standard deviation over all rows (scripts/ref_svm_grid.py's standardise)
+// and checks that its raw values sum to xsum, scikit-learn's sum.
 func standardised(t *testing.T, name string, xsum float64) (*mat.Dense, []int, int) {
 	t.Helper()
-	ds, err := datasets.Load(name)
+	X, y, k, sum, err := loadStandardised(name)
 	if err != nil {
 		t.Fatal(err)
+	}
+	// The same rows as scikit-learn's copy: the sums agree to rounding
+	// (two summation orders of ~1e6 over 17,000 terms: 1e-9 relative).
+	if !scalar.EqualWithinRel(sum, xsum, 1e-9) {
+		t.Fatalf("%s: sum of X = %.10g, scikit-learn's %.10g", name, sum, xsum)
+	}
+	return X, y, k
+}
+
+// loadStandardised returns the z-scored matrix, the labels, the number of
+// classes and the sum of the raw values.
+func loadStandardised(name string) (*mat.Dense, []int, int, float64, error) {
+	ds, err := datasets.Load(name)
+	if err != nil {
+		return nil, nil, 0, 0, err
 	}
 	n, d := ds.X.Dims()
 	var sum float64
@@ -117,12 +133,7 @@ func standardised(t *testing.T, name string, xsum float64) (*mat.Dense, []int, i
 			X.Set(i, j, (ds.X.At(i, j)-mean)/sd)
 		}
 	}
-	// The same rows as scikit-learn's copy: the sums agree to rounding
-	// (two summation orders of ~1e6 over 17,000 terms: 1e-9 relative).
-	if !scalar.EqualWithinRel(sum, xsum, 1e-9) {
-		t.Fatalf("%s: sum of X = %.10g, scikit-learn's %.10g", name, sum, xsum)
-	}
-	return X, ds.Y, len(ds.Classes)
+	return X, ds.Y, len(ds.Classes), sum, nil
 }
 
 // TestTunedSVMMatchesGridSearchCV compares the grid search with
