@@ -57,8 +57,8 @@ const (
 //     bookkeeping;
 //
 // doubled, because the Go runtime with its default GOGC = 100 lets the heap
-// grow to twice the memory still in use before it collects (evicted kernel
-// rows and the vectors of finished tasks are such garbage). Tasks run one
+// grow to twice the memory still in use before it collects (the caches and
+// vectors of finished tasks and earlier fits are such garbage). Tasks run one
 // after the other, so only one cache is alive at a time. Measured with
 // /usr/bin/time -v (maximum resident set size of scripts/speed/svmfit on
 // the blobs of BenchmarkSVMFit, default cache): one fit of 50,000 rows
