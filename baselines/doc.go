@@ -14,12 +14,19 @@
 //     LogisticRegression(C=...)) for two classes, multinomial for three or
 //     more; fitted by L-BFGS (finished by Newton steps) to a gradient
 //     tolerance.
-//   - SVM: the support-vector machine with its kernels (its own files).
+//   - SVM: the support-vector machine with its kernels (its own files),
+//     with a bounded kernel-row cache (CacheMiB) and shrinking; FitPath
+//     fits several C on the same data sharing kernel rows and warm starts;
+//     MemoryBytes estimates a fit's peak memory before it runs.
+//   - TunedSVM: an SVM whose C and gamma are chosen by grid search with
+//     stratified k-fold cross-validation on the training data (the folds of
+//     StratifiedFolds, as scikit-learn's StratifiedKFold), then refitted.
 //
 // Options are plain struct fields whose zero values are sensible defaults
 // (KNN: k = 5, Euclidean, uniform; LogReg: C = 1, 10000 iterations, gradient
 // tolerance 1e-4, scikit-learn's default; SVM: C = 1, RBF with gamma
-// "scale", tolerance 1e-3). They are validated at Fit.
+// "scale", tolerance 1e-3, a 200 MiB kernel cache per two-class task and
+// shrinking on; TunedSVM: 5 inner folds). They are validated at Fit.
 //
 // Conventions shared by all models:
 //
@@ -71,6 +78,6 @@
 // never change a neighbour or a distance.
 //
 // The tests compare each model with scikit-learn 1.2.1 (scripts/ref_knn.py,
-// scripts/ref_logreg.py, scripts/ref_svm.py; fixtures in testdata/ record the
-// versions).
+// scripts/ref_logreg.py, scripts/ref_svm.py, scripts/ref_svm_grid.py;
+// fixtures in testdata/ record the versions).
 package baselines

@@ -43,6 +43,9 @@ type svmRefCase struct {
 	Predict   []int           `json:"predict"`
 	DualCoef  []float64       `json:"dual_coef"`
 	NIter     []int           `json:"n_iter"`
+	// The same fit with shrinking=True.
+	SupportShrinking []int `json:"support_shrinking"`
+	NIterShrinking   []int `json:"n_iter_shrinking"`
 }
 
 func loadSVMFixture(t *testing.T, name string) svmFixture {
@@ -96,19 +99,33 @@ const svmAgreeTol = 1e-3
 // TestSVMBinaryMatchesSklearn compares two-class fits with
 // scikit-learn 1.2.1 SVC; the exact call of each case is in its "call"
 // field of testdata/svm_binary.json, written by scripts/ref_svm.py.
+//
+// Each case runs without shrinking (NoShrinking, compared with the
+// fixture's shrinking=False fit: support set exact) and with it (the
+// default, compared with the shrinking=True fit: see checkSupport).
 func TestSVMBinaryMatchesSklearn(t *testing.T) {
 	fx := loadSVMFixture(t, "svm_binary.json")
 	for _, c := range fx.Cases {
-		t.Run(c.Name, func(t *testing.T) {
-			s := svmFor(t, c, fx.Tol)
-			if err := s.Fit(denseOf(t, c.XTrain), c.YTrain, 2); err != nil {
-				t.Fatal(err)
-			}
-			checkGamma(t, s, c)
-			checkIterations(t, s, c)
-			if got := s.SupportIndices(); !slices.Equal(got, c.Support) {
-				t.Errorf("support = %v, want %v (%s)", got, c.Support, c.Call)
-			}
+		for _, shrink := range []bool{false, true} {
+			t.Run(fmt.Sprintf("%s/shrink=%v", c.Name, shrink), func(t *testing.T) {
+				s := svmFor(t, c, fx.Tol)
+				s.NoShrinking = !shrink
+				if err := s.Fit(denseOf(t, c.XTrain), c.YTrain, 2); err != nil {
+					t.Fatal(err)
+				}
+				checkGamma(t, s, c)
+				checkIterations(t, s, c, shrink)
+				checkSupport(t, s, c, shrink)
+				checkBinaryValues(t, s, c)
+			})
+		}
+	}
+}
+
+func checkBinaryValues(t *testing.T, s *SVM, c svmRefCase) {
+	t.Helper()
+	{
+		{
 
 			var wantDec []float64
 			if err := json.Unmarshal(c.Decision, &wantDec); err != nil {
@@ -156,8 +173,53 @@ func TestSVMBinaryMatchesSklearn(t *testing.T) {
 			if !slices.Equal(pred, c.Predict) {
 				t.Errorf("predict = %v, want %v", pred, c.Predict)
 			}
-			t.Logf("max |deviation| from scikit-learn %.2e; %d iterations (LIBSVM %v)", worst, s.fit.iter, c.NIter)
-		})
+			t.Logf("max |deviation| from scikit-learn %.2e; %d iterations (LIBSVM %v, %v with shrinking)", worst, s.fit.iter, c.NIter, c.NIterShrinking)
+		}
+	}
+}
+
+// checkSupport compares the support set. Without shrinking it must equal
+// scikit-learn's shrinking=False support_ exactly. With shrinking it is
+// compared with the shrinking=True support_: both solvers stop at m − M ≤
+// 1e-8 by different paths, and a point on the margin may end with a
+// multiplier of the order of the tolerance on one side and exactly 0 on
+// the other (measured: 2.4e-8 on Iris RBF, pair (1, 2)). Such a multiplier
+// moves no decision value by more than 1e-6·C·max|k| if it is below
+// 1e-6·C, far inside svmAgreeTol; extra support vectors of that size are
+// accepted and logged, any other difference fails.
+func checkSupport(t *testing.T, s *SVM, c svmRefCase, shrink bool) {
+	t.Helper()
+	got := s.SupportIndices()
+	if !shrink {
+		if !slices.Equal(got, c.Support) {
+			t.Errorf("support = %v, want %v (%s)", got, c.Support, c.Call)
+		}
+		return
+	}
+	want := c.SupportShrinking
+	if slices.Equal(got, want) {
+		return
+	}
+	largest := make(map[int]float64) // training row -> largest |a_i| over the tasks
+	for _, task := range s.fit.tasks {
+		for k, p := range task.sv {
+			i := s.fit.svIndex[p]
+			largest[i] = max(largest[i], math.Abs(task.coef[k]))
+		}
+	}
+	for _, i := range want {
+		if _, ok := largest[i]; !ok {
+			t.Errorf("row %d: a support vector of scikit-learn (shrinking=True), not here", i)
+		}
+	}
+	for _, i := range got {
+		if !slices.Contains(want, i) {
+			if a := largest[i]; a >= 1e-6*s.C {
+				t.Errorf("row %d: support vector with |a| = %g, not one of scikit-learn's (shrinking=True)", i, a)
+			} else {
+				t.Logf("row %d: extra support vector with |a| = %.2g < 1e-6·C", i, a)
+			}
+		}
 	}
 }
 
@@ -170,10 +232,14 @@ func TestSVMBinaryMatchesSklearn(t *testing.T) {
 // three-class linear one. A first-order (maximal violating pair) selection,
 // tried on the same binary cases, took 542 instead of 1411 iterations on
 // Iris/linear and 371 instead of 116 on Iris/poly, far outside ±(30% + 10).
-func checkIterations(t *testing.T, s *SVM, c svmRefCase) {
+func checkIterations(t *testing.T, s *SVM, c svmRefCase, shrink bool) {
 	t.Helper()
 	var ref int
-	for _, v := range c.NIter {
+	iters := c.NIter
+	if shrink {
+		iters = c.NIterShrinking
+	}
+	for _, v := range iters {
 		ref += v
 	}
 	if got := s.fit.iter; math.Abs(float64(got-ref)) > 0.3*float64(ref)+10 {
@@ -200,17 +266,27 @@ func checkGamma(t *testing.T, s *SVM, c svmRefCase) {
 func TestSVMOvOMatchesSklearn(t *testing.T) {
 	fx := loadSVMFixture(t, "svm_ovo.json")
 	for _, c := range fx.Cases {
-		t.Run(c.Name, func(t *testing.T) {
-			s := svmFor(t, c, fx.Tol)
-			if err := s.Fit(denseOf(t, c.XTrain), c.YTrain, c.NClass); err != nil {
-				t.Fatal(err)
-			}
-			checkGamma(t, s, c)
-			checkIterations(t, s, c)
-			// scikit-learn's support_ is the union over the pairs too.
-			if got := s.SupportIndices(); !slices.Equal(got, c.Support) {
-				t.Errorf("support = %v, want %v", got, c.Support)
-			}
+		for _, shrink := range []bool{false, true} {
+			t.Run(fmt.Sprintf("%s/shrink=%v", c.Name, shrink), func(t *testing.T) {
+				s := svmFor(t, c, fx.Tol)
+				s.NoShrinking = !shrink
+				if err := s.Fit(denseOf(t, c.XTrain), c.YTrain, c.NClass); err != nil {
+					t.Fatal(err)
+				}
+				checkGamma(t, s, c)
+				checkIterations(t, s, c, shrink)
+				// scikit-learn's support_ is the union over the pairs too.
+				checkSupport(t, s, c, shrink)
+				checkOvOValues(t, s, c)
+			})
+		}
+	}
+}
+
+func checkOvOValues(t *testing.T, s *SVM, c svmRefCase) {
+	t.Helper()
+	{
+		{
 			pred, err := s.Predict(denseOf(t, c.XTest))
 			if err != nil {
 				t.Fatal(err)
@@ -244,8 +320,8 @@ func TestSVMOvOMatchesSklearn(t *testing.T) {
 					t.Errorf("pair (%d,%d): -rho = %.9f, want intercept_ %.9f", task.a, task.b, -task.rho, c.Intercept[k])
 				}
 			}
-			t.Logf("max |deviation| from scikit-learn %.2e; %d iterations (LIBSVM %v)", worst, s.fit.iter, c.NIter)
-		})
+			t.Logf("max |deviation| from scikit-learn %.2e; %d iterations (LIBSVM %v, %v with shrinking)", worst, s.fit.iter, c.NIter, c.NIterShrinking)
+		}
 	}
 }
 
@@ -380,10 +456,11 @@ func checkKKT(t *testing.T, k kernel, pts [][]float64, y []float64, c, tol float
 }
 
 // TestSMOKKTProperties checks the solution's optimality conditions on
-// seeded problems for every kernel, several C and two tolerances, including
-// an indefinite polynomial kernel (coef0 < 0), where the curvature floor tau
-// keeps the steps finite and the stopping rule still holds at a stationary
-// point.
+// seeded problems for every kernel, several C and two tolerances, with and
+// without shrinking, including an indefinite polynomial kernel (coef0 < 0),
+// where the curvature floor tau keeps the steps finite and the stopping
+// rule still holds at a stationary point. 300 points make the solver
+// shrink (every min(n, 1000) iterations) on most of them.
 func TestSMOKKTProperties(t *testing.T) {
 	kernels := []kernel{
 		{kind: KernelRBF, gamma: 0.3},
@@ -394,53 +471,71 @@ func TestSMOKKTProperties(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(11, 12))
 	pts, y := randomTwoClass(rng, 80, 4, 0.4)
+	big, ybig := randomTwoClass(rng, 300, 4, 0.3)
 	for _, k := range kernels {
 		for _, c := range []float64{0.1, 1, 10} {
 			for _, tol := range []float64{1e-3, 1e-6} {
-				name := fmt.Sprintf("kernel=%v/gamma=%g/coef0=%g/C=%g/tol=%g", k.kind, k.gamma, k.coef0, c, tol)
-				t.Run(name, func(t *testing.T) {
-					res, err := solveSMO(newKernelCache(k, pts, 0), y, c, tol, 1_000_000)
-					if err != nil {
-						t.Fatal(err)
+				for _, shrink := range []bool{false, true} {
+					for _, set := range []struct {
+						pts [][]float64
+						y   []float64
+					}{{pts, y}, {big, ybig}} {
+						if testing.Short() && len(set.y) > 100 && k.kind != KernelRBF {
+							continue // the larger set with the RBF kernel only
+						}
+						name := fmt.Sprintf("kernel=%v/gamma=%g/coef0=%g/C=%g/tol=%g/shrink=%v/n=%d", k.kind, k.gamma, k.coef0, c, tol, shrink, len(set.y))
+						t.Run(name, func(t *testing.T) {
+							res, err := solveSMO(newKernelCache(k, set.pts, 0), set.y, nil, smoOpts{c: c, eps: tol, maxIter: 1_000_000, shrink: shrink})
+							if err != nil {
+								t.Fatal(err)
+							}
+							checkKKT(t, k, set.pts, set.y, c, tol, res)
+						})
 					}
-					checkKKT(t, k, pts, y, c, tol, res)
-				})
+				}
 			}
 		}
 	}
 }
 
 // TestSMOLimitedCacheSameSolution runs the solver with a cache that holds
-// only 3 rows (so rows are evicted and recomputed) and with a full cache.
-// Recomputed rows are produced by the same arithmetic in the same order, so
-// the two runs take identical steps: the tolerance 1e-15 only avoids == on
-// floats.
+// only 3 rows (so rows are evicted and recomputed) and with a full cache,
+// with and without shrinking. Recomputed rows are produced by the same
+// arithmetic for every entry, so the two runs take identical steps: the
+// tolerance 1e-15 only avoids == on floats.
 func TestSMOLimitedCacheSameSolution(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 4))
-	pts, y := randomTwoClass(rng, 60, 5, 0.3)
+	pts, y := randomTwoClass(rng, 260, 5, 0.3)
 	k := kernel{kind: KernelRBF, gamma: 0.2}
-	full, err := solveSMO(newKernelCache(k, pts, 0), y, 1, 1e-6, 1_000_000)
-	if err != nil {
-		t.Fatal(err)
-	}
-	small := newKernelCache(k, pts, 3)
-	lim, err := solveSMO(small, y, 1, 1e-6, 1_000_000)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if small.held > 3 {
-		t.Errorf("limited cache holds %d rows, limit 3", small.held)
-	}
-	if lim.iter != full.iter {
-		t.Errorf("iterations %d with 3 cached rows, %d with all", lim.iter, full.iter)
-	}
-	for i := range full.alpha {
-		if !scalar.EqualWithinAbs(lim.alpha[i], full.alpha[i], 1e-15) {
-			t.Errorf("alpha[%d] = %g with 3 cached rows, %g with all", i, lim.alpha[i], full.alpha[i])
+	for _, shrink := range []bool{false, true} {
+		o := smoOpts{c: 1, eps: 1e-6, maxIter: 1_000_000, shrink: shrink}
+		full, err := solveSMO(newKernelCache(k, pts, 0), y, nil, o)
+		if err != nil {
+			t.Fatal(err)
 		}
-	}
-	if !scalar.EqualWithinAbs(lim.rho, full.rho, 1e-15) {
-		t.Errorf("rho = %g with 3 cached rows, %g with all", lim.rho, full.rho)
+		small := newKernelCache(k, pts, 3*len(pts))
+		lim, err := solveSMO(small, y, nil, o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if small.held > 3*len(pts) || small.full {
+			t.Errorf("shrink=%v: limited cache holds %d values, bound %d", shrink, small.held, 3*len(pts))
+		}
+		if lim.iter != full.iter {
+			t.Errorf("shrink=%v: iterations %d with 3 cached rows, %d with all", shrink, lim.iter, full.iter)
+		}
+		for i := range full.alpha {
+			if !scalar.EqualWithinAbs(lim.alpha[i], full.alpha[i], 1e-15) {
+				t.Errorf("shrink=%v: alpha[%d] = %g with 3 cached rows, %g with all", shrink, i, lim.alpha[i], full.alpha[i])
+			}
+		}
+		if !scalar.EqualWithinAbs(lim.rho, full.rho, 1e-15) {
+			t.Errorf("shrink=%v: rho = %g with 3 cached rows, %g with all", shrink, lim.rho, full.rho)
+		}
+		if shrink != (full.minActive < len(y)) {
+			t.Errorf("shrink=%v: smallest active set %d of %d", shrink, full.minActive, len(y))
+		}
+		t.Logf("shrink=%v: %d iterations, %d shrinking passes, smallest active set %d of %d", shrink, full.iter, full.shrinks, full.minActive, len(y))
 	}
 }
 
@@ -676,13 +771,13 @@ func TestSVMMaxIter(t *testing.T) {
 	}
 }
 
-// BenchmarkSVMFit fits seeded two-class Gaussian data of breast-cancer size
+// BenchmarkSVMFitSmall fits seeded two-class Gaussian data of breast-cancer size
 // (n×30). Metrics: solver iterations, kernel evaluations and support
 // vectors per fit, and fit-ns/keval, the whole fit time divided by the
 // kernel evaluations (an upper bound on the cost of one evaluation; for the
 // RBF kernel rows are about half the fit, see BenchmarkKernelRow for the
 // evaluation alone).
-func BenchmarkSVMFit(b *testing.B) {
+func BenchmarkSVMFitSmall(b *testing.B) {
 	for _, n := range []int{128, 512} {
 		for _, kind := range []KernelKind{KernelRBF, KernelLinear} {
 			b.Run(fmt.Sprintf("n=%d/d=30/kernel=%v", n, kind), func(b *testing.B) {

@@ -9,7 +9,9 @@ Writes two JSON fixtures beside the Go tests that read them:
 Every case records the data it was fitted on, the exact scikit-learn call,
 and the fitted quantities the Go tests compare against: decision_function on
 fixed test points, predict, support_ (sorted ascending, dual_coef_ permuted
-to match), intercept_ and the gamma actually used (SVC._gamma).
+to match), intercept_ and the gamma actually used (SVC._gamma), all with
+shrinking=False; and support_ and n_iter_ of the same fit with
+shrinking=True (fields "support_shrinking", "n_iter_shrinking").
 
 Run with Debian's interpreter, which has python3-sklearn 1.2.1:
 
@@ -27,6 +29,7 @@ import sys
 import numpy as np
 import sklearn
 from sklearn.datasets import load_iris
+from sklearn.base import clone
 from sklearn.svm import SVC
 
 # Stopping tolerance passed to LIBSVM (SVC(tol=...)). Far tighter than the
@@ -106,6 +109,15 @@ def fit_case(name, X, y, Xtest, kernel, C, gamma=None, degree=3, coef0=0.0):
         gamma_used = float(est._gamma)
     if est.fit_status_ != 0:
         sys.exit("ref_svm: %s did not converge" % name)
+    # The same fit with LIBSVM's shrinking heuristic on (its default), for
+    # the tests of fringe's shrinking: support set and iteration counts.
+    shr = clone(est).set_params(shrinking=True)
+    if kernel == "interference":
+        shr.fit(interference_gram(X, X), y)
+    else:
+        shr.fit(X, y)
+    if shr.fit_status_ != 0:
+        sys.exit("ref_svm: %s with shrinking did not converge" % name)
     order = np.argsort(est.support_, kind="stable")
     rec = {
         "name": name,
@@ -125,6 +137,8 @@ def fit_case(name, X, y, Xtest, kernel, C, gamma=None, degree=3, coef0=0.0):
         "decision": np.asarray(dec).tolist(),
         "predict": [int(v) for v in pred],
         "n_iter": [int(v) for v in np.atleast_1d(est.n_iter_)],
+        "support_shrinking": sorted(int(v) for v in shr.support_),
+        "n_iter_shrinking": [int(v) for v in np.atleast_1d(shr.n_iter_)],
     }
     if len(est.classes_) == 2:
         rec["dual_coef"] = [float(v) for v in est.dual_coef_[0][order]]
