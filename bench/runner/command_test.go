@@ -418,9 +418,14 @@ func TestCommandCancel(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	time.AfterFunc(300*time.Millisecond, cancel)
 	start := time.Now()
-	_, err := Execute(ctx, p, Options{Workers: 2})
+	// A grace period of 1 s: the hanging programs are killed when it ends.
+	_, err := Execute(ctx, p, Options{Workers: 2, Grace: time.Second})
 	if !errors.Is(err, context.Canceled) {
 		t.Fatalf("error %v, want context.Canceled", err)
+	}
+	var ie *InterruptedError
+	if !errors.As(err, &ie) || ie.Abandoned != 2 {
+		t.Errorf("error %v, want an InterruptedError with the 2 hanging tasks abandoned", err)
 	}
 	if d := time.Since(start); d > 15*time.Second {
 		t.Errorf("cancelled run took %v", d)
@@ -468,5 +473,53 @@ train_subset = 8
 	}
 	if s.Models[0].Name != "command-my_classifier" || s.Models[1].Name != "counts-measured-k8-balanced" {
 		t.Errorf("default labels %q, %q", s.Models[0].Name, s.Models[1].Name)
+	}
+}
+
+// TestShutdownBounded: a run of slow gate-level noisy tasks (the density
+// matrix of 11 qubits) that is stopped returns promptly, whatever the
+// grace: at once with a negative grace, and as soon as Abandon is closed
+// with a long one; the tasks in flight are reported abandoned. Before, a
+// stopped run waited for every task in flight to finish.
+func TestShutdownBounded(t *testing.T) {
+	p := benchtest.Plan(t, "slow.toml", `
+name = "slow"
+seed = 1
+datasets = ["wine"]
+pipelines = ["std+l2"]
+[cv]
+folds = 3
+[[model]]
+kind = "interference"
+mode = "noisy"
+train_subset = 16
+method = "density"
+noise = { depolarizing = [0.001, 0.01] }
+`)
+	for _, c := range []struct {
+		name    string
+		grace   time.Duration
+		abandon bool
+	}{{"no grace", -1, false}, {"second interrupt", time.Hour, true}} {
+		t.Run(c.name, func(t *testing.T) {
+			ctx, cancel := context.WithCancel(context.Background())
+			ab := make(chan struct{})
+			time.AfterFunc(200*time.Millisecond, func() {
+				cancel()
+				if c.abandon {
+					time.AfterFunc(100*time.Millisecond, func() { close(ab) })
+				}
+			})
+			start := time.Now()
+			_, err := Execute(ctx, p, Options{Workers: 2, Grace: c.grace, Abandon: ab})
+			var ie *InterruptedError
+			if !errors.As(err, &ie) || !errors.Is(err, context.Canceled) || ie.Abandoned == 0 {
+				t.Fatalf("error %v, want an InterruptedError with tasks abandoned", err)
+			}
+			// A watchdog, not a speed claim: one task takes minutes here.
+			if d := time.Since(start); d > 30*time.Second {
+				t.Errorf("stopped run took %v", d)
+			}
+		})
 	}
 }

@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"golang.org/x/sync/errgroup"
+	"gonum.org/v1/gonum/mat"
 
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
@@ -36,7 +37,49 @@ type Options struct {
 	// SaveEvery is the longest a finished task waits before it is handed
 	// to Save; 0 means DefaultSaveEvery.
 	SaveEvery time.Duration
+	// Grace is how long the tasks in flight may still run once ctx is
+	// done (no task starts after that): after it their contexts are
+	// cancelled, so that simulators stop between gates and external
+	// programs are killed, and they are abandoned (their work is redone by
+	// a resumed run). 0 means DefaultGrace; a negative value abandons them
+	// at once.
+	Grace time.Duration
+	// Abandon, when it is closed, abandons the tasks in flight at once,
+	// grace or not (a second interrupt). May be nil.
+	Abandon <-chan struct{}
 }
+
+// DefaultGrace is the default grace period of the tasks in flight when a
+// run is stopped: well under the wait that cluster schedulers give between
+// their stop signal and the kill (Slurm's KillWait is 30 s by default,
+// recalled, not checked here).
+const DefaultGrace = 20 * time.Second
+
+// settle is how long Execute still waits, after abandoning the tasks in
+// flight, for them to return; a model that never looks at its context
+// (a baseline fit) is left behind after that, its result dropped.
+const settle = 2 * time.Second
+
+// InterruptedError is the error of a run stopped through its context: how
+// many tasks were abandoned in flight (the finished ones are kept). It
+// unwraps to the context's error.
+type InterruptedError struct {
+	Abandoned int           // tasks in flight when the grace period ended, not kept
+	Grace     time.Duration // the grace period that was given
+	Err       error         // ctx.Err()
+}
+
+func (e *InterruptedError) Error() string {
+	if e.Abandoned == 0 {
+		return "interrupted: " + e.Err.Error()
+	}
+	return fmt.Sprintf("interrupted: %v; %d task(s) in flight abandoned", e.Err, e.Abandoned)
+}
+
+func (e *InterruptedError) Unwrap() error { return e.Err }
+
+// errAbandoned cancels the tasks in flight.
+var errAbandoned = errors.New("runner: task abandoned when the run stopped")
 
 // DefaultSaveEvery is how long a finished task waits at most before it is
 // persisted: a run killed without warning redoes at most about this much
@@ -60,10 +103,13 @@ type TaskResult struct {
 // opt.Tasks is nil). Each task gets its own generator seed derived from the
 // run seed and the task key, so results do not depend on the number of
 // workers, on scheduling, or on which other tasks run in the same process.
-// On the first error (or when ctx is cancelled) tasks not yet started are
-// skipped, tasks in flight finish (models are not interruptible), finished
-// ones are handed to opt.Save, and the error is returned; errors caused by
-// the input satisfy errors.Is(err, input.ErrBad).
+// On the first error tasks not yet started are skipped, tasks in flight
+// are cancelled, finished ones are handed to opt.Save, and the error is
+// returned; errors caused by the input satisfy errors.Is(err,
+// input.ErrBad). When ctx is cancelled, no task starts any more, tasks in
+// flight get opt.Grace to finish (see Options), finished ones are handed
+// to opt.Save, and an *InterruptedError is returned; Execute returns
+// within the grace period plus a few seconds, whatever the models do.
 //
 // Tasks that share a dataset, pipeline and split are scheduled together as
 // one unit of work, so the pipeline is fitted and applied once for all the
@@ -95,44 +141,121 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	}
 	units := p.UnitsOf(tasks)
 	out := make([]TaskResult, len(tasks))
+	grace := opt.Grace
+	if grace == 0 {
+		grace = DefaultGrace
+	}
 
-	runCtx, cancel := context.WithCancelCause(ctx)
-	defer cancel(nil)
-	sv := newSaver(opt.Save, opt.SaveEvery, cancel)
+	// stop ends the starting of tasks (the caller's ctx, or a failure);
+	// inFlight is the context of the tasks that run.
+	stop, cancelStop := context.WithCancelCause(ctx)
+	defer cancelStop(nil)
+	inFlight, cancelTasks := context.WithCancelCause(context.Background())
+	defer cancelTasks(nil)
+	sv := newSaver(opt.Save, opt.SaveEvery, cancelStop)
 	var mu sync.Mutex
-	done := 0
+	done, running := 0, 0
+	gaveUp := false
+	abandoned := 0 // tasks in flight when they were abandoned
+	abandon := func() {
+		mu.Lock()
+		abandoned = running
+		mu.Unlock()
+		cancelTasks(errAbandoned)
+	}
+	started := func() {
+		mu.Lock()
+		running++
+		mu.Unlock()
+	}
 	finished := func(i int, r TaskResult) {
+		mu.Lock()
+		defer mu.Unlock()
+		if gaveUp {
+			return // Execute has returned: the result is dropped
+		}
+		running--
 		out[slot[i]] = r
 		sv.add(r)
-		mu.Lock()
 		done++
 		if opt.Progress != nil {
 			opt.Progress(done, len(tasks))
 		}
+	}
+	failed := func() {
+		mu.Lock()
+		running--
 		mu.Unlock()
 	}
-	g, gctx := errgroup.WithContext(runCtx)
-	g.SetLimit(workers)
-	for _, u := range units {
-		if gctx.Err() != nil {
-			break
+	all := make(chan struct{})
+	go func() {
+		select {
+		case <-stop.Done():
+		case <-all:
+			return
 		}
-		g.Go(func() error {
-			if err := gctx.Err(); err != nil {
-				return err
+		if ctx.Err() == nil {
+			cancelTasks(context.Cause(stop)) // a failure: nothing to wait for
+			return
+		}
+		var timer <-chan time.Time
+		if grace > 0 {
+			t := time.NewTimer(grace)
+			defer t.Stop()
+			timer = t.C
+		} else {
+			abandon()
+			return
+		}
+		select {
+		case <-timer:
+		case <-opt.Abandon:
+		case <-all:
+			return
+		}
+		abandon()
+	}()
+	g := new(errgroup.Group)
+	g.SetLimit(workers)
+	go func() {
+		defer close(all)
+		for _, u := range units {
+			if stop.Err() != nil {
+				break
 			}
-			return runUnit(gctx, p, u, finished)
-		})
+			g.Go(func() error {
+				if err := stop.Err(); err != nil {
+					return err
+				}
+				err := runUnit(stop, inFlight, p, u, started, finished, failed)
+				if err != nil && stop.Err() == nil {
+					cancelStop(err)
+				}
+				return err
+			})
+		}
+		g.Wait()
+	}()
+	select {
+	case <-all:
+	case <-inFlight.Done():
+		select {
+		case <-all:
+		case <-time.After(settle):
+		}
 	}
-	err := g.Wait()
+	mu.Lock()
+	gaveUp = true
+	mu.Unlock()
 	saveErr := sv.close()
+	cause := context.Cause(stop)
 	switch {
 	case ctx.Err() != nil:
-		return nil, ctx.Err()
+		return nil, &InterruptedError{Abandoned: abandoned, Grace: grace, Err: ctx.Err()}
 	case saveErr != nil:
 		return nil, saveErr
-	case err != nil:
-		return nil, err
+	case cause != nil:
+		return nil, cause
 	}
 	return out, nil
 }
@@ -218,8 +341,9 @@ func (s *saver) close() error {
 
 // runUnit fits the unit's pipeline on the training part of its split,
 // transforms both parts, and runs each of its tasks' models on them,
-// handing each result to finished as soon as it is complete.
-func runUnit(ctx context.Context, p *plan.Plan, unit []int, finished func(int, TaskResult)) error {
+// handing each result to finished as soon as it is complete. No task
+// starts once stop is done; models run with the context inFlight.
+func runUnit(stop, inFlight context.Context, p *plan.Plan, unit []int, started func(), finished func(int, TaskResult), failed func()) error {
 	start := time.Now()
 	t0 := p.Tasks[unit[0]]
 	pr, err := p.Prepare(t0.Dataset, t0.Pipeline, t0.Split)
@@ -228,11 +352,13 @@ func runUnit(ctx context.Context, p *plan.Plan, unit []int, finished func(int, T
 	}
 	shared := time.Since(start) / time.Duration(len(unit))
 	for _, i := range unit {
-		if err := ctx.Err(); err != nil {
+		if err := stop.Err(); err != nil {
 			return err
 		}
-		r, err := runModel(ctx, p, p.Tasks[i], pr)
+		started()
+		r, err := runModel(inFlight, p, p.Tasks[i], pr)
 		if err != nil {
+			failed()
 			if errors.Is(err, input.ErrBad) {
 				return err
 			}
@@ -242,6 +368,12 @@ func runUnit(ctx context.Context, p *plan.Plan, unit []int, finished func(int, T
 		finished(i, r)
 	}
 	return nil
+}
+
+// contextDetailer is a Detailer that stops when its context is done (the
+// interference classifier: between gates and rows).
+type contextDetailer interface {
+	PredictDetailContext(ctx context.Context, X *mat.Dense) ([]int, []qkernel.Detail, error)
 }
 
 // runModel fits one task's model on the prepared (transformed) training
@@ -260,7 +392,9 @@ func runModel(ctx context.Context, p *plan.Plan, t plan.Task, pr *plan.Prepared)
 	}
 	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test)}
 	var err error
-	if dm, ok := m.(modelkit.Detailer); ok {
+	if cm, ok := m.(contextDetailer); ok {
+		r.Pred, r.Details, err = cm.PredictDetailContext(ctx, pr.Zte)
+	} else if dm, ok := m.(modelkit.Detailer); ok {
 		r.Pred, r.Details, err = dm.PredictDetail(pr.Zte)
 	} else {
 		r.Pred, err = m.Predict(pr.Zte)

@@ -15,22 +15,51 @@ import (
 )
 
 func main() {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	// The first SIGINT or SIGTERM stops a run: no task starts any more,
+	// the tasks in flight get the grace period (-grace) and everything
+	// finished is kept. The second abandons the tasks in flight at once.
+	// The third exits at once.
+	ctx, cancel := context.WithCancel(context.Background())
+	abandon := make(chan struct{})
+	sigs := make(chan os.Signal, 3)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
 	go func() {
-		// After the first signal a run winds down (finishes the tasks in
-		// flight, keeps what is finished); restoring the default handling
-		// lets a second signal stop the process at once.
-		<-ctx.Done()
-		stop()
+		n := 0
+		for range sigs {
+			n++
+			switch n {
+			case 1:
+				cancel()
+			case 2:
+				close(abandon)
+			default:
+				fmt.Fprintln(os.Stderr, "fringe: stopped at once (third interrupt); tasks saved before are kept, those of the last second may not be")
+				os.Exit(130)
+			}
+		}
 	}()
-	err := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
-	stop()
+	err := run(withAbandon(ctx, abandon), os.Args[1:], os.Stdout, os.Stderr)
+	signal.Stop(sigs)
+	cancel()
 	if err != nil {
 		if !errors.Is(err, errSilent) {
 			fmt.Fprintln(os.Stderr, "fringe:", err)
 		}
 		os.Exit(exitCode(err))
 	}
+}
+
+type abandonKey struct{}
+
+// withAbandon attaches the channel a second interrupt closes.
+func withAbandon(ctx context.Context, ch <-chan struct{}) context.Context {
+	return context.WithValue(ctx, abandonKey{}, ch)
+}
+
+// abandonOf returns the channel of withAbandon, or nil.
+func abandonOf(ctx context.Context) <-chan struct{} {
+	ch, _ := ctx.Value(abandonKey{}).(<-chan struct{})
+	return ch
 }
 
 // errUsage marks bad command-line usage (exit status 2).

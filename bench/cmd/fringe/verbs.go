@@ -9,8 +9,10 @@ import (
 	"os"
 	"runtime"
 	"strings"
+	"time"
 
 	"fringe/bench/modelkit"
+	"fringe/bench/runner"
 	"fringe/bench/spec"
 	"fringe/datasets"
 )
@@ -64,6 +66,7 @@ type runFlags struct {
 	shard   string
 	fresh   bool
 	figures bool
+	grace   time.Duration
 }
 
 func addRunFlags(fs *flag.FlagSet) *runFlags {
@@ -74,6 +77,7 @@ func addRunFlags(fs *flag.FlagSet) *runFlags {
 	fs.StringVar(&rf.shard, "shard", "", "run only shard `i/n`, the i-th of n deterministic slices of the tasks, and write a partial run directory for 'fringe merge'")
 	fs.BoolVar(&rf.fresh, "fresh", false, "discard the unfinished run kept in the partial run directory instead of resuming it")
 	fs.BoolVar(&rf.figures, "figures", true, "write the figures (SVG, PDF, PNG); -figures=false keeps only tables and CSV files")
+	fs.DurationVar(&rf.grace, "grace", runner.DefaultGrace, "after an interrupt (SIGINT, SIGTERM), how long the tasks in flight may still finish before they are abandoned (a second interrupt abandons them at once; finished tasks are always kept)")
 	return rf
 }
 

@@ -78,7 +78,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		note("resuming from %s: %d of %d tasks were finished before; running the other %d", partialDir, pr.Loaded(), pr.Total(), len(todo))
 	}
 	if len(todo) > 0 {
-		opt := runner.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery}
+		grace := rf.grace
+		if grace == 0 {
+			grace = -1 // -grace 0: abandon at once
+		}
+		opt := runner.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery, Grace: grace, Abandon: abandonOf(ctx)}
 		var prog *runner.Progress
 		if !rf.quiet {
 			prog = runner.NewProgress(stderr, isTerminal(stderr), pr.Loaded(), pr.Total())
@@ -97,10 +101,15 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		if err != nil {
 			switch {
 			case ctx.Err() != nil:
-				if !pr.Exists() {
-					return fmt.Errorf("interrupted before any task finished; nothing was kept")
+				lost := ""
+				var ie *runner.InterruptedError
+				if errors.As(err, &ie) && ie.Abandoned > 0 {
+					lost = fmt.Sprintf(" (%d in flight abandoned)", ie.Abandoned)
 				}
-				return fmt.Errorf("interrupted: %d of %d tasks are finished and kept in %s; run the same command again to resume", pr.Finished(), pr.Total(), partialDir)
+				if !pr.Exists() {
+					return fmt.Errorf("interrupted before any task finished%s; nothing was kept", lost)
+				}
+				return fmt.Errorf("interrupted: %d of %d tasks are finished and kept in %s%s; run the same command again to resume", pr.Finished(), pr.Total(), partialDir, lost)
 			case errors.Is(err, input.ErrBad):
 				// The run cannot complete with this input: its partial
 				// directory would only be refused or mixed up later.
@@ -161,7 +170,7 @@ func watchInterrupt(ctx context.Context, stderr io.Writer, prog *runner.Progress
 			if prog != nil {
 				prog.Clear()
 			}
-			fmt.Fprintln(stderr, "fringe: stopping: finishing the tasks in flight and keeping every finished task (interrupt again to stop at once; finished tasks are kept either way)")
+			fmt.Fprintln(stderr, "fringe: stopping: the tasks in flight may finish within the grace period, then are abandoned; every finished task is kept (interrupt again to abandon them at once)")
 		case <-stop:
 		}
 	}()

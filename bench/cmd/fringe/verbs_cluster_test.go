@@ -371,3 +371,37 @@ func TestSlurmVerb(t *testing.T) {
 		}
 	}
 }
+
+// TestQuietShutdown: a run under -quiet stopped by SIGTERM and a second
+// SIGTERM while its tasks (minutes each) are in flight exits promptly with
+// one message that says what was kept and that tasks were abandoned.
+// Before, the first signal waited for the tasks in flight (minutes), and a
+// second one exited at once without a word.
+func TestQuietShutdown(t *testing.T) {
+	if testing.Short() {
+		t.Skip("signal test skipped in -short mode")
+	}
+	spec, _ := filepath.Abs("testdata/cluster/slow.toml")
+	out := filepath.Join(t.TempDir(), "run")
+	var stderr bytes.Buffer
+	c := child(t, &stderr, "run", spec, "-out", out, "-workers", "2", "-quiet", "-grace", "1h")
+	exited := make(chan error, 1)
+	go func() { exited <- c.Wait() }()
+	time.Sleep(500 * time.Millisecond) // the tasks are in flight
+	c.Process.Signal(syscall.SIGTERM)
+	time.Sleep(200 * time.Millisecond)
+	c.Process.Signal(syscall.SIGTERM)
+	select {
+	case <-exited:
+	case <-time.After(60 * time.Second): // a watchdog, not a speed claim
+		c.Process.Kill()
+		t.Fatal("the run did not stop within a minute of the second signal")
+	}
+	if code := c.ProcessState.ExitCode(); code != 1 {
+		t.Fatalf("exit %d, want 1; stderr:\n%s", code, stderr.String())
+	}
+	msg := strings.TrimSpace(stderr.String())
+	if strings.Count(msg, "\n") != 0 || !strings.HasPrefix(msg, "fringe: interrupted") || !strings.Contains(msg, "abandoned") {
+		t.Fatalf("stderr under -quiet: %q, want one line saying what was kept and abandoned", msg)
+	}
+}
