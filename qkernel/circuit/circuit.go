@@ -11,7 +11,9 @@ type Gate uint8
 // The gate set. H, X, RY, RZ and CNOT are the elementary gates of the
 // decomposed circuit (all in OpenQASM 3 stdgates.inc); UCRY is the
 // multiplexed rotation that Compile emits and Decompose expands; Measure reads
-// one qubit in the computational basis.
+// one qubit in the computational basis. SX, RX, CZ and SWAP are the extra
+// gates of device-native circuits (package qkernel/device); Compile never
+// emits them. Constants keep their values: new gates are appended.
 const (
 	// H is the Hadamard gate (1/sqrt2)[[1, 1], [1, -1]].
 	H Gate = iota
@@ -32,12 +34,25 @@ const (
 	// acts on Target. len(Angles) == 1 << len(Controls). With no controls it
 	// is a plain RY(Angles[0]).
 	UCRY
+	// SX is the square root of X, (1/2)[[1+i, 1-i], [1-i, 1+i]]
+	// = exp(i pi/4) RX(pi/2); SX SX = X exactly. A native gate of devices.
+	SX
+	// RX is exp(-i Angle X/2) = [[cos(Angle/2), -i sin(Angle/2)], [-i sin(Angle/2), cos(Angle/2)]].
+	RX
+	// CZ multiplies the basis states with both Controls[0] and Target at 1
+	// by -1; it is symmetric in its two qubits.
+	CZ
+	// SWAP exchanges the states of Controls[0] and Target. Routing inserts
+	// it; device translation expands it into three two-qubit native gates.
+	SWAP
 )
 
-var gateNames = [...]string{H: "h", X: "x", RY: "ry", RZ: "rz", CNOT: "cx", Measure: "measure", UCRY: "ucry"}
+var gateNames = [...]string{H: "h", X: "x", RY: "ry", RZ: "rz", CNOT: "cx", Measure: "measure", UCRY: "ucry",
+	SX: "sx", RX: "rx", CZ: "cz", SWAP: "swap"}
 
-// String returns the lower-case name of the gate ("h", "x", "ry", "rz",
-// "cx", "measure", "ucry").
+// String returns the lower-case name of the gate, its OpenQASM 3
+// stdgates.inc name where it has one ("h", "x", "ry", "rz", "cx",
+// "measure", "ucry", "sx", "rx", "cz", "swap").
 func (g Gate) String() string {
 	if int(g) < len(gateNames) {
 		return gateNames[g]
@@ -48,10 +63,10 @@ func (g Gate) String() string {
 // Op is one operation of a Circuit.
 //
 // Target is the qubit acted on (the target of CNOT and UCRY, the measured
-// qubit of Measure). Controls holds the single control of CNOT or the
-// multiplexing qubits of UCRY, least significant first; it is empty for the
-// other gates. Angle is the rotation angle of RY and RZ in radians; Angles
-// the angle vector of UCRY.
+// qubit of Measure). Controls holds the single control of CNOT, the other
+// qubit of CZ and SWAP, or the multiplexing qubits of UCRY, least
+// significant first; it is empty for the other gates. Angle is the rotation
+// angle of RY, RZ and RX in radians; Angles the angle vector of UCRY.
 type Op struct {
 	Gate     Gate
 	Target   int
@@ -162,18 +177,18 @@ func (c *Circuit) validateOp(op Op) error {
 		}
 	}
 	switch op.Gate {
-	case H, X, Measure:
+	case H, X, SX, Measure:
 		if len(op.Controls) != 0 {
 			return fmt.Errorf("%d controls, want 0", len(op.Controls))
 		}
-	case RY, RZ:
+	case RY, RZ, RX:
 		if len(op.Controls) != 0 {
 			return fmt.Errorf("%d controls, want 0", len(op.Controls))
 		}
 		if math.IsNaN(op.Angle) || math.IsInf(op.Angle, 0) {
 			return fmt.Errorf("angle %v not finite", op.Angle)
 		}
-	case CNOT:
+	case CNOT, CZ, SWAP:
 		if len(op.Controls) != 1 {
 			return fmt.Errorf("%d controls, want 1", len(op.Controls))
 		}
