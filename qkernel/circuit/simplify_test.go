@@ -47,11 +47,11 @@ func TestSimplifyCases(t *testing.T) {
 		want []Op
 	}{
 		{"zero", []Op{ry(0, 0)}, nil},
-		{"2pi", []Op{ry(0, 2*math.Pi + 1e-13), {Gate: RZ, Target: 1, Angle: -4 * math.Pi}}, nil},
+		{"2pi", []Op{ry(0, 2*math.Pi+1e-13), {Gate: RZ, Target: 1, Angle: -4 * math.Pi}}, nil},
 		{"not dead", []Op{ry(0, 1e-11)}, []Op{ry(0, 1e-11)}},
 		{"merge", []Op{ry(0, 0.25), ry(0, 0.5)}, []Op{ry(0, 0.75)}},
 		{"merge to zero", []Op{ry(0, 0.3), ry(0, -0.3)}, nil},
-		{"merge wraps 4pi", []Op{ry(0, 3), ry(0, 4)}, []Op{ry(0, 7 - 4*math.Pi)}},
+		{"merge wraps 4pi", []Op{ry(0, 3), ry(0, 4)}, []Op{ry(0, 7-4*math.Pi)}},
 		{"other qubit between", []Op{ry(0, 0.25), {Gate: H, Target: 1}, ry(0, 0.5)}, []Op{ry(0, 0.75), {Gate: H, Target: 1}}},
 		{"blocked", []Op{ry(1, 0.25), cx(0, 1), ry(1, 0.5)}, []Op{ry(1, 0.25), cx(0, 1), ry(1, 0.5)}},
 		{"axes differ", []Op{ry(0, 0.25), {Gate: RZ, Target: 0, Angle: 0.5}}, []Op{ry(0, 0.25), {Gate: RZ, Target: 0, Angle: 0.5}}},
