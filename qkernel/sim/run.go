@@ -219,6 +219,17 @@ func runDensity(ctx context.Context, d *Density, c *circuit.Circuit, m NoiseMode
 				d.ApplySuperop1(ctl, damp)
 				d.ApplySuperop1(op.Target, damp)
 			}
+		case circuit.CZ, circuit.SWAP:
+			// Device gates: the noise of a CNOT.
+			ctl := op.Controls[0]
+			d.ApplyOp(op)
+			if p := m.Depolarizing[1]; p != 0 {
+				d.Depolarize2(ctl, op.Target, p)
+			}
+			if dampOn {
+				d.ApplySuperop1(ctl, damp)
+				d.ApplySuperop1(op.Target, damp)
+			}
 		default:
 			u, err := GateMatrix(op.Gate, op.Angle)
 			if err != nil {
@@ -295,7 +306,7 @@ func runTrajectories(ctx context.Context, c *circuit.Circuit, opt Options) (mean
 			}
 			switch op.Gate {
 			case circuit.Measure:
-			case circuit.CNOT:
+			case circuit.CNOT, circuit.CZ, circuit.SWAP:
 				s.noisy2(op.Controls[0], op.Target, m, opt.Rng)
 			default:
 				s.noisy1(op.Target, m, opt.Rng)
