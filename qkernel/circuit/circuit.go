@@ -142,7 +142,8 @@ func (c *Circuit) Validate() error {
 			measured[op.Target] = true
 			continue
 		}
-		for _, q := range op.qubits() {
+		var buf [2]int
+		for _, q := range op.appendQubits(buf[:0]) {
 			if measured[q] {
 				return fmt.Errorf("circuit: op %d (%s): qubit %d used after its measurement", i, op.Gate, q)
 			}
@@ -217,11 +218,21 @@ func (op Op) qubits() []int {
 	return append(qs, op.Controls...)
 }
 
+// appendQubits appends the qubits of op, target first, to dst (pass a
+// slice of a local array to avoid an allocation in loops).
+func (op Op) appendQubits(dst []int) []int {
+	dst = append(dst, op.Target)
+	return append(dst, op.Controls...)
+}
+
 // Qubits returns the qubits the operation acts on: the target followed by
 // the controls.
 func (op Op) Qubits() []int { return op.qubits() }
 
-// Clone returns a deep copy of the circuit.
+// Clone returns a deep copy of the circuit. The copies of the control and
+// angle lists share two backing arrays (one allocation each, however many
+// operations), each list capped at its length so that appending to one
+// never writes into another.
 func (c *Circuit) Clone() *Circuit {
 	d := &Circuit{NQubits: c.NQubits, Regs: Layout{
 		Ancilla: c.Regs.Ancilla,
@@ -229,9 +240,30 @@ func (c *Circuit) Clone() *Circuit {
 		Data:    append([]int(nil), c.Regs.Data...),
 		Class:   append([]int(nil), c.Regs.Class...),
 	}}
+	nc, na := 0, 0
+	for _, op := range c.Ops {
+		nc += len(op.Controls)
+		na += len(op.Angles)
+	}
+	ctl := make([]int, 0, nc)
+	ang := make([]float64, 0, na)
 	d.Ops = make([]Op, len(c.Ops))
 	for i, op := range c.Ops {
-		d.Ops[i] = op.clone()
+		if len(op.Controls) > 0 {
+			k := len(ctl)
+			ctl = append(ctl, op.Controls...)
+			op.Controls = ctl[k:len(ctl):len(ctl)]
+		} else {
+			op.Controls = nil
+		}
+		if len(op.Angles) > 0 {
+			k := len(ang)
+			ang = append(ang, op.Angles...)
+			op.Angles = ang[k:len(ang):len(ang)]
+		} else {
+			op.Angles = nil
+		}
+		d.Ops[i] = op
 	}
 	return d
 }

@@ -50,11 +50,13 @@ func (c *Circuit) Count(regs Layout) Resources {
 		default:
 			r.SingleQubit++
 		}
+		var buf [2]int
+		qs := op.appendQubits(buf[:0])
 		top := 0
-		for _, q := range op.qubits() {
+		for _, q := range qs {
 			top = max(top, level[q])
 		}
-		for _, q := range op.qubits() {
+		for _, q := range qs {
 			level[q] = top + 1
 		}
 		r.Depth = max(r.Depth, top+1)

@@ -61,11 +61,19 @@ func wrap4pi(a float64) float64 {
 // by this package); the result is valid whenever c is.
 func Simplify(c *Circuit) *Circuit {
 	d := c.Clone()
+	simplifyOwned(d)
+	return d
+}
+
+// simplifyOwned simplifies d in place; d's operations must not share
+// their control or angle lists with another circuit's (a clone or a fresh
+// expansion).
+func simplifyOwned(d *Circuit) {
 	for {
 		ops, changed := simplifyPass(d.NQubits, d.Ops)
 		d.Ops = ops
 		if !changed {
-			return d
+			return
 		}
 	}
 }
@@ -181,9 +189,10 @@ func simplifyPass(n int, ops []Op) ([]Op, bool) {
 			}
 		}
 		idx := len(out)
-		out = append(out, op.clone())
+		out = append(out, op) // Simplify works on its own clone: no copy needed
 		alive = append(alive, true)
-		for _, q := range op.qubits() {
+		var buf [2]int
+		for _, q := range op.appendQubits(buf[:0]) {
 			top[q] = append(top[q], idx)
 		}
 	}

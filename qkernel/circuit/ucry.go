@@ -56,10 +56,12 @@ func decomposeUCRY(op Op) []Op {
 	}
 	theta := grayAngles(op.Angles)
 	out := make([]Op, 0, 2*len(theta))
+	ctl := make([]int, len(theta)) // one backing array for the CNOT controls
 	for i, t := range theta {
+		ctl[i] = op.Controls[grayControl(i, k)]
 		out = append(out,
 			Op{Gate: RY, Target: op.Target, Angle: t},
-			Op{Gate: CNOT, Target: op.Target, Controls: []int{op.Controls[grayControl(i, k)]}})
+			Op{Gate: CNOT, Target: op.Target, Controls: ctl[i : i+1 : i+1]})
 	}
 	return out
 }
@@ -73,15 +75,27 @@ func decomposeUCRY(op Op) []Op {
 // of its rotations can be dead (angle 0) and CNOTs can meet in cancelling
 // pairs. Decompose is Expand followed by Simplify.
 func (c *Circuit) Expand() *Circuit {
-	d := c.Clone()
-	d.Ops = d.Ops[:0:0]
+	size := 0
 	for _, op := range c.Ops {
+		switch {
+		case op.Gate != UCRY:
+			size++
+		case len(op.Controls) == 0:
+			size++
+		default:
+			size += 2 << len(op.Controls)
+		}
+	}
+	d := c.Clone() // registers and the copies of the non-UCRY operations
+	ops := make([]Op, 0, size)
+	for _, op := range d.Ops {
 		if op.Gate == UCRY {
-			d.Ops = append(d.Ops, decomposeUCRY(op)...)
+			ops = append(ops, decomposeUCRY(op)...)
 			continue
 		}
-		d.Ops = append(d.Ops, op.clone())
+		ops = append(ops, op)
 	}
+	d.Ops = ops
 	return d
 }
 
@@ -92,5 +106,7 @@ func (c *Circuit) Expand() *Circuit {
 // to a global phase and the dropped angles (at most AngleTol each), so
 // every measured probability is unchanged to about 1e-12.
 func (c *Circuit) Decompose() *Circuit {
-	return Simplify(c.Expand())
+	d := c.Expand()
+	simplifyOwned(d)
+	return d
 }

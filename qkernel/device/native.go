@@ -153,7 +153,7 @@ func synth(dst []gate, fam Family, u mat2, q int16) []gate {
 // circuit.Simplify on why no measured probability changes).
 func appendRot(dst []gate, g circuit.Gate, q int16, a float64) []gate {
 	r := a - 2*math.Pi*math.Round(a/(2*math.Pi)) // in [-pi, pi]
-	if math.Abs(r) <= circuit.AngleTol {             // circuit.Dead(a)
+	if math.Abs(r) <= circuit.AngleTol {         // circuit.Dead(a)
 		return dst
 	}
 	if r <= -math.Pi {
