@@ -4,10 +4,15 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"regexp"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 )
+
+// decodeErr matches the decoder's located type errors.
+var decodeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
 
 // MaxQubits is the largest device Parse accepts.
 const MaxQubits = 1024
@@ -71,6 +76,11 @@ func Parse(data []byte, file string) (*Device, error) {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
 			return nil, &Error{File: file, Line: pe.Position.Line, Key: pe.LastKey, Err: fmt.Errorf("%s: %w", pe.Message, ErrInvalid)}
+		}
+		// Type mismatches come as "toml: line N (last key "k"): message".
+		if m := decodeErr.FindStringSubmatch(err.Error()); m != nil {
+			line, _ := strconv.Atoi(m[1])
+			return nil, &Error{File: file, Line: line, Key: m[2], Err: fmt.Errorf("%s: %w", m[3], ErrInvalid)}
 		}
 		return nil, &Error{File: file, Err: fmt.Errorf("%v: %w", strings.TrimPrefix(err.Error(), "toml: "), ErrInvalid)}
 	}
