@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 	"fringe/qkernel/sim"
 )
 
@@ -104,6 +105,13 @@ type Classifier struct {
 	// Trajectories is the number of Monte Carlo trajectories of the
 	// trajectory method; 0 means sim.DefaultTrajectories.
 	Trajectories int
+	// Device, in ModeNoisy, runs every row's circuit on a described
+	// device: compiled to it (device.Compile: placement, SABRE routing,
+	// native gates) and simulated under its calibrated noise
+	// (device.Program.Simulate) with Method and Trajectories. It replaces
+	// Noise and Channels (Validate rejects both together); nil (the
+	// default) changes nothing.
+	Device *device.Device
 	// Seed is the task seed. Every test row gets its own generator derived
 	// from Seed and the row's position in the matrix passed to Predict; it
 	// draws, in this order, the training subset, the trajectory jumps and
@@ -255,6 +263,9 @@ func (c *Classifier) makePlan() (*plan, error) {
 	nm, nd, nq := circuit.RegisterSizes(p.m, c.d, c.nClass)
 	p.qClass = nq
 	p.qubits = 1 + nm + nd + nq
+	if err := c.devicePlan(p); err != nil {
+		return nil, err
+	}
 	switch {
 	case c.Mode == ModeCircuit:
 		p.gate, p.method = true, sim.StateVector

@@ -34,6 +34,7 @@ func (c *Classifier) exactTwin() (*Classifier, *plan, error) {
 	e.Mode, e.Shots = ModeExact, 0
 	e.Noise, e.Channels = sim.NoiseModel{}, Channels{}
 	e.Method, e.Trajectories = sim.Auto, 0
+	e.Device = nil
 	p, err := e.makePlan()
 	if err != nil {
 		return nil, nil, fmt.Errorf("qkernel: %w", err)

@@ -102,7 +102,7 @@ func hasGateNoise(m sim.NoiseModel) bool {
 // gateLevel reports whether ModeNoisy simulates the compiled circuit gate by
 // gate: with gate noise, or when a simulator is named explicitly.
 func (c *Classifier) gateLevel() bool {
-	return c.Mode == ModeNoisy && (hasGateNoise(c.Noise) || c.Method != sim.Auto)
+	return c.Mode == ModeNoisy && (hasGateNoise(c.Noise) || c.Method != sim.Auto || c.Device != nil)
 }
 
 // Validate checks the options alone (no data) and returns an *OptionError
@@ -129,6 +129,9 @@ func (c *Classifier) gateLevel() bool {
 func (c *Classifier) Validate() error {
 	if c.Mode < 0 || int(c.Mode) >= len(modeNames) {
 		return &OptionError{Key: "mode", Reason: c.Mode.String(), err: ErrMode}
+	}
+	if err := c.validateDevice(); err != nil {
+		return err
 	}
 	switch {
 	case c.Shots < 0:

@@ -1,7 +1,6 @@
 package qkernel
 
 import (
-	"context"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -111,9 +110,7 @@ func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome
 		if c.Mode == ModeCircuit {
 			noise = sim.NoiseModel{}
 		}
-		res, err := sim.Simulate(context.Background(), circ, sim.Options{
-			Noise: noise, Method: p.method, Trajectories: c.Trajectories, Rng: rng,
-		})
+		res, err := c.simulate(circ, noise, p, rng)
 		if err != nil {
 			return out, err
 		}

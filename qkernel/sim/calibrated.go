@@ -236,15 +236,12 @@ func (nc *NoisyCircuit) runDensity(ctx context.Context) ([]float64, error) {
 				pd.then(op.Target, DepolarizingSuperop(p))
 			}
 		} else {
-			var sa, sb *Superop
-			if pd.set[qs[0]] {
-				sa = &pd.s[qs[0]]
+			pd.flush(d, qs[0])
+			pd.flush(d, qs[1])
+			d.ApplyOp(op)
+			if p := t.Depolarizing; p != 0 {
+				d.Depolarize2(qs[0], qs[1], p)
 			}
-			if pd.set[qs[1]] {
-				sb = &pd.s[qs[1]]
-			}
-			d.fused2(qs[0], qs[1], sa, sb, op.Gate, t.Depolarizing)
-			pd.set[qs[0]], pd.set[qs[1]] = false, false
 		}
 		for j, q := range qs {
 			if ch := t.After[j]; ch != nil {
@@ -442,102 +439,4 @@ func (s *State) jump(q int, ks []Matrix, rng *rand.Rand) {
 		}
 	}
 	s.Apply1(q, k)
-}
-
-// fused2 applies to qubits a (the target) and b (the other qubit: the
-// control of CNOT), in one pass over rho: the one-qubit superoperators sa
-// on a and sb on b (nil: none), then the two-qubit gate g (CNOT with
-// control b, CZ or SWAP), then the two-qubit depolarizing channel of
-// strength p. It visits every 4x4 block of entries whose rows and columns
-// differ only in bits a and b (local index bit_a + 2 bit_b); the gate
-// permutes (CNOT: 2 <-> 3, SWAP: 1 <-> 2) or signs (CZ: -1 on 3) rows and
-// columns of the block, and depolarizing is
-// X -> (1-p) X + p/4 Tr(X) I as in Density.Depolarize2.
-func (d *Density) fused2(a, b int, sa, sb *Superop, g circuit.Gate, p float64) {
-	d.check(a, b)
-	D := 1 << d.N
-	ma, mb := 1<<a, 1<<b
-	mask := ma | mb
-	perm := [4]int{0, 1, 2, 3}
-	sign := [4]float64{1, 1, 1, 1}
-	switch g {
-	case circuit.CNOT:
-		perm = [4]int{0, 1, 3, 2}
-	case circuit.SWAP:
-		perm = [4]int{0, 2, 1, 3}
-	case circuit.CZ:
-		sign[3] = -1
-	default:
-		panic(fmt.Sprintf("sim: fused2 of %s", g)) // callers pass two-qubit gates
-	}
-	off := [4]int{0, ma, mb, mask}
-	var rows [4][]complex128
-	var x, y [4][4]complex128
-	keep, mix := 1-p, p/4
-	for r := 0; r < D; r++ {
-		if r&mask != 0 {
-			continue
-		}
-		for i := range 4 {
-			rows[i] = d.Rho[(r|off[i])*D : (r|off[i])*D+D]
-		}
-		for c := 0; c < D; c++ {
-			if c&mask != 0 {
-				continue
-			}
-			for i := range 4 {
-				row := rows[i]
-				for j := range 4 {
-					x[i][j] = row[c|off[j]]
-				}
-			}
-			if sa != nil { // bit 0 of the local index
-				for _, hi := range [4][2]int{{0, 0}, {0, 2}, {2, 0}, {2, 2}} {
-					i0, j0 := hi[0], hi[1]
-					v := [4]complex128{x[i0][j0], x[i0][j0+1], x[i0+1][j0], x[i0+1][j0+1]}
-					for k := range 4 {
-						s := &sa[k]
-						w := s[0]*v[0] + s[1]*v[1] + s[2]*v[2] + s[3]*v[3]
-						x[i0+k>>1][j0+k&1] = w
-					}
-				}
-			}
-			if sb != nil { // bit 1 of the local index
-				for _, lo := range [4][2]int{{0, 0}, {0, 1}, {1, 0}, {1, 1}} {
-					i0, j0 := lo[0], lo[1]
-					v := [4]complex128{x[i0][j0], x[i0][j0+2], x[i0+2][j0], x[i0+2][j0+2]}
-					for k := range 4 {
-						s := &sb[k]
-						w := s[0]*v[0] + s[1]*v[1] + s[2]*v[2] + s[3]*v[3]
-						x[i0+2*(k>>1)][j0+2*(k&1)] = w
-					}
-				}
-			}
-			for i := range 4 {
-				for j := range 4 {
-					v := x[perm[i]][perm[j]]
-					if sign[i]*sign[j] < 0 {
-						v = -v
-					}
-					y[i][j] = v
-				}
-			}
-			if p != 0 {
-				tr := y[0][0] + y[1][1] + y[2][2] + y[3][3]
-				add := complex(mix*real(tr), mix*imag(tr))
-				for i := range 4 {
-					for j := range 4 {
-						y[i][j] = complex(keep*real(y[i][j]), keep*imag(y[i][j]))
-					}
-					y[i][i] += add
-				}
-			}
-			for i := range 4 {
-				row := rows[i]
-				for j := range 4 {
-					row[c|off[j]] = y[i][j]
-				}
-			}
-		}
-	}
 }
