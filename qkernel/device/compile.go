@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"fringe/qkernel/circuit"
 )
@@ -128,12 +129,9 @@ func (p *Program) Compact() *circuit.Circuit {
 //     the most interacting ones first, each where its two-qubit gates to
 //     the placed ones are shortest (router.place).
 //  3. Refine the initial mapping by reverse traversal (Li, Ding & Xie,
-//     ASPLOS 2019, section 4.3): route the circuit's first refineGates
-//     (16384) two-qubit gates forward, then backward from the resulting
-//     mapping, and start from the mapping the backward pass ends with;
-//     Options.Refine rounds. (The initial mapping serves the start of the
-//     circuit; on a long circuit routing soon decides the mapping, so
-//     the prefix bounds the cost without changing what refinement is for.)
+//     ASPLOS 2019, section 4.3): route the circuit's two-qubit gates
+//     forward, then backward from the resulting mapping, and start from
+//     the mapping the backward pass ends with; Options.Refine rounds.
 //  4. Route with SABRE inside the region (router.route), inserting SWAPs.
 //  5. Translate to the native family, CNOT by cx (reversed with
 //     Hadamards on a directed edge) or cz between RY(-pi/2) and RY(pi/2),
@@ -174,8 +172,7 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 	}
 	l2p := r.place(gates, n)
 	if rounds := opt.refine(); rounds > 0 {
-		fwd := skeleton(gates, false)
-		fwd = fwd[:min(len(fwd), refineGates)]
+		fwd := skeleton(gates)
 		bwd := slices.Clone(fwd)
 		slices.Reverse(bwd)
 		for range rounds {
@@ -277,10 +274,6 @@ func remerge(gs []gate, fam Family, n int) []gate {
 	}
 	return out
 }
-
-// refineGates bounds the two-qubit gates the reverse-traversal refinement
-// routes (see Compile).
-const refineGates = 1 << 14
 
 // dropped marks a gate removed by cancelPairs.
 const dropped circuit.Gate = 255
@@ -541,4 +534,35 @@ func count(gs []gate, n int, gateName string, dur func(gate) float64) Resources 
 // String formats the resources on one line.
 func (r Resources) String() string {
 	return fmt.Sprintf("%d qubits, %d %s, %d swaps, %d single-qubit, depth %d, %.0f ns", r.Qubits, r.TwoQubit, r.Gate, r.Swaps, r.SingleQubit, r.Depth, r.DurationNS)
+}
+
+// QASM returns the native routed program as OpenQASM text (version 3 or 2;
+// circuit.QASM with Physical: one register q of the device's qubits, q[i]
+// being device qubit i). The header comment names the device, the
+// resources before and after compilation, and where every register qubit
+// starts and ends; the measurements write ancilla_out and class_out from
+// the registers' final places.
+func (p *Program) QASM(version int) (string, error) {
+	l := p.Logical.Regs
+	var start, end []string
+	name := func(reg string, qs []int) {
+		for i, q := range qs {
+			label := fmt.Sprintf("%s[%d]", reg, i)
+			start = append(start, fmt.Sprintf("%s=q[%d]", label, p.Initial[q]))
+			end = append(end, fmt.Sprintf("%s=q[%d]", label, p.Final[q]))
+		}
+	}
+	name("ancilla", []int{l.Ancilla})
+	name("index", l.Index)
+	name("data", l.Data)
+	name("class", l.Class)
+	d := p.Device
+	comment := []string{
+		fmt.Sprintf("interference classifier compiled for device %s (%s; native %s)", d.Name, d.Note, d.Family),
+		"logical: " + p.Before.String(),
+		"routed:  " + p.After.String(),
+		"start: " + strings.Join(start, " "),
+		"end:   " + strings.Join(end, " "),
+	}
+	return circuit.QASM(p.Circuit(), circuit.QASMOptions{Version: version, Physical: true, Comment: comment})
 }

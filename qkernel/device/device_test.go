@@ -210,3 +210,32 @@ d = 4
 		}
 	}
 }
+
+// TestDocExample parses the example description of the package
+// documentation (doc.go), so that the manual stays a valid file.
+func TestDocExample(t *testing.T) {
+	src, err := os.ReadFile("doc.go")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	in := false
+	for _, line := range strings.Split(string(src), "\n") {
+		switch {
+		case strings.HasPrefix(line, "//\tname = "):
+			in = true
+		case in && !strings.HasPrefix(line, "//\t") && line != "//":
+			in = false
+		}
+		if in {
+			b.WriteString(strings.TrimPrefix(strings.TrimPrefix(line, "//"), "\t") + "\n")
+		}
+	}
+	d, err := Parse([]byte(b.String()), "doc.go")
+	if err != nil {
+		t.Fatalf("%v\n%s", err, b.String())
+	}
+	if d.N() != 5 || len(d.Edges) != 4 || d.Edges[1].NS != 420 || d.Qubits[4].T2 != 95 { // exact: copied from the text
+		t.Errorf("example parsed as %+v", d)
+	}
+}

@@ -294,6 +294,35 @@ func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, i
 	ext := make([]int32, 0, E)
 	queue := make([]int32, 0, 64)
 	swaps, stuck, sinceReset := 0, 0, 0
+	first := true
+	extended := func(ext []int32) []int32 {
+		stamp++
+		queue = queue[:0]
+		for _, gi := range front {
+			seen[gi] = stamp
+		}
+		for _, gi := range front {
+			for _, s := range succ[gi] {
+				if s >= 0 && seen[s] != stamp {
+					seen[s] = stamp
+					queue = append(queue, s)
+				}
+			}
+		}
+		for h := 0; h < len(queue) && len(ext) < E; h++ {
+			gi := queue[h]
+			if gates[gi].two() {
+				ext = append(ext, gi)
+			}
+			for _, s := range succ[gi] {
+				if s >= 0 && seen[s] != stamp {
+					seen[s] = stamp
+					queue = append(queue, s)
+				}
+			}
+		}
+		return ext
+	}
 
 	doSwap := func(p, q int16) {
 		a, b := p2l[p], p2l[q]
@@ -363,32 +392,11 @@ func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, i
 			stuck = 0
 			continue
 		}
-		// Extended set: two-qubit gates reached breadth first from F.
-		stamp++
-		ext = ext[:0]
-		queue = queue[:0]
-		for _, gi := range front {
-			seen[gi] = stamp
-		}
-		for _, gi := range front {
-			for _, s := range succ[gi] {
-				if s >= 0 && seen[s] != stamp {
-					seen[s] = stamp
-					queue = append(queue, s)
-				}
-			}
-		}
-		for h := 0; h < len(queue) && len(ext) < E; h++ {
-			gi := queue[h]
-			if gates[gi].two() {
-				ext = append(ext, gi)
-			}
-			for _, s := range succ[gi] {
-				if s >= 0 && seen[s] != stamp {
-					seen[s] = stamp
-					queue = append(queue, s)
-				}
-			}
+		// Extended set: two-qubit gates reached breadth first from F; it
+		// changes only when a gate runs.
+		if ran || first {
+			first = false
+			ext = extended(ext[:0])
 		}
 		// Candidate swaps.
 		candStamp++
@@ -450,15 +458,12 @@ func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, i
 }
 
 // skeleton returns the two-qubit gates of gates.
-func skeleton(gates []gate, rev bool) []gate {
+func skeleton(gates []gate) []gate {
 	var s []gate
 	for _, g := range gates {
 		if g.two() {
 			s = append(s, g)
 		}
-	}
-	if rev {
-		slices.Reverse(s)
 	}
 	return s
 }
