@@ -74,8 +74,8 @@ func (ch Channels) IsZero() bool { return ch == Channels{} }
 // by Fit). Key is the option's name as written in experiment specs: "mode",
 // "shots", "train_subset", "depolarizing", "amplitude_damping",
 // "phase_damping", "readout", "global_depolarizing", "ancilla_dephasing",
-// "method" or "trajectories". It unwraps to ErrOption, or to ErrMode for an
-// unknown mode.
+// "method", "trajectories" or "device". It unwraps to ErrOption, or to
+// ErrMode for an unknown mode.
 type OptionError struct {
 	Key    string
 	Reason string
@@ -120,6 +120,8 @@ func (c *Classifier) gateLevel() bool {
 //   - Trajectories < 0, or an unknown Method;
 //   - Method StateVector with gate noise (a state vector is noiseless);
 //   - Trajectories > 0 with Method DensityMatrix or StateVector;
+//   - Device outside ModeNoisy, or with Noise, Channels or Method
+//     StateVector (key "device", or "method");
 //   - an option set in a mode that ignores it: Shots > 0 in ModeExact or
 //     ModeCircuit; Noise, Channels, Method or Trajectories outside
 //     ModeNoisy.
