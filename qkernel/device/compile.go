@@ -172,7 +172,7 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 	}
 	l2p := r.place(gates, n)
 	if rounds := opt.refine(); rounds > 0 {
-		fwd := skeleton(gates)
+		fwd := gates
 		bwd := slices.Clone(fwd)
 		slices.Reverse(bwd)
 		for range rounds {

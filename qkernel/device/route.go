@@ -226,9 +226,40 @@ func (r *router) place(gates []gate, n int) []int16 {
 // brought together along a shortest path (a release valve against
 // livelock). It returns the routed gates on local qubits (when emit), the
 // final mapping and the number of SWAPs.
-func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, int) {
+func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int) {
 	n := len(l2p)
 	l2p = slices.Clone(l2p)
+	// Only two-qubit gates enter the dependency graph. The one-qubit gates
+	// of each logical qubit wait in order and are written, on the qubit's
+	// place at that time, just before the qubit's next two-qubit gate (or
+	// at the end): on each qubit the order is kept, and a one-qubit gate
+	// commutes with everything on other qubits.
+	gates := make([]gate, 0, len(all))
+	var ones [][]gate   // per logical qubit, its one-qubit gates in order
+	var upto [][2]int32 // per two-qubit gate: one-qubit gates due on (t, c) before it
+	if emit {
+		ones = make([][]gate, n)
+	}
+	for _, g := range all {
+		switch {
+		case g.two():
+			gates = append(gates, g)
+			if emit {
+				upto = append(upto, [2]int32{int32(len(ones[g.t])), int32(len(ones[g.c]))})
+			}
+		case emit:
+			ones[g.t] = append(ones[g.t], g)
+		}
+	}
+	done := make([]int32, n) // one-qubit gates written per logical qubit
+	var out []gate
+	writeOnes := func(q int16, until int32) {
+		for _, g := range ones[q][done[q]:until] {
+			g.t = l2p[q]
+			out = append(out, g)
+		}
+		done[q] = until
+	}
 	p2l := make([]int16, r.k)
 	for i := range p2l {
 		p2l[i] = -1
@@ -265,9 +296,8 @@ func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, i
 			last[g.c] = int32(i)
 		}
 	}
-	var out []gate
 	if emit {
-		out = make([]gate, 0, N+N/2)
+		out = make([]gate, 0, len(all)+len(all)/2)
 	}
 	front := make([]int32, 0, 16)
 	next := make([]int32, 0, 16)
@@ -311,9 +341,7 @@ func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, i
 		}
 		for h := 0; h < len(queue) && len(ext) < E; h++ {
 			gi := queue[h]
-			if gates[gi].two() {
-				ext = append(ext, gi)
-			}
+			ext = append(ext, gi)
 			for _, s := range succ[gi] {
 				if s >= 0 && seen[s] != stamp {
 					seen[s] = stamp
@@ -346,16 +374,15 @@ func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, i
 			next = next[:0]
 			for _, gi := range front {
 				g := gates[gi]
-				if g.two() && r.d(l2p[g.t], l2p[g.c]) != 1 {
+				if r.d(l2p[g.t], l2p[g.c]) != 1 {
 					next = append(next, gi)
 					continue
 				}
 				if emit {
+					writeOnes(g.t, upto[gi][0])
+					writeOnes(g.c, upto[gi][1])
 					pg := g
-					pg.t = l2p[g.t]
-					if g.two() {
-						pg.c = l2p[g.c]
-					}
+					pg.t, pg.c = l2p[g.t], l2p[g.c]
 					out = append(out, pg)
 				}
 				progress, ran = true, true
@@ -454,16 +481,10 @@ func (r *router) route(gates []gate, l2p []int16, emit bool) ([]gate, []int16, i
 			sinceReset = 0
 		}
 	}
-	return out, l2p, swaps
-}
-
-// skeleton returns the two-qubit gates of gates.
-func skeleton(gates []gate) []gate {
-	var s []gate
-	for _, g := range gates {
-		if g.two() {
-			s = append(s, g)
+	if emit {
+		for q := range n {
+			writeOnes(int16(q), int32(len(ones[q])))
 		}
 	}
-	return s
+	return out, l2p, swaps
 }

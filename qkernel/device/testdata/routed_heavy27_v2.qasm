@@ -3,7 +3,7 @@ include "qelib1.inc";
 
 // interference classifier compiled for device heavy-27 (invented: 27 qubits of degree at most 3, rz-sx-x-cx, directed cx; native rz-sx-x-cx)
 // logical: 5 qubits, 14 cx, 0 swaps, 15 single-qubit, depth 21, 5064 ns
-// routed:  5 qubits, 19 cx, 3 swaps, 105 single-qubit, depth 80, 7930 ns
+// routed:  5 qubits, 19 cx, 3 swaps, 101 single-qubit, depth 80, 7966 ns
 // start: ancilla[0]=q[5] index[0]=q[4] index[1]=q[8] data[0]=q[3] class[0]=q[2]
 // end:   ancilla[0]=q[5] index[0]=q[2] index[1]=q[4] data[0]=q[8] class[0]=q[3]
 gate sx a { u3(pi/2,-pi/2,pi/2) a; }
@@ -25,10 +25,6 @@ rz(-2.5261129449194057) q[4];
 sx q[4];
 rz(3.1415926535897931) q[4];
 cx q[8],q[4];
-sx q[3];
-rz(-0.87837693790141902) q[3];
-sx q[3];
-rz(3.1415926535897931) q[3];
 cx q[3],q[4];
 rz(1.5707963267948966) q[4];
 sx q[4];
@@ -44,9 +40,9 @@ rz(1.5707963267948966) q[3];
 sx q[3];
 rz(1.5707963267948966) q[3];
 cx q[3],q[4];
-rz(1.5707963267948966) q[4];
 sx q[4];
-rz(1.5707963267948966) q[4];
+rz(-2.4491732646963156) q[4];
+sx q[4];
 cx q[4],q[5];
 rz(3.1415926535897931) q[4];
 sx q[4];
