@@ -207,12 +207,12 @@ func (r *router) place(gates []gate, n int) []int16 {
 
 // route maps the logical gates onto the region with SWAP insertion by the
 // SABRE heuristic of Li, Ding & Xie, "Tackling the qubit mapping problem
-// for NISQ-era quantum devices", ASPLOS 2019 (arXiv:1809.02573). The gates
-// form a dependency graph (each gate follows the previous gate on each of
-// its qubits); the front layer F holds the gates whose predecessors have
-// run. Every front gate that can run (a one-qubit gate, or a two-qubit gate
-// on coupled qubits) runs; when none can, one SWAP on an edge touching a
-// front gate's qubit is inserted, the one minimising
+// for NISQ-era quantum devices", ASPLOS 2019 (arXiv:1809.02573). The
+// two-qubit gates form a dependency graph (each follows the previous
+// two-qubit gate on each of its qubits; one-qubit gates follow their qubit,
+// see below); the front layer F holds the gates whose predecessors have
+// run. Every front gate on coupled qubits runs; when none can, one SWAP on
+// an edge touching a front gate's qubit is inserted, the one minimising
 //
 //	H = max(decay(q1), decay(q2)) * ( sum_{g in F} D(g)/|F| + W sum_{g in E} D(g)/|E| )
 //
