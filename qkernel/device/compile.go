@@ -128,8 +128,8 @@ func (p *Program) Compact() *circuit.Circuit {
 //     circuit has (Device.region) and map the logical qubits onto it,
 //     the most interacting ones first, each where its two-qubit gates to
 //     the placed ones are shortest (router.place).
-//  3. Refine the initial mapping by reverse traversal (Li, Ding & Xie,
-//     ASPLOS 2019, section 4.3): route the circuit's two-qubit gates
+//  3. Refine the initial mapping by the reverse-traversal technique of
+//     Li, Ding & Xie (ASPLOS 2019): route the circuit's two-qubit gates
 //     forward, then backward from the resulting mapping, and start from
 //     the mapping the backward pass ends with; Options.Refine rounds.
 //  4. Route with SABRE inside the region (router.route), inserting SWAPs.

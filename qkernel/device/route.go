@@ -207,7 +207,7 @@ func (r *router) place(gates []gate, n int) []int16 {
 
 // route maps the logical gates onto the region with SWAP insertion by the
 // SABRE heuristic of Li, Ding & Xie, "Tackling the qubit mapping problem
-// for NISQ-era quantum devices", ASPLOS 2019 (arXiv:1809.02573). The
+// for NISQ-era quantum devices", ASPLOS 2019 (arXiv:1809.02573, identifier recalled from memory). The
 // two-qubit gates form a dependency graph (each follows the previous
 // two-qubit gate on each of its qubits; one-qubit gates follow their qubit,
 // see below); the front layer F holds the gates whose predecessors have
