@@ -3,12 +3,16 @@ package datasets
 import (
 	"bytes"
 	"crypto/sha256"
+	"encoding/csv"
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -332,6 +336,65 @@ func BenchmarkLoad(b *testing.B) {
 					b.Fatal(err)
 				}
 			}
+		})
+	}
+}
+
+// benchCSV returns a seeded numeric CSV of n rows, d features and a label
+// of three classes, in the shape of the load-memory measurement.
+func benchCSV(n, d int) []byte {
+	rng := rand.New(rand.NewPCG(1, 2))
+	var b bytes.Buffer
+	for j := range d {
+		fmt.Fprintf(&b, "x%d,", j+1)
+	}
+	b.WriteString("label\n")
+	line := make([]byte, 0, 32*d)
+	for range n {
+		line = line[:0]
+		for range d {
+			line = strconv.AppendFloat(line, rng.NormFloat64()*10, 'f', 6, 64)
+			line = append(line, ',')
+		}
+		line = append(line, "class"...)
+		line = strconv.AppendInt(line, int64(rng.IntN(3)), 10)
+		b.Write(append(line, '\n'))
+	}
+	return b.Bytes()
+}
+
+// BenchmarkLoadCSV reads a numeric CSV of 20 features. The sub-benchmark
+// reader=encoding-csv only splits the same bytes into records with
+// encoding/csv (no number parsing, nothing kept): the reference the
+// loader's throughput is to be read against (ratio of the MB/s columns).
+func BenchmarkLoadCSV(b *testing.B) {
+	for _, n := range []int{2000, 50000} {
+		raw := benchCSV(n, 20)
+		b.Run(fmt.Sprintf("rows=%d/reader=datasets", n), func(b *testing.B) {
+			b.ReportAllocs()
+			b.SetBytes(int64(len(raw)))
+			for b.Loop() {
+				if _, err := ReadCSV(bytes.NewReader(raw), "bench.csv", CSVOptions{}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(n*b.N)/b.Elapsed().Seconds(), "rows/s")
+		})
+		b.Run(fmt.Sprintf("rows=%d/reader=encoding-csv", n), func(b *testing.B) {
+			b.ReportAllocs()
+			b.SetBytes(int64(len(raw)))
+			for b.Loop() {
+				cr := csv.NewReader(bytes.NewReader(raw))
+				cr.ReuseRecord = true
+				for {
+					if _, err := cr.Read(); err == io.EOF {
+						break
+					} else if err != nil {
+						b.Fatal(err)
+					}
+				}
+			}
+			b.ReportMetric(float64(n*b.N)/b.Elapsed().Seconds(), "rows/s")
 		})
 	}
 }

@@ -1,7 +1,9 @@
 package datasets
 
 import (
+	"errors"
 	"fmt"
+	"strconv"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -28,6 +30,13 @@ type Dataset struct {
 	// RowError.Err a *CSVError naming the file, line and column at fault.
 	// Nil for embedded and synthetic sets.
 	Dropped []RowError
+	// Lines locates the rows in their source file: Lines[id] is the
+	// 1-based line of Source.File on which the row with row id id (a
+	// value of Rows, or the Row of a Dropped entry) starts. It is indexed
+	// by row id, not by position, so it is the same for a dataset and
+	// every Subset or Select of it. Nil when the rows have no source
+	// lines (synthetic sets). LocateRow and LocateError read it.
+	Lines []int
 }
 
 // Provenance records where a dataset came from.
@@ -56,6 +65,29 @@ func (d *Dataset) ClassCounts() []int {
 		c[y]++
 	}
 	return c
+}
+
+// LocateRow returns "file:line" for the row with row id row (a value of
+// Rows): Source.File and the row's 1-based line in it. ok is false when
+// the dataset has no source lines (synthetic sets) or row is not a row id
+// of its source.
+func (d *Dataset) LocateRow(row int) (where string, ok bool) {
+	if row < 0 || row >= len(d.Lines) || d.Lines[row] < 1 || d.Source.File == "" {
+		return "", false
+	}
+	return d.Source.File + ":" + strconv.Itoa(d.Lines[row]), true
+}
+
+// LocateError returns "file:line" (see LocateRow) for the row named by the
+// first *RowError in err's chain, as the pipeline steps return them when
+// fitted and applied with the dataset's row ids (Rows). ok is false when
+// err holds no *RowError or its row cannot be located.
+func (d *Dataset) LocateError(err error) (where string, ok bool) {
+	var re *RowError
+	if !errors.As(err, &re) {
+		return "", false
+	}
+	return d.LocateRow(re.Row)
 }
 
 // RowError reports a problem with one instance. Row is the 0-based index of

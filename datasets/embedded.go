@@ -293,7 +293,9 @@ func Load(name string) (*Dataset, error) {
 // n lines of d feature values and an integer class code. A set with
 // bundled.classes has no first line (digits.csv.gz); its class codes are
 // written as numbers ("3.0" or "3") and index bundled.classes. A gzipped
-// file is decompressed first.
+// file is decompressed first. Lines holds each row's line in the embedded
+// file (row i is on line i+2, or i+1 in a file without the first line;
+// for digits.csv.gz the line of the decompressed text).
 func loadBundled(b *bundled) (*Dataset, error) {
 	raw, err := bundledFiles.ReadFile("data/" + b.prov.File)
 	if err != nil {
@@ -332,6 +334,7 @@ func loadBundled(b *bundled) (*Dataset, error) {
 	X := mat.NewDense(n, d, nil)
 	Y := make([]int, n)
 	rows := make([]int, n)
+	lineOf := make([]int, n)
 	for i := range n {
 		f := strings.Split(lines[i+first], ",")
 		if len(f) != d+1 {
@@ -351,6 +354,7 @@ func loadBundled(b *bundled) (*Dataset, error) {
 		}
 		Y[i] = y
 		rows[i] = i
+		lineOf[i] = i + first + 1
 	}
 	return &Dataset{
 		Name:     b.prov.Name,
@@ -360,6 +364,7 @@ func loadBundled(b *bundled) (*Dataset, error) {
 		Y:        Y,
 		Rows:     rows,
 		Source:   b.prov,
+		Lines:    lineOf,
 	}, nil
 }
 

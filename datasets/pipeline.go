@@ -78,6 +78,8 @@ func StepInfos() []StepInfo {
 		{Name: "pad", Syntax: "pad", Description: "append zero features up to the next power of two"},
 		{Name: "lift", Syntax: "lift | lift(c)", Description: "append the constant c > 0 (default 1), then scale each row to unit norm; keeps the original norm as an angle"},
 		{Name: "norm", Syntax: "norm", Description: "replace each row by its Euclidean norm (one feature): what unit-norm scaling throws away"},
+		{Name: "pca", Syntax: "pca | pca(k) | pca(f)", Description: "principal components of the centred training rows (features pc1, pc2, ...): all, k >= 1 of them, or the fewest whose cumulative explained variance ratio exceeds f in (0,1); each axis signed so its largest loading is positive"},
+		{Name: "select", Syntax: "select | select(k)", Description: "keep the k features (default 10) with the largest one-way ANOVA F between the classes of the training rows, in their original order; constant features rank last, ties to the lower index"},
 	}
 }
 
@@ -153,10 +155,74 @@ func parseStep(text string) (Step, error) {
 			return nil, fmt.Errorf("parameter %s must be finite and > 0: %w", arg, ErrStepParam)
 		}
 		return &Lift{C: c}, nil
+	case "pca":
+		if !hasArg {
+			return &PCA{}, nil
+		}
+		return parsePCA(arg)
+	case "select":
+		if !hasArg {
+			return &SelectK{K: defaultSelectK}, nil
+		}
+		k, err := parseCount(arg)
+		if err != nil {
+			return nil, fmt.Errorf("select(%s): %v (write select(k) with k >= 1): %w", arg, err, ErrStepParam)
+		}
+		return &SelectK{K: k}, nil
 	case "raw":
 		return nil, fmt.Errorf("raw stands alone and cannot be combined with other steps: %w", ErrUnknownStep)
 	}
-	return nil, fmt.Errorf("%q (known: std, minmax, l2, pad, lift, norm): %w", name, ErrUnknownStep)
+	return nil, fmt.Errorf("%q (known: std, minmax, l2, pad, lift, norm, pca, select): %w", name, ErrUnknownStep)
+}
+
+// parseCount parses a whole number >= 1 written in decimal digits only.
+func parseCount(arg string) (int, error) {
+	if arg == "" {
+		return 0, errors.New("empty parameter")
+	}
+	for i := 0; i < len(arg); i++ {
+		if arg[i] < '0' || arg[i] > '9' {
+			return 0, fmt.Errorf("%q is not a whole number", arg)
+		}
+	}
+	k, err := strconv.Atoi(arg)
+	if err != nil {
+		return 0, fmt.Errorf("%s is too large", arg)
+	}
+	if k < 1 {
+		return 0, fmt.Errorf("%d is below 1", k)
+	}
+	return k, nil
+}
+
+// parsePCA parses the parameter of pca(k) or pca(f): digits only mean a
+// count of components; anything else must be a share of variance in (0, 1).
+func parsePCA(arg string) (Step, error) {
+	isDigits := arg != ""
+	for i := 0; i < len(arg); i++ {
+		if arg[i] < '0' || arg[i] > '9' {
+			isDigits = false
+		}
+	}
+	if isDigits {
+		k, err := parseCount(arg)
+		if err != nil {
+			return nil, fmt.Errorf("pca(%s): %v (write pca(k) with k >= 1 components, or pca(f) with 0 < f < 1): %w", arg, err, ErrStepParam)
+		}
+		return &PCA{K: k}, nil
+	}
+	f, err := strconv.ParseFloat(arg, 64)
+	switch {
+	case arg == "":
+		return nil, fmt.Errorf("empty parameter (write pca, pca(k) or pca(f)): %w", ErrStepParam)
+	case err != nil || math.IsNaN(f) || math.IsInf(f, 0):
+		return nil, fmt.Errorf("pca(%s): parameter is not a number (write pca(k) with k >= 1 components, or pca(f) with 0 < f < 1): %w", arg, ErrStepParam)
+	case f >= 1 && f == math.Trunc(f) && f <= 1<<31:
+		return nil, fmt.Errorf("pca(%s): a share of variance must be below 1; for %d component(s) write pca(%d): %w", arg, int(f), int(f), ErrStepParam)
+	case !(f > 0 && f < 1):
+		return nil, fmt.Errorf("pca(%s): write pca(k) with a whole number k >= 1 of components, or pca(f) with a share 0 < f < 1: %w", arg, ErrStepParam)
+	}
+	return &PCA{Frac: f}, nil
 }
 
 // String returns the canonical pipeline name ("raw" when there are no steps).
@@ -175,31 +241,74 @@ func (p *Pipeline) String() string {
 // the output of step 1, and so on. rows names the dataset rows of X for
 // error messages (nil: positions).
 func (p *Pipeline) Fit(X *mat.Dense, rows []int) error {
-	_, err := p.fit(X, rows, false)
+	_, err := p.fit(X, nil, rows, false)
 	return err
 }
 
 // FitTransform fits the pipeline on X and returns X transformed.
 func (p *Pipeline) FitTransform(X *mat.Dense, rows []int) (*mat.Dense, error) {
-	return p.fit(X, rows, true)
+	return p.fit(X, nil, rows, true)
 }
 
-func (p *Pipeline) fit(X *mat.Dense, rows []int, wantOut bool) (*mat.Dense, error) {
+// FitLabeled is Fit with the class index of every training row, which
+// steps that use classes (LabeledStep: "select") need; the other steps
+// ignore y. A pipeline without such steps gives the same result as Fit.
+func (p *Pipeline) FitLabeled(X *mat.Dense, y, rows []int) error {
+	if y == nil {
+		y = []int{}
+	}
+	_, err := p.fit(X, y, rows, false)
+	return err
+}
+
+// FitTransformLabeled is FitTransform with class labels (see FitLabeled).
+func (p *Pipeline) FitTransformLabeled(X *mat.Dense, y, rows []int) (*mat.Dense, error) {
+	if y == nil {
+		y = []int{}
+	}
+	return p.fit(X, y, rows, true)
+}
+
+// NeedsLabels reports whether a step of the pipeline uses class labels,
+// so that only FitLabeled and FitTransformLabeled can fit it.
+func (p *Pipeline) NeedsLabels() bool {
+	for _, s := range p.Steps {
+		if _, ok := s.(LabeledStep); ok {
+			return true
+		}
+	}
+	return false
+}
+
+// fit fits the steps; y is nil for an unlabeled fit.
+func (p *Pipeline) fit(X *mat.Dense, y, rows []int, wantOut bool) (*mat.Dense, error) {
 	if err := stepCheckInput(X, rows); err != nil {
 		return nil, fmt.Errorf("datasets: pipeline %s: fit: %w", p, err)
+	}
+	if r, _ := X.Dims(); y != nil && len(y) != r {
+		return nil, fmt.Errorf("datasets: pipeline %s: fit: %d labels for %d rows", p, len(y), r)
 	}
 	if !wantOut && len(p.Steps) == 0 {
 		return nil, nil
 	}
 	cur := X
 	for i, s := range p.Steps {
-		if err := s.Fit(cur); err != nil {
+		var err error
+		if ls, ok := s.(LabeledStep); ok && y != nil {
+			err = ls.FitLabeled(cur, y)
+		} else {
+			err = s.Fit(cur)
+		}
+		if err != nil {
 			return nil, fmt.Errorf("datasets: pipeline %s: fit: %w", p, err)
 		}
 		if i == len(p.Steps)-1 && !wantOut {
 			return nil, nil
 		}
 		next, err := s.Transform(cur, rows)
+		if err == nil {
+			err = stepCheckOutput(s, next, rows)
+		}
 		if err != nil {
 			return nil, fmt.Errorf("datasets: pipeline %s: fit: %w", p, err)
 		}
@@ -219,6 +328,9 @@ func (p *Pipeline) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	cur := X
 	for _, s := range p.Steps {
 		next, err := s.Transform(cur, rows)
+		if err == nil {
+			err = stepCheckOutput(s, next, rows)
+		}
 		if err != nil {
 			return nil, fmt.Errorf("datasets: pipeline %s: transform: %w", p, err)
 		}
@@ -254,6 +366,22 @@ func stepCheckInput(X *mat.Dense, rows []int) error {
 		for j := range c {
 			if v := X.At(i, j); math.IsNaN(v) || math.IsInf(v, 0) {
 				return &RowError{Row: stepRowID(rows, i), Err: fmt.Errorf("feature %d: %w", j, ErrNotFiniteValue)}
+			}
+		}
+	}
+	return nil
+}
+
+// stepCheckOutput reports the first value of a step's output that is not
+// finite (an overflow: every step's input is checked to be finite) as a
+// *RowError naming the dataset row and wrapping ErrNotFiniteValue.
+func stepCheckOutput(s Step, Z *mat.Dense, rows []int) error {
+	r, _ := Z.Dims()
+	for i := range r {
+		for j, v := range Z.RawRowView(i) {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("%s: %w", s.Name(), &RowError{Row: stepRowID(rows, i),
+					Err: fmt.Errorf("output feature %d overflows float64: %w", j, ErrNotFiniteValue)})
 			}
 		}
 	}
@@ -298,7 +426,11 @@ type Standardize struct {
 func (s *Standardize) Name() string { return "std" }
 
 // Fit learns the per-feature mean and scale with the corrected two-pass
-// algorithm (Chan, Golub & LeVeque 1983), as StandardScaler does.
+// algorithm (Chan, Golub & LeVeque 1983), as StandardScaler does. When the
+// sum or the sum of squares of a feature overflows (values near the float64
+// limit), that feature is computed again on its values divided by their
+// largest magnitude and scaled back, so mean and scale are finite for every
+// finite input; other features are not affected.
 func (s *Standardize) Fit(X *mat.Dense) error {
 	if err := stepCheckInput(X, nil); err != nil {
 		return fmt.Errorf("std: %w", err)
@@ -310,27 +442,45 @@ func (s *Standardize) Fit(X *mat.Dense) error {
 	col := make([]float64, r)
 	for j := range c {
 		mat.Col(col, j, X)
-		m := floats.Sum(col) / n
-		var corr, sq float64
-		for _, v := range col {
-			d := v - m
-			corr += d
-			sq += d * d
+		m, sc := stdMoments(col, n, 1)
+		if math.IsNaN(m) || math.IsInf(m, 0) || math.IsNaN(sc) || math.IsInf(sc, 0) {
+			top := floats.Norm(col, math.Inf(1))
+			for i := range col {
+				col[i] /= top
+			}
+			m, sc = stdMoments(col, n, top)
 		}
-		v := (sq - corr*corr/n) / n
-		const eps = 0x1p-52 // float64 machine epsilon, numpy.finfo(float64).eps
-		if v <= n*eps*v+(n*m*eps)*(n*m*eps) {
-			scale[j] = 1
-		} else {
-			scale[j] = math.Sqrt(v)
-		}
-		mean[j] = m
+		mean[j], scale[j] = m, sc
 	}
 	s.Mean, s.Scale = mean, scale
 	return nil
 }
 
-// Transform returns (x - mean) / scale per feature.
+// stdMoments returns the mean and the scale of the values col times unit:
+// the population standard deviation, or 1 when the values are constant by
+// StandardScaler's test (see Standardize). With unit = 1 it is the plain
+// computation; the near-constant test is homogeneous in the unit, so it
+// reads the same on rescaled values.
+func stdMoments(col []float64, n, unit float64) (mean, scale float64) {
+	m := floats.Sum(col) / n
+	var corr, sq float64
+	for _, v := range col {
+		d := v - m
+		corr += d
+		sq += d * d
+	}
+	v := (sq - corr*corr/n) / n
+	const eps = 0x1p-52 // float64 machine epsilon, numpy.finfo(float64).eps
+	if v <= n*eps*v+(n*m*eps)*(n*m*eps) {
+		return m * unit, 1
+	}
+	return m * unit, math.Sqrt(v) * unit
+}
+
+// Transform returns (x - mean) / scale per feature; where x - mean
+// overflows, x/scale - mean/scale. A result that still overflows (a test
+// value far outside the training range) is left infinite, and Pipeline
+// reports it as a *RowError.
 func (s *Standardize) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckTransform("std", len(s.Mean), X, rows); err != nil {
 		return nil, err
@@ -339,7 +489,12 @@ func (s *Standardize) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	out := mat.NewDense(r, c, nil)
 	for i := range r {
 		for j := range c {
-			out.Set(i, j, (X.At(i, j)-s.Mean[j])/s.Scale[j])
+			x := X.At(i, j)
+			v := (x - s.Mean[j]) / s.Scale[j]
+			if math.IsInf(v, 0) || math.IsNaN(v) {
+				v = x/s.Scale[j] - s.Mean[j]/s.Scale[j] // x - mean overflowed
+			}
+			out.Set(i, j, v)
 		}
 	}
 	return out, nil
@@ -355,9 +510,14 @@ func (s *Standardize) FeatureNames(in []string) []string { return append([]strin
 // training range is below 10*eps (eps the float64 machine epsilon, the
 // threshold of MinMaxScaler) is shifted by its minimum and left unscaled
 // (scale 1).
+//
+// When max - min overflows (values of both signs near the float64 limit),
+// Range is +Inf and Transform computes (x/2 - min/2) / (max/2 - min/2)
+// for that feature instead.
 type MinMax struct {
 	Min   []float64 // per-feature training minimum
 	Range []float64 // per-feature divisor (max - min, or 1)
+	half  []float64 // max/2 - min/2 where Range overflowed, else 0
 }
 
 // Name returns "minmax".
@@ -371,16 +531,21 @@ func (s *MinMax) Fit(X *mat.Dense) error {
 	r, c := X.Dims()
 	lo := make([]float64, c)
 	rng := make([]float64, c)
+	half := make([]float64, c)
 	col := make([]float64, r)
 	for j := range c {
 		mat.Col(col, j, X)
 		lo[j] = floats.Min(col)
-		rng[j] = floats.Max(col) - lo[j]
+		hi := floats.Max(col)
+		rng[j] = hi - lo[j]
 		if rng[j] < 10*0x1p-52 {
 			rng[j] = 1
 		}
+		if math.IsInf(rng[j], 1) {
+			half[j] = hi/2 - lo[j]/2
+		}
 	}
-	s.Min, s.Range = lo, rng
+	s.Min, s.Range, s.half = lo, rng, half
 	return nil
 }
 
@@ -393,7 +558,12 @@ func (s *MinMax) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	out := mat.NewDense(r, c, nil)
 	for i := range r {
 		for j := range c {
-			out.Set(i, j, (X.At(i, j)-s.Min[j])/s.Range[j])
+			x := X.At(i, j)
+			if j < len(s.half) && s.half[j] != 0 {
+				out.Set(i, j, (x/2-s.Min[j]/2)/s.half[j])
+				continue
+			}
+			out.Set(i, j, (x-s.Min[j])/s.Range[j])
 		}
 	}
 	return out, nil

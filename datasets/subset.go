@@ -108,12 +108,21 @@ func (d *Dataset) Subset(classes, features []string) (*Dataset, error) {
 		Rows:     make([]int, len(idx)),
 		Source:   d.Source,
 		Dropped:  append([]RowError(nil), d.Dropped...),
+		Lines:    cloneInts(d.Lines),
 	}
 	for p, i := range idx {
 		out.Y[p] = newClass[d.Y[i]]
 		out.Rows[p] = d.Rows[i]
 	}
 	return out, nil
+}
+
+// cloneInts returns a copy of s, nil for nil.
+func cloneInts(s []int) []int {
+	if s == nil {
+		return nil
+	}
+	return append(make([]int, 0, len(s)), s...)
 }
 
 // Select returns the rows at positions idx (0-based positions in d, not
@@ -131,6 +140,7 @@ func (d *Dataset) Select(idx []int) *Dataset {
 		Rows:     make([]int, len(idx)),
 		Source:   d.Source,
 		Dropped:  append([]RowError(nil), d.Dropped...),
+		Lines:    cloneInts(d.Lines),
 	}
 	for p, i := range idx {
 		if i < 0 || i >= len(d.Y) {
@@ -165,8 +175,9 @@ func copyRows(X *mat.Dense, idx, cols []int) *mat.Dense {
 
 // Validate checks the invariants of a Dataset: X has Len() rows and Dim()
 // columns, Y and Rows have one entry per row, every Y is a valid class
-// index, Features and Classes have no empty or repeated names, and every
-// feature value is finite. It returns the first violation found, naming the
+// index, Features and Classes have no empty or repeated names, every
+// feature value is finite, and, when Lines is set, every row id has a
+// line (>= 1) in it. It returns the first violation found, naming the
 // row (as in Rows) or the name at fault.
 func (d *Dataset) Validate() error {
 	if err := checkNames("feature", d.Features); err != nil {
@@ -196,6 +207,9 @@ func (d *Dataset) Validate() error {
 	for i := range n {
 		if d.Y[i] < 0 || d.Y[i] >= len(d.Classes) {
 			return fmt.Errorf("datasets: %s: %w", d.Name, &RowError{Row: d.Rows[i], Err: fmt.Errorf("class index %d out of range [0, %d)", d.Y[i], len(d.Classes))})
+		}
+		if d.Lines != nil && (d.Rows[i] < 0 || d.Rows[i] >= len(d.Lines) || d.Lines[d.Rows[i]] < 1) {
+			return fmt.Errorf("datasets: %s: %w", d.Name, &RowError{Row: d.Rows[i], Err: errors.New("row id has no source line")})
 		}
 		for j, v := range d.X.RawRowView(i) {
 			if math.IsNaN(v) || math.IsInf(v, 0) {

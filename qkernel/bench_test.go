@@ -206,3 +206,39 @@ func dropClass0(f fold) fold {
 	g.Xte, g.yte = keep(f.Xte, f.yte)
 	return g
 }
+
+// BenchmarkShared times gate-level noisy predictions with the density
+// matrix on Iris (first stratified fold, std pipeline, its test rows) with
+// training subsets of K rows, every whole circuit simulated forwards
+// (path=alone, the path before shared preparation) or through sim.Shared
+// (path=shared: prefix once, suffix backwards once, per row the middle;
+// the training rows are in class order, so all rows share one subset). classes=3 K=8 is 8 qubits,
+// classes=2 K=8 is 7, classes=3 K=32 is 10. Noise: depolarizing (0.001,
+// 0.01), 1000 shots. Reports ns per prediction.
+func BenchmarkShared(b *testing.B) {
+	for _, tc := range []struct{ classes, K, rows int }{{3, 8, 15}, {2, 8, 10}, {3, 32, 15}} {
+		f := firstFold(b, "iris", 10)
+		if tc.classes == 2 {
+			f = dropClass0(f)
+		}
+		for _, path := range []string{"alone", "shared"} {
+			b.Run(fmt.Sprintf("classes=%d/K=%d/path=%s", tc.classes, tc.K, path), func(b *testing.B) {
+				c := &Classifier{Mode: ModeNoisy, TrainSubset: tc.K, Shots: 1000, Seed: 1,
+					Noise: sim.NoiseModel{Depolarizing: [2]float64{0.001, 0.01}}, noShare: path == "alone"}
+				if err := c.Fit(f.Xtr, f.ytr, f.nClass); err != nil {
+					b.Fatal(err)
+				}
+				p, _ := c.makePlan()
+				rows, _ := f.Xte.Dims()
+				b.ReportAllocs()
+				for b.Loop() {
+					if _, err := c.Predict(f.Xte); err != nil {
+						b.Fatal(err)
+					}
+				}
+				b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(rows), "ns/prediction")
+				b.ReportMetric(float64(p.qubits), "qubits")
+			})
+		}
+	}
+}

@@ -1,6 +1,7 @@
 package qkernel
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -109,9 +110,15 @@ type Classifier struct {
 	// device: compiled to it (device.Compile: placement, SABRE routing,
 	// native gates) and simulated under its calibrated noise
 	// (device.Program.Simulate) with Method and Trajectories. It replaces
-	// Noise and Channels (Validate rejects both together); nil (the
-	// default) changes nothing.
+	// Noise and Channels (Validate rejects both together, and Mitigate for
+	// now); nil (the default) changes nothing.
 	Device *device.Device
+	// Mitigate configures readout-error mitigation: in ModeNoisy the
+	// decision is taken on the mitigated outcome distribution (see
+	// MitigateReadout and Mitigation) and Detail.Raw keeps the unmitigated
+	// one; PredictCounts mitigates imported counts with the given
+	// confusion matrices. The zero value mitigates nothing.
+	Mitigate Mitigation
 	// Seed is the task seed. Every test row gets its own generator derived
 	// from Seed and the row's position in the matrix passed to Predict; it
 	// draws, in this order, the training subset, the trajectory jumps and
@@ -128,6 +135,8 @@ type Classifier struct {
 	unit    []float64 // n x d row-major: the unit training vectors
 	mass    []float64 // mass[k] = sum of w_m over class k (whole training set)
 	centre  []float64 // nClass x d row-major: centre_k = sum_{m in k} w_m x_m (x_m unit)
+
+	noShare bool // tests and benchmarks: simulate whole circuits forwards (share.go)
 }
 
 // Detail is the classifier's output for one test row.
@@ -139,9 +148,10 @@ type Detail struct {
 	// counts_k / N_acc with finite shots). Classes absent from training
 	// have probability 0 without noise; noise can give them (and the
 	// class-register values >= the number of classes, which belong to no
-	// class) some probability, so under noise Probs may sum to less than
-	// 1. When nothing is accepted, present classes get NaN and absent
-	// ones 0 (see the package documentation).
+	// class; see Unused) some probability, so under noise Probs may sum to
+	// less than 1: they are not renormalised over the valid codes. When
+	// nothing is accepted, present classes get NaN and absent ones 0 (see
+	// the package documentation).
 	Probs []float64
 	// Shots is the number of accepted shots N_acc behind the estimate; 0
 	// with exact probabilities (ModeExact, ModeCircuit, ModeNoisy without
@@ -152,6 +162,25 @@ type Detail struct {
 	// count decisions that shots and noise changed. In ModeExact it equals
 	// the prediction.
 	Exact int
+	// Unused is the share of the accepted probability (or accepted shots)
+	// that fell on class-register values k >= the number of classes,
+	// which name no class: P(a=0, k >= C) / P(a=0). So sum(Probs) + Unused
+	// = 1 whenever something is accepted; Unused is 0 without noise (and
+	// whenever C is a power of two) and NaN when nothing is accepted.
+	Unused float64
+	// Raw is the decision before readout mitigation when Mitigate is set
+	// (the fields above are then the mitigated decision's; Shots stays the
+	// raw N_acc); nil without mitigation.
+	Raw *RawDetail
+}
+
+// RawDetail is the unmitigated decision of a row under readout mitigation:
+// what Detail would hold without Mitigate.
+type RawDetail struct {
+	Pred   int
+	PAcc   float64
+	Probs  []float64
+	Unused float64
 }
 
 // reset forgets any fitted state.
@@ -266,6 +295,11 @@ func (c *Classifier) makePlan() (*plan, error) {
 	if err := c.devicePlan(p); err != nil {
 		return nil, err
 	}
+	if c.Mitigate.Readout {
+		if _, err := c.confusion(nq); err != nil {
+			return nil, err
+		}
+	}
 	switch {
 	case c.Mode == ModeCircuit:
 		p.gate, p.method = true, sim.StateVector
@@ -303,7 +337,7 @@ func (c *Classifier) makePlan() (*plan, error) {
 // result. The random draws of row i depend only on Seed and i, its position
 // in X.
 func (c *Classifier) Predict(X *mat.Dense) ([]int, error) {
-	pred, _, err := c.predict(X, false)
+	pred, _, err := c.predict(context.Background(), X, false)
 	return pred, err
 }
 
@@ -311,10 +345,26 @@ func (c *Classifier) Predict(X *mat.Dense) ([]int, error) {
 // probability, the class probabilities, the accepted shots and the
 // exact-mode decision behind the prediction.
 func (c *Classifier) PredictDetail(X *mat.Dense) ([]int, []Detail, error) {
-	return c.predict(X, true)
+	return c.predict(context.Background(), X, true)
 }
 
-func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error) {
+// PredictContext is Predict that stops when ctx is cancelled: it checks ctx
+// between rows and, in the gate-level modes, between the gates of every
+// simulation (about every 10^5 amplitudes of work), and returns ctx.Err()
+// (context.Canceled or context.DeadlineExceeded, unwrapped) and no
+// predictions. A run that is not cancelled gives exactly Predict's result.
+func (c *Classifier) PredictContext(ctx context.Context, X *mat.Dense) ([]int, error) {
+	pred, _, err := c.predict(ctx, X, false)
+	return pred, err
+}
+
+// PredictDetailContext is PredictDetail that stops when ctx is cancelled,
+// as PredictContext does.
+func (c *Classifier) PredictDetailContext(ctx context.Context, X *mat.Dense) ([]int, []Detail, error) {
+	return c.predict(ctx, X, true)
+}
+
+func (c *Classifier) predict(ctx context.Context, X *mat.Dense, detail bool) ([]int, []Detail, error) {
 	if err := c.Validate(); err != nil {
 		return nil, nil, err
 	}
@@ -329,6 +379,9 @@ func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error)
 		}
 		return nil, nil, fmt.Errorf("qkernel: predict: %w", err)
 	}
+	if err := ctx.Err(); err != nil {
+		return nil, nil, err
+	}
 	if X == nil || X.IsEmpty() {
 		if detail {
 			return []int{}, []Detail{}, nil
@@ -341,27 +394,46 @@ func (c *Classifier) predict(X *mat.Dense, detail bool) ([]int, []Detail, error)
 	}
 	pred := make([]int, r)
 	var details []Detail
-	var backing []float64
+	var backing, rawBacking []float64
+	mit := c.mitigates()
 	if detail {
 		details = make([]Detail, r)
 		backing = make([]float64, r*c.nClass)
+		if mit {
+			rawBacking = make([]float64, r*c.nClass)
+		}
 	}
 	s := c.newScratch(p)
+	s.share = c.newShareCache(p)
 	probs := make([]float64, c.nClass)
+	var rawProbs []float64
+	if mit {
+		rawProbs = make([]float64, c.nClass)
+	}
 	for i := range r {
+		// Rows without a simulation cost microseconds: check every 64th.
+		if (p.gate || i%64 == 0) && ctx.Err() != nil {
+			return nil, nil, ctx.Err()
+		}
 		if f := unitInto(s.x, X.RawRowView(i)); f != vectorOK {
 			return nil, nil, &VectorError{Set: "test", Pos: i, Reason: f.String()}
 		}
 		if detail {
 			probs = backing[i*c.nClass : (i+1)*c.nClass : (i+1)*c.nClass]
+			if mit {
+				rawProbs = rawBacking[i*c.nClass : (i+1)*c.nClass : (i+1)*c.nClass]
+			}
 		}
-		det, err := c.row(p, s, i, probs)
+		det, err := c.row(ctx, p, s, i, probs, rawProbs)
 		if err != nil {
+			if ctx.Err() != nil && errors.Is(err, ctx.Err()) {
+				return nil, nil, ctx.Err()
+			}
 			return nil, nil, fmt.Errorf("qkernel: predict: test row %d: %w", i, err)
 		}
 		pred[i] = det.pred
 		if detail {
-			details[i] = Detail{PAcc: det.pacc, Probs: probs, Shots: det.shots, Exact: det.exact}
+			details[i] = Detail{PAcc: det.pacc, Probs: probs, Shots: det.shots, Exact: det.exact, Unused: det.unused, Raw: det.raw}
 		}
 	}
 	return pred, details, nil

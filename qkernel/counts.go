@@ -1,6 +1,7 @@
 package qkernel
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math/rand/v2"
@@ -31,7 +32,7 @@ func (c *Classifier) exactTwin() (*Classifier, *plan, error) {
 		return nil, nil, fmt.Errorf("qkernel: %w", ErrNotFitted)
 	}
 	e := *c
-	e.Mode, e.Shots = ModeExact, 0
+	e.Mode, e.Shots, e.Mitigate = ModeExact, 0, Mitigation{}
 	e.Noise, e.Channels = sim.NoiseModel{}, Channels{}
 	e.Method, e.Trajectories = sim.Auto, 0
 	e.Device = nil
@@ -129,10 +130,21 @@ func (c *Classifier) RowRand(pos int) (*rand.Rand, error) {
 // can be counted. The options Mode, Shots and noise are ignored; Seed,
 // Balance and TrainSubset must be those the circuits were built with.
 //
+// Detail.Unused is the share of the accepted shots on register values
+// k >= the number of classes.
+//
+// With Mitigate.Readout the counts are mitigated with Mitigate.Confusion
+// (required: the classifier's noise options do not describe a device;
+// see ConfusionFromCounts) by MitigateReadout, the decision is taken on the
+// mitigated distribution as on exact probabilities (P(a=0) and P(k | acc)
+// from it; nothing accepted when the mitigated P(a=0) is 0), and
+// Detail.Raw holds the decision on the raw counts.
+//
 // Errors: ErrNotFitted before Fit; ErrDim for a feature count other than
 // Fit's or len(counts) != rows of X; ErrCounts for a count vector of the
 // wrong length, a negative count or a row without shots; a *VectorError for
-// a zero or non-finite row.
+// a zero or non-finite row; an *OptionError (key "mitigate") for
+// mitigation without confusion matrices or with the wrong number.
 func (c *Classifier) PredictCounts(X *mat.Dense, counts [][]int) ([]int, []Detail, error) {
 	e, p, err := c.exactTwin()
 	if err != nil {
@@ -165,16 +177,32 @@ func (c *Classifier) PredictCounts(X *mat.Dense, counts [][]int) ([]int, []Detai
 			return nil, nil, fmt.Errorf("qkernel: predict counts: row %d: no shots: %w", i, ErrCounts)
 		}
 	}
+	if err := c.validateMitigation(); err != nil {
+		return nil, nil, err
+	}
+	var conf []Confusion
+	if c.Mitigate.Readout {
+		if c.Mitigate.Confusion == nil {
+			return nil, nil, optErr("mitigate", "imported counts need the confusion matrices of their device")
+		}
+		if conf, err = c.confusion(p.qClass); err != nil {
+			return nil, nil, err
+		}
+	}
 	pred := make([]int, r)
 	details := make([]Detail, r)
 	backing := make([]float64, r*e.nClass)
+	var rawBacking []float64
+	if conf != nil {
+		rawBacking = make([]float64, r*e.nClass)
+	}
 	scratchProbs := make([]float64, e.nClass)
 	s := e.newScratch(p)
 	for i := range r {
 		if f := unitInto(s.x, X.RawRowView(i)); f != vectorOK {
 			return nil, nil, &VectorError{Set: "test", Pos: i, Reason: f.String()}
 		}
-		ex, err := e.row(p, s, i, scratchProbs)
+		ex, err := e.row(context.Background(), p, s, i, scratchProbs, nil)
 		if err != nil {
 			return nil, nil, fmt.Errorf("qkernel: predict counts: test row %d: %w", i, err)
 		}
@@ -183,9 +211,32 @@ func (c *Classifier) PredictCounts(X *mat.Dense, counts [][]int) ([]int, []Detai
 			total += n
 		}
 		probs := backing[i*e.nClass : (i+1)*e.nClass : (i+1)*e.nClass]
-		pr, nacc := decideCounts(probs, counts[i][:h], e.present)
-		pred[i] = pr
-		details[i] = Detail{PAcc: float64(nacc) / float64(total), Probs: probs, Shots: nacc, Exact: ex.exact}
+		dst := probs
+		if conf != nil {
+			dst = rawBacking[i*e.nClass : (i+1)*e.nClass : (i+1)*e.nClass]
+		}
+		pr, nacc := decideCounts(dst, counts[i][:h], e.present)
+		out := outcome{pred: pr, pacc: float64(nacc) / float64(total), shots: nacc, unused: unusedCounts(counts[i][:h], e.nClass, nacc)}
+		if conf != nil {
+			joint := make([]float64, len(counts[i]))
+			for j, n := range counts[i] {
+				joint[j] = float64(n)
+			}
+			pm, err := MitigateReadout(joint, conf)
+			if err != nil {
+				return nil, nil, fmt.Errorf("qkernel: predict counts: test row %d: %w", i, err)
+			}
+			out.raw = &RawDetail{Pred: out.pred, PAcc: out.pacc, Probs: dst, Unused: out.unused}
+			var acc float64
+			for _, v := range pm[:h] {
+				acc += v
+			}
+			out.pred = decideProbs(probs, pm, acc, 0, e.present)
+			out.pacc = acc
+			out.unused = unusedShare(pm[e.nClass:h], e.nClass, acc, 0)
+		}
+		pred[i] = out.pred
+		details[i] = Detail{PAcc: out.pacc, Probs: probs, Shots: nacc, Exact: ex.exact, Unused: out.unused, Raw: out.raw}
 	}
 	return pred, details, nil
 }

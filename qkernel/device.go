@@ -32,6 +32,8 @@ func (c *Classifier) validateDevice() error {
 		return optErr("device", "set together with closed-form channels (global_depolarizing, ancilla_dephasing or readout); the device's calibration is the noise model, set one of them")
 	case c.Method == sim.StateVector:
 		return optErr("method", "the state-vector simulator is noiseless; a device's noise needs \"density\" or \"trajectories\" (or \"auto\")")
+	case !c.Mitigate.IsZero():
+		return optErr("mitigate", "readout mitigation on a device is not available yet (the readout errors sit on the physical qubits that routing chose for each row)")
 	}
 	return nil
 }
@@ -53,18 +55,12 @@ func (c *Classifier) devicePlan(p *plan) error {
 	return nil
 }
 
-// simulate runs a row's compiled circuit: on the device under its
-// calibrated noise when Device is set, else with the gate-level model as
-// sim.Simulate.
-func (c *Classifier) simulate(circ *circuit.Circuit, noise sim.NoiseModel, p *plan, rng *rand.Rand) (sim.Result, error) {
-	opt := sim.Options{Noise: noise, Method: p.method, Trajectories: c.Trajectories, Rng: rng}
-	if c.Device == nil || c.Mode != ModeNoisy {
-		return sim.Simulate(context.Background(), circ, opt)
-	}
+// deviceSimulate runs a row's compiled circuit on the device under its
+// calibrated noise.
+func (c *Classifier) deviceSimulate(ctx context.Context, circ *circuit.Circuit, p *plan, rng *rand.Rand) (sim.Result, error) {
 	prog, err := device.Compile(circ, c.Device, device.Options{})
 	if err != nil {
 		return sim.Result{}, err
 	}
-	opt.Noise = sim.NoiseModel{}
-	return prog.Simulate(context.Background(), opt)
+	return prog.Simulate(ctx, sim.Options{Method: p.method, Trajectories: c.Trajectories, Rng: rng})
 }

@@ -124,7 +124,11 @@ func (c *Classifier) gateLevel() bool {
 //     StateVector (key "device", or "method");
 //   - an option set in a mode that ignores it: Shots > 0 in ModeExact or
 //     ModeCircuit; Noise, Channels, Method or Trajectories outside
-//     ModeNoisy.
+//     ModeNoisy;
+//   - readout mitigation (key "mitigate") with an invalid confusion matrix,
+//     with confusion matrices but Readout false, or without confusion
+//     matrices outside ModeNoisy or without readout error to invert
+//     (Fit also checks their count against the measured bits).
 //
 // Fit calls Validate first. Limits that depend on the data (TrainSubset
 // versus the training set, the qubit count) are checked by Fit.
@@ -164,6 +168,9 @@ func (c *Classifier) Validate() error {
 	}
 	if c.Noise.Readout != [2]float64{} && c.Channels.Readout != [2]float64{} {
 		return optErr("readout", "set both as gate-level noise and as a channel; both are the same readout model, set it once")
+	}
+	if err := c.validateMitigation(); err != nil {
+		return err
 	}
 	if c.Mode == ModeShots || c.Mode == ModeExact || c.Mode == ModeCircuit {
 		if c.Shots > 0 && c.Mode != ModeShots {

@@ -1,6 +1,7 @@
 package qkernel
 
 import (
+	"context"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -25,6 +26,7 @@ type scratch struct {
 	ysub   []int       // subset labels
 	pcg    *rand.PCG   // re-seeded for every row
 	rng    *rand.Rand  // draws from pcg
+	share  *shareCache // prepared parts shared by rows (nil: none)
 }
 
 func (c *Classifier) newScratch(p *plan) *scratch {
@@ -57,11 +59,18 @@ type outcome struct {
 	pred, exact int
 	pacc        float64
 	shots       int
+	unused      float64    // Detail.Unused
+	raw         *RawDetail // the unmitigated decision (mitigation only)
 }
 
+// mitigates reports whether Predict mitigates readout errors.
+func (c *Classifier) mitigates() bool { return c.Mode == ModeNoisy && c.Mitigate.Readout }
+
 // row classifies the unit test vector s.x at position pos, writing
-// P(k | acc) into probs (len nClass).
-func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome, error) {
+// P(k | acc) into probs (len nClass). With readout mitigation the raw
+// decision's probabilities go to rawProbs (len nClass) and the mitigated
+// ones to probs.
+func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, probs, rawProbs []float64) (outcome, error) {
 	var rng *rand.Rand
 	if c.Mode != ModeExact || c.TrainSubset > 0 {
 		s.pcg.Seed(rowSeeds(c.Seed, pos)) // the same stream as rowRand(c.Seed, pos)
@@ -90,6 +99,7 @@ func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome
 	if c.Mode == ModeExact {
 		copy(probs, s.eprobs)
 		out.pred, out.pacc = out.exact, pacc
+		out.unused = unusedShare(nil, 0, pacc, floor) // the closed form has no unused codes
 		return out, nil
 	}
 
@@ -110,7 +120,14 @@ func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome
 		if c.Mode == ModeCircuit {
 			noise = sim.NoiseModel{}
 		}
-		res, err := c.simulate(circ, noise, p, rng)
+		var res sim.Result
+		if c.Device != nil && c.Mode == ModeNoisy {
+			res, err = c.deviceSimulate(ctx, circ, p, rng)
+		} else {
+			res, err = s.share.simulate(ctx, ysub, circ, sim.Options{
+				Noise: noise, Method: p.method, Trajectories: c.Trajectories, Rng: rng,
+			})
+		}
 		if err != nil {
 			return out, err
 		}
@@ -131,6 +148,11 @@ func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome
 	}
 
 	h := len(dist) / 2
+	mit := c.mitigates()
+	dst := probs
+	if mit {
+		dst = rawProbs
+	}
 	if c.Shots > 0 {
 		// One multinomial sample over the accepted outcomes (a = 0, k) and
 		// one outcome "rejected" that merges every a = 1 outcome: merging
@@ -144,17 +166,96 @@ func (c *Classifier) row(p *plan, s *scratch, pos int, probs []float64) (outcome
 			agg[h] += v
 		}
 		counts := sim.SampleCounts(agg, c.Shots, rng)
-		out.pred, out.shots = decideCounts(probs, counts[:h], c.present)
+		out.pred, out.shots = decideCounts(dst, counts[:h], c.present)
 		out.pacc = float64(out.shots) / float64(c.Shots)
+		out.unused = unusedCounts(counts[:h], c.nClass, out.shots)
+		if mit {
+			// Mitigation needs the rejected shots by class value too: split
+			// them by a second multinomial with the conditional law
+			// P(1, k) / P(a = 1), drawn after the main sample (so the raw
+			// decision keeps its draws). Given the merged count this is
+			// exactly the law of the full multinomial.
+			joint := make([]float64, len(dist))
+			for k, n := range counts[:h] {
+				joint[k] = float64(n)
+			}
+			if rej := counts[h]; rej > 0 {
+				for k, n := range sim.SampleCounts(dist[h:], rej, rng) {
+					joint[h+k] = float64(n)
+				}
+			}
+			if err := c.mitigateInto(&out, probs, rawProbs, joint, p.qClass, 0); err != nil {
+				return out, err
+			}
+		}
 		return out, nil
 	}
 	var acc float64
 	for _, v := range dist[:h] {
 		acc += v
 	}
-	out.pred = decideProbs(probs, dist, acc, floor, c.present)
+	out.pred = decideProbs(dst, dist, acc, floor, c.present)
 	out.pacc = acc
+	out.unused = unusedShare(dist[c.nClass:h], c.nClass, acc, floor)
+	if mit {
+		if err := c.mitigateInto(&out, probs, rawProbs, dist, p.qClass, floor); err != nil {
+			return out, err
+		}
+	}
 	return out, nil
+}
+
+// mitigateInto moves the raw decision of out into out.raw (its
+// probabilities are in rawProbs) and replaces it by the decision on the
+// readout-mitigated joint distribution of joint (probabilities or counts,
+// layout a*2^q + k), writing P(k | acc) into probs. floor is the bound at
+// or below which the mitigated P(a = 0) counts as nothing accepted.
+func (c *Classifier) mitigateInto(out *outcome, probs, rawProbs, joint []float64, q int, floor float64) error {
+	conf, err := c.confusion(q)
+	if err != nil {
+		return err
+	}
+	pm, err := MitigateReadout(joint, conf)
+	if err != nil {
+		return err
+	}
+	out.raw = &RawDetail{Pred: out.pred, PAcc: out.pacc, Probs: rawProbs, Unused: out.unused}
+	h := len(pm) / 2
+	var acc float64
+	for _, v := range pm[:h] {
+		acc += v
+	}
+	out.pred = decideProbs(probs, pm, acc, floor, c.present)
+	out.pacc = acc
+	out.unused = unusedShare(pm[c.nClass:h], c.nClass, acc, floor)
+	return nil
+}
+
+// unusedShare returns the share of the accepted probability acc on the
+// unused class-register values, whose probabilities are extra (the
+// entries k >= nClass of the accepted outcomes): 0 if there are none,
+// NaN when acc is at or below floor (nothing accepted).
+func unusedShare(extra []float64, nClass int, acc, floor float64) float64 {
+	if acc <= floor {
+		return math.NaN()
+	}
+	var u float64
+	for _, v := range extra {
+		u += v
+	}
+	return u / acc
+}
+
+// unusedCounts is unusedShare for the accepted counts (len 2^q) and N_acc.
+func unusedCounts(acc []int, nClass, nacc int) float64 {
+	if nacc == 0 {
+		return math.NaN()
+	}
+	u := 0
+	for _, n := range acc[nClass:] {
+		u += n
+	}
+	return float64(u) / float64(nacc)
 }
 
 // eps is the machine epsilon of float64.

@@ -12,7 +12,7 @@ import (
 // The assessment report (fringe assess): per dataset and pipeline, what the
 // interference classifier would cost on a device and what it would gain
 // against the classical baselines. The numbers are computed by
-// bench.Assess; this file holds the records and writes them.
+// bench/assess.Run; this file holds the records and writes them.
 
 // AssessRow is one (dataset, pipeline) row of the assessment.
 type AssessRow struct {
@@ -131,15 +131,16 @@ func WriteAssessCSV(w io.Writer, a *Assessment) error {
 	cw.Write(AssessColumns)
 	it := strconv.Itoa
 	for _, r := range a.Rows {
+		t := csvTexts(r.Dataset, r.Pipeline, r.Weights, r.Baseline, r.Before, r.Lift, r.Verdict)
 		cw.Write([]string{
-			it(r.Rank), it(r.Front), r.Dataset, r.Pipeline, it(r.Instances), it(r.Features), it(r.Classes), it(r.Folds), it(r.Repeats), it(r.TrainSize),
+			it(r.Rank), it(r.Front), t[0], t[1], it(r.Instances), it(r.Features), it(r.Classes), it(r.Folds), it(r.Repeats), it(r.TrainSize),
 			it(r.Index), it(r.Data), it(r.Class), it(r.Qubits), Fmt(r.PaddingWaste),
 			it(r.CNOT), it(r.SingleQubit), it(r.Depth), fmtSci(r.NoiseBudget),
-			r.Weights, Fmt(r.PAccMean), Fmt(r.PAccMin), Fmt(r.PAcc5), Fmt(r.MarginMedian), fmtCSV(r.ShotsMedian), fmtCSV(r.Shots90),
+			t[2], Fmt(r.PAccMean), Fmt(r.PAccMin), Fmt(r.PAcc5), Fmt(r.MarginMedian), fmtCSV(r.ShotsMedian), fmtCSV(r.Shots90),
 			Fmt(r.Exact.Mean), Fmt(r.Exact.Lo), Fmt(r.Exact.Hi), Fmt(r.Uniform.Mean), Fmt(r.Balanced.Mean),
-			r.Baseline, Fmt(r.BaselineAcc.Mean), Fmt(r.BaselineAcc.Lo), Fmt(r.BaselineAcc.Hi), Fmt(r.Gap), Fmt(r.GapLo), Fmt(r.GapHi), Fmt(r.GapP),
-			r.Before, Fmt(r.KNNBefore), Fmt(r.KNNL2), r.Lift, Fmt(r.KNNLift), Fmt(r.NormOnly), Fmt(r.Chance), Fmt(r.NormShare),
-			Fmt(r.KTAInterference), Fmt(r.KTARBF), Fmt(r.RBFGamma), r.Verdict,
+			t[3], Fmt(r.BaselineAcc.Mean), Fmt(r.BaselineAcc.Lo), Fmt(r.BaselineAcc.Hi), Fmt(r.Gap), Fmt(r.GapLo), Fmt(r.GapHi), Fmt(r.GapP),
+			t[4], Fmt(r.KNNBefore), Fmt(r.KNNL2), t[5], Fmt(r.KNNLift), Fmt(r.NormOnly), Fmt(r.Chance), Fmt(r.NormShare),
+			Fmt(r.KTAInterference), Fmt(r.KTARBF), Fmt(r.RBFGamma), t[6],
 		})
 	}
 	cw.Flush()
@@ -155,7 +156,8 @@ func WriteAssessResourcesCSV(w io.Writer, a *Assessment) error {
 		"padding_waste", "cnot", "single_qubit", "depth", "p2_budget"})
 	it := strconv.Itoa
 	for _, r := range a.Resources {
-		cw.Write([]string{r.Dataset, r.Pipeline, it(r.Train), strconv.FormatBool(r.Full), it(r.Index), it(r.Data), it(r.Class), it(r.Qubits),
+		t := csvTexts(r.Dataset, r.Pipeline)
+		cw.Write([]string{t[0], t[1], it(r.Train), strconv.FormatBool(r.Full), it(r.Index), it(r.Data), it(r.Class), it(r.Qubits),
 			Fmt(r.PaddingWaste), it(r.CNOT), it(r.SingleQubit), it(r.Depth), fmtSci(r.NoiseBudget)})
 	}
 	cw.Flush()
@@ -367,7 +369,7 @@ func WriteAssessTeX(w io.Writer, a *Assessment) error {
 		r := a.Rows[i]
 		exact := "--"
 		if !math.IsNaN(r.Exact.Mean) {
-			exact = texCell(r.Exact, MarkNone, SpreadInterval, 3)
+			exact = texCell(r.Exact, MarkNone, 3)
 		}
 		fmt.Fprintf(&b, "%d & %d & %s & %s & %s & %s %s & %s & %s & %s & %d & %s \\\\\n",
 			r.Rank, r.Front, TeXEscape(r.Dataset), TeXEscape(r.Pipeline), exact, TeXEscape(r.Baseline), texF3(r.BaselineAcc.Mean),

@@ -5,10 +5,11 @@ import (
 	"fmt"
 	"math"
 	"strconv"
-	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
@@ -28,7 +29,7 @@ func AssessFigures(a *Assessment, fileSafe func(string) string) ([]Figure, error
 	if err != nil {
 		return nil, err
 	}
-	figs = append(figs, Figure{Name: "figures/assess-cost-gain", Plot: p, Width: 7 * vg.Inch, Height: 4.5 * vg.Inch, LegendRight: true,
+	figs = append(figs, Figure{Name: "figures/assess-cost-gain", Plot: p, Width: 7 * vg.Inch, Height: 4.5 * vg.Inch,
 		Caption: "Accuracy gap of the exact classifier to the best baseline against the shots a device needs for a 95% right decision at the median test instance; up and to the left is better"})
 
 	var dss, pipes []string
@@ -99,10 +100,13 @@ func AssessFigures(a *Assessment, fileSafe func(string) string) ([]Figure, error
 }
 
 // costGainPlot draws one point per row: x = median shots (log), y = gap,
-// coloured by pipeline, labelled with the dataset. Rows with infinite or
-// undefined shots are left out (listed in the title).
+// coloured and shaped by pipeline, labelled with the dataset (labels
+// placed by the repel step of pointLabels, the legend in the emptiest
+// corner). Rows with infinite or undefined shots are left out and listed
+// on a second title line.
 func costGainPlot(a *Assessment) (*plot.Plot, error) {
 	p := newPlot("Cost and gain of the interference classifier", "shots for a 95% right decision at the median test instance", "accuracy gap to the best baseline")
+	p.Add(plotter.NewGrid())
 	p.X.Scale = plot.LogScale{}
 	p.X.Tick.Marker = decadeTicks{}
 	var pipes []string
@@ -113,20 +117,26 @@ func costGainPlot(a *Assessment) (*plot.Plot, error) {
 			pipes = append(pipes, r.Pipeline)
 		}
 	}
+	labels := &pointLabels{
+		style:  text.Style{Font: font.From(plot.DefaultFont, 7), Handler: plot.DefaultTextHandler},
+		legSty: text.Style{Font: font.From(plot.DefaultFont, 8), Handler: plot.DefaultTextHandler},
+	}
 	var left []string
+	xmin, xmax := math.Inf(1), math.Inf(-1)
+	ymin, ymax := 0.0, 0.0 // the zero line is always shown
 	for pi, pipe := range pipes {
 		var pts plotter.XYs
-		var labels []string
+		var names []string
 		for _, r := range a.Rows {
 			if r.Pipeline != pipe {
 				continue
 			}
-			if !(r.ShotsMedian >= 1) || math.IsInf(r.ShotsMedian, 0) || math.IsNaN(r.Gap) {
+			if !(r.ShotsMedian >= 1) || math.IsInf(r.ShotsMedian, 0) || math.IsNaN(r.Gap) || math.IsInf(r.Gap, 0) {
 				left = append(left, r.Dataset+"/"+r.Pipeline)
 				continue
 			}
 			pts = append(pts, plotter.XY{X: math.Ceil(r.ShotsMedian), Y: r.Gap})
-			labels = append(labels, r.Dataset)
+			names = append(names, r.Dataset)
 		}
 		if len(pts) == 0 {
 			continue
@@ -139,31 +149,46 @@ func costGainPlot(a *Assessment) (*plot.Plot, error) {
 		sc.GlyphStyle.Color = col
 		sc.GlyphStyle.Radius = vg.Points(3)
 		sc.GlyphStyle.Shape = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.SquareGlyph{}, draw.CrossGlyph{}}[pi%4]
-		lb, err := plotter.NewLabels(plotter.XYLabels{XYs: pts, Labels: labels})
-		if err != nil {
-			return nil, fmt.Errorf("results: cost-gain figure: %w", err)
+		p.Add(sc)
+		labels.legend = append(labels.legend, legendItem{Text: pipe, Thumb: sc})
+		for i, pt := range pts {
+			labels.points = append(labels.points, labelPoint{X: pt.X, Y: pt.Y, Text: names[i], Color: col, Radius: sc.GlyphStyle.Radius})
+			xmin, xmax = math.Min(xmin, pt.X), math.Max(xmax, pt.X)
+			ymin, ymax = math.Min(ymin, pt.Y), math.Max(ymax, pt.Y)
 		}
-		for i := range lb.TextStyle {
-			lb.TextStyle[i].Font.Size = vg.Points(6.5)
-			lb.TextStyle[i].Color = col
-		}
-		lb.Offset = vg.Point{X: vg.Points(4), Y: vg.Points(2)}
-		p.Add(sc, lb)
-		p.Legend.Add(pipe, sc)
 	}
 	zero := plotter.NewFunction(func(float64) float64 { return 0 })
 	zero.LineStyle.Dashes = dashed
 	zero.LineStyle.Width = vg.Points(0.8)
-	p.Add(zero)
-	if len(left) == len(a.Rows) {
-		p.X.Min, p.X.Max = 1, 10 // nothing to show; a log axis needs a positive range
+	p.Add(zero, labels)
+	if len(labels.points) == 0 {
+		xmin, xmax = 1, 10 // nothing to show; a log axis needs a positive range
 	}
-	decadeRange(&p.X.Min, &p.X.Max)
+	// Room around the points for their labels and the legend: 5 % of the
+	// decades on either side (at least a factor 1.5), 8 % of the gap range
+	// below and 12 % above.
+	f := math.Max(math.Pow(xmax/xmin, 0.05), 1.5)
+	p.X.Min, p.X.Max = xmin/f, xmax*f
+	span := math.Max(ymax-ymin, 0.05)
+	p.Y.Min, p.Y.Max = ymin-0.08*span, ymax+0.12*span
 	if len(left) > 0 {
-		p.Title.Text += fmt.Sprintf(" (not shown, no finite budget: %s)", strings.Join(left, ", "))
+		// At most about two lines of names; the rest are counted.
+		shown, n := "", 0
+		for n < len(left) && len(shown)+len(left[n]) <= 150 {
+			if n > 0 {
+				shown += ", "
+			}
+			shown += left[n]
+			n++
+		}
+		if n == 0 {
+			shown, n = left[0], 1
+		}
+		if n < len(left) {
+			shown += fmt.Sprintf(" and %d more (shots_median inf in assess.csv)", len(left)-n)
+		}
+		p.Title.Text += "\nnot shown (no finite budget): " + shown
 	}
-	p.Legend.TextStyle.Font.Size = vg.Points(8)
-	p.Add(plotter.NewGrid())
 	return p, nil
 }
 
@@ -172,6 +197,7 @@ func costGainPlot(a *Assessment) (*plot.Plot, error) {
 // pipeline.
 func noiseBudgetPlot(a *Assessment, pipe string) (*plot.Plot, error) {
 	p := newPlot("Noise budget, pipeline "+pipe, "training vectors M", "p2 at fidelity 1/2")
+	p.Add(plotter.NewGrid()) // first, under the data
 	p.X.Scale, p.Y.Scale = plot.LogScale{}, plot.LogScale{}
 	p.X.Tick.Marker, p.Y.Tick.Marker = decadeTicks{}, decadeTicks{}
 	var dss []string
@@ -211,7 +237,6 @@ func noiseBudgetPlot(a *Assessment, pipe string) (*plot.Plot, error) {
 	decadeRange(&p.X.Min, &p.X.Max)
 	decadeRange(&p.Y.Min, &p.Y.Max)
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
-	p.Add(plotter.NewGrid())
 	return p, nil
 }
 
@@ -228,14 +253,30 @@ func decadeRange(lo, hi *float64) {
 }
 
 // decadeTicks marks a log axis at powers of ten, labelled at most seven
-// times (every k-th decade), written 1, 10, ..., 10000 and 1e5, 1e-3.
+// times (every k-th decade from the first within the range), written
+// 1, 10, ..., 10000 and 1e5, 1e-3.
 type decadeTicks struct{}
 
 func (decadeTicks) Ticks(min, max float64) []plot.Tick {
 	if !(min > 0) || !(max > min) {
 		return nil
 	}
-	lo, hi := int(math.Floor(math.Log10(min))), int(math.Ceil(math.Log10(max)))
+	// From the first decade within the range, so that it is labelled.
+	lo, hi := int(math.Ceil(math.Log10(min)-1e-9)), int(math.Floor(math.Log10(max)+1e-9))
+	if hi < lo {
+		// No power of ten within the range: 1, 2, 3 and 5 times one
+		// (neighbours at most a factor 2 apart, so a range of a factor
+		// 2 or more gets one).
+		var ticks []plot.Tick
+		for e := lo - 1; e <= lo; e++ {
+			for _, m := range []float64{1, 2, 3, 5} {
+				if v := m * math.Pow(10, float64(e)); v >= min*(1-1e-9) && v <= max*(1+1e-9) {
+					ticks = append(ticks, plot.Tick{Value: v, Label: tickLabel(v)})
+				}
+			}
+		}
+		return ticks
+	}
 	step := max1((hi-lo+6)/7, 1)
 	var ticks []plot.Tick
 	for e := lo; e <= hi; e++ {
@@ -271,6 +312,7 @@ func max1(a, b int) int {
 // vectors before normalisation come from pipeline before.
 func normBarsPlot(a *Assessment, before string) (*plot.Plot, error) {
 	p := newPlot("What unit norm throws away (vectors of pipeline "+before+")", "", "k-NN accuracy")
+	p.Add(plotter.NewGrid()) // first, under the data
 	var rows []AssessRow
 	seen := map[string]bool{}
 	for _, r := range a.Rows {
@@ -318,6 +360,5 @@ func normBarsPlot(a *Assessment, before string) (*plot.Plot, error) {
 	p.X.Tick.Label.XAlign, p.X.Tick.Label.YAlign = draw.XRight, draw.YTop
 	p.Y.Min, p.Y.Max = 0, 1
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
-	p.Add(plotter.NewGrid())
 	return p, nil
 }

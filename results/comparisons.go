@@ -34,9 +34,9 @@ func WriteComparisons(w io.Writer, rows []Comparison) error {
 		if c.DF > 0 {
 			df = strconv.Itoa(c.DF)
 		}
-		cw.Write([]string{c.Dataset, c.Pipeline, c.Model, c.RefPipeline, c.RefModel, c.Metric, c.Test,
+		cw.Write(append(csvTexts(c.Dataset, c.Pipeline, c.Model, c.RefPipeline, c.RefModel, c.Metric, c.Test),
 			Fmt(c.Diff), Fmt(c.Lo), Fmt(c.Hi), fmtStatCSV(c.Statistic), df, Fmt(c.P), Fmt(c.PAdj),
-			strconv.FormatFloat(c.Alpha, 'f', -1, 64), c.Verdict()})
+			strconv.FormatFloat(c.Alpha, 'f', -1, 64), c.Verdict()))
 	}
 	cw.Flush()
 	return cw.Error()

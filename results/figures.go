@@ -11,9 +11,7 @@ import (
 
 	"codeberg.org/go-pdf/fpdf"
 	"gonum.org/v1/plot"
-	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
-	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
@@ -28,34 +26,27 @@ var FigureFormats = []string{"svg", "pdf", "png"}
 const PNGDPI = 150
 
 // Figure is a plot to be written as Name.svg, Name.pdf and Name.png.
+//
+// Render lays it out itself around gonum/plot's drawing: a blank margin
+// of 6 pt; the title fitted to the width (shrunk by at most 15 %, else
+// wrapped) with 6 pt below it; the axis labels fitted likewise and
+// centred on the data area; with LegendRight a legend strip level with
+// the top of the data area (its font shrinks, down to 6 pt, when it would
+// take over 40 % of the width or not fit the height), else the legend in
+// the data area on a white box; and the x tick labels fitted: sweep axes
+// label every value used unless neighbours would collide (then every
+// s-th, from the first), category labels turn by 30°, 45°, 60° or 90° as
+// their spacing needs. No two text boxes overlap and none leaves the
+// canvas at the sizes the bench uses (TestFigureLayout).
 type Figure struct {
 	Name          string // path relative to the run directory, without extension
 	Caption       string // one line, plain text
 	Plot          *plot.Plot
 	Width, Height vg.Length
 	// LegendRight draws the plot's legend in a strip to the right of the
-	// plot instead of inside the data area.
+	// plot, level with the top of the data area, instead of inside the
+	// data area.
 	LegendRight bool
-}
-
-// draw draws the figure on c. With LegendRight it swaps the plot's legend
-// out while drawing the plot, so Render is not safe for concurrent use on
-// one figure.
-func (f Figure) draw(c draw.Canvas) {
-	if !f.LegendRight {
-		f.Plot.Draw(c)
-		return
-	}
-	leg := f.Plot.Legend
-	empty := plot.NewLegend()
-	f.Plot.Legend = empty
-	defer func() { f.Plot.Legend = leg }()
-	w := leg.Rectangle(c).Size().X + vg.Points(8)
-	f.Plot.Draw(draw.Crop(c, 0, -w, 0, 0))
-	side := draw.Crop(c, c.Size().X-w, 0, 0, -vg.Points(24))
-	leg.Top, leg.Left = true, true
-	leg.XOffs, leg.YOffs = 0, 0
-	leg.Draw(side)
 }
 
 // pdfDefaults makes PDF output reproducible: fpdf otherwise stamps the
@@ -67,9 +58,12 @@ var pdfDefaults sync.Once
 // pdfEpoch is the fixed creation date written into every PDF figure.
 var pdfEpoch = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
 
-// Render draws the figure in one of FigureFormats. SVG and PNG output is
-// byte-identical for identical figures; so is PDF, whose creation date is
-// fixed (pdfEpoch) and whose catalogues are sorted.
+// Render draws the figure in one of FigureFormats, laid out as described
+// at Figure. It never modifies f.Plot, so a figure may be rendered any
+// number of times, and from several goroutines at once.
+// SVG and PNG output is byte-identical for identical figures; so is PDF,
+// whose creation date is fixed (pdfEpoch) and whose catalogues are
+// sorted.
 func (f Figure) Render(format string) ([]byte, error) {
 	if f.Plot == nil {
 		return nil, errors.New("results: figure " + f.Name + " has no plot")
@@ -140,6 +134,10 @@ func newPlot(title, xlabel, ylabel string) *plot.Plot {
 	return p
 }
 
+// maxValueTicks is the largest number of distinct x values of a linear
+// sweep axis that get a tick each; more get gonum's default ticks.
+const maxValueTicks = 12
+
 // SweepLine is one line of a sweep figure: a metric against a parameter
 // (shot budget, noise strength), with its interval band and two
 // horizontal reference levels.
@@ -163,34 +161,50 @@ type Sweep struct {
 // unequal lengths, no points, or non-positive X on a log axis.
 func SweepPlot(s Sweep) (*plot.Plot, error) {
 	p := newPlot(s.Title, s.XLabel, s.YLabel)
-	if s.LogX {
-		p.X.Scale = plot.LogScale{}
-		p.X.Tick.Marker = plot.LogTicks{Prec: -1}
-	}
+	p.Add(plotter.NewGrid()) // first, under the data
 	xmin, xmax := math.Inf(1), math.Inf(-1)
+	var xs []float64
 	for _, l := range s.Lines {
 		n := len(l.X)
 		if n == 0 || len(l.Mean) != n || len(l.Lo) != n || len(l.Hi) != n {
 			return nil, fmt.Errorf("results: sweep line %q: want equal, non-empty X, Mean, Lo, Hi", l.Label)
 		}
 		for _, x := range l.X {
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				return nil, fmt.Errorf("results: sweep line %q: x = %v", l.Label, x)
+			}
 			if s.LogX && !(x > 0) {
 				return nil, fmt.Errorf("results: sweep line %q: x = %v on a log axis", l.Label, x)
 			}
 			xmin, xmax = math.Min(xmin, x), math.Max(xmax, x)
 		}
+		xs = append(xs, l.X...)
 	}
 	if len(s.Lines) == 0 {
 		return nil, errors.New("results: sweep has no lines")
 	}
-	if xmin == xmax {
-		// One point: give the reference lines some length.
-		if s.LogX {
-			xmin, xmax = xmin/2, xmax*2
-		} else {
-			xmin, xmax = xmin-0.5, xmax+0.5
+	// The axis runs a little beyond the first and last value (4 % of the
+	// range, in log units on a log axis), so that their markers and tick
+	// labels sit inside; the reference lines span it. Ticks: a labelled
+	// tick at every value used (on a linear axis while there are at most
+	// maxValueTicks distinct values).
+	ticks := newValueTicks(xs)
+	if s.LogX {
+		f := math.Max(math.Pow(xmax/xmin, 0.04), 1.15)
+		xmin, xmax = xmin/f, xmax*f
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = ticks
+	} else {
+		pad := 0.04 * (xmax - xmin)
+		if pad == 0 {
+			pad = math.Max(0.1*math.Abs(xmin), 0.5)
+		}
+		xmin, xmax = xmin-pad, xmax+pad
+		if len(ticks.vals) <= maxValueTicks {
+			p.X.Tick.Marker = ticks
 		}
 	}
+	p.X.Min, p.X.Max = xmin, xmax
 	for i, l := range s.Lines {
 		col := lineColor(i)
 		var band plotter.XYs
@@ -276,7 +290,6 @@ func SweepPlot(s Sweep) (*plot.Plot, error) {
 		p.Legend.Add(ref.label, th)
 	}
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
-	p.Add(plotter.NewGrid())
 	return p, nil
 }
 
@@ -294,6 +307,7 @@ type KernelCurve struct {
 // positive and finite.
 func KernelProfile(curves []KernelCurve) (*plot.Plot, error) {
 	p := newPlot("Kernel profile on unit vectors", "Euclidean distance d of the normalised vectors", "kernel value")
+	p.Add(plotter.NewGrid()) // first, under the data
 	kappa := plotter.NewFunction(func(d float64) float64 { return 1 - d*d/4 })
 	kappa.XMin, kappa.XMax, kappa.Samples = 0, 2, 201
 	kappa.LineStyle.Color = color.Black
@@ -321,7 +335,6 @@ func KernelProfile(curves []KernelCurve) (*plot.Plot, error) {
 	p.Legend.Top, p.Legend.Left = false, true
 	p.Legend.XOffs, p.Legend.YOffs = vg.Points(6), vg.Points(6)
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
-	p.Add(plotter.NewGrid())
 	return p, nil
 }
 
@@ -345,11 +358,15 @@ type Boxes struct {
 // error when a series does not have one value slice per group.
 func BoxPlot(b Boxes) (*plot.Plot, error) {
 	p := newPlot(b.Title, "", b.YLabel)
+	p.Add(plotter.NewGrid()) // first, under the data
 	ns := len(b.Series)
 	if ns == 0 || len(b.Groups) == 0 {
 		return nil, errors.New("results: box plot needs at least one group and one series")
 	}
-	width := vg.Points(math.Min(18, 120/float64(ns*len(b.Groups))+6))
+	// Box width: about 300 pt of the data area shared by all boxes (the
+	// figures are 7 to 8 inches wide), at most 18 pt, at least 2 pt, so
+	// that neighbouring boxes of a group do not overlap.
+	width := vg.Points(math.Max(2, math.Min(18, 300/float64(ns*len(b.Groups)))))
 	for si, s := range b.Series {
 		if len(s.Values) != len(b.Groups) {
 			return nil, fmt.Errorf("results: box series %q has %d groups, want %d", s.Label, len(s.Values), len(b.Groups))
@@ -381,134 +398,5 @@ func BoxPlot(b Boxes) (*plot.Plot, error) {
 	p.NominalX(b.Groups...)
 	p.X.Min, p.X.Max = -0.6, float64(len(b.Groups))-0.4
 	p.Legend.TextStyle.Font.Size = vg.Points(8)
-	p.Add(plotter.NewGrid())
 	return p, nil
-}
-
-// CDWidth is the width of a critical-difference diagram.
-const CDWidth = 6 * vg.Inch
-
-// CDDiagram draws the critical-difference diagram of a rank table
-// (Demšar, JMLR 7:1, 2006, section on post-hoc tests): models on an axis
-// of average rank (rank 1, the best, on the left), the Nemenyi critical
-// difference as a bar above the axis, and thick bars joining the models of
-// each group not significantly different (RankGroups). It also returns
-// the height that fits the drawing at the given width.
-func CDDiagram(t RankTable, title string) (*plot.Plot, vg.Length, error) {
-	k := len(t.Models)
-	if k < 2 || len(t.AvgRanks) != k {
-		return nil, 0, fmt.Errorf("results: CD diagram needs at least two models with ranks, got %d models and %d ranks", k, len(t.AvgRanks))
-	}
-	for _, r := range t.AvgRanks {
-		if math.IsNaN(r) || r < 1 || r > float64(k) {
-			return nil, 0, fmt.Errorf("results: CD diagram: average rank %v outside [1, %d]", r, k)
-		}
-	}
-	p := newPlot(title, "", "")
-	p.HideAxes()
-	cd := &cdPlotter{t: t, groups: t.Groups()}
-	p.Add(cd)
-	rows := (k + 1) / 2
-	// Data area plus the title and the plot's padding.
-	h := vg.Points(cdTop + cdGroupGap + cdGroupStep*float64(len(cd.groups)) + 8 + cdRowStep*float64(rows-1) + 12 + 30)
-	return p, h, nil
-}
-
-// Vertical layout of the CD diagram, in points from the top of the data
-// area.
-const (
-	cdTop       = 34.0 // axis line
-	cdGroupGap  = 9.0  // axis to first group bar
-	cdGroupStep = 6.0  // between group bars
-	cdRowStep   = 15.0 // between label rows
-)
-
-type cdPlotter struct {
-	t      RankTable
-	groups [][]int
-}
-
-func (d *cdPlotter) Plot(c draw.Canvas, _ *plot.Plot) {
-	t := d.t
-	k := len(t.Models)
-	sty := text.Style{Color: color.Black, Font: font.From(plot.DefaultFont, 9), Handler: plot.DefaultTextHandler}
-	small := sty
-	small.Font.Size = vg.Points(8)
-	order := rankOrder(t.AvgRanks)
-	nLeft := (k + 1) / 2
-	label := func(j int) string { return fmt.Sprintf("%s  %.2f", t.Models[j], t.AvgRanks[j]) }
-	var wl, wr vg.Length
-	for i, j := range order {
-		w := sty.Width(label(j))
-		if i < nLeft {
-			wl = max(wl, w)
-		} else {
-			wr = max(wr, w)
-		}
-	}
-	pad := vg.Points(12)
-	x0 := c.Min.X + wl + pad
-	x1 := c.Max.X - wr - pad
-	if x1-x0 < vg.Points(60) {
-		// Long names: give the axis at least some room.
-		mid := (c.Min.X + c.Max.X) / 2
-		x0, x1 = mid-vg.Points(30), mid+vg.Points(30)
-	}
-	xr := func(r float64) vg.Length { return x0 + vg.Length((r-1)/float64(k-1))*(x1-x0) }
-	top := c.Max.Y
-	axisY := top - vg.Points(cdTop)
-	thin := draw.LineStyle{Color: color.Black, Width: vg.Points(0.8)}
-	c.StrokeLine2(thin, x0, axisY, x1, axisY)
-	tickSty := small
-	tickSty.XAlign, tickSty.YAlign = text.XCenter, text.YBottom
-	for r := 1; r <= k; r++ {
-		x := xr(float64(r))
-		c.StrokeLine2(thin, x, axisY, x, axisY+vg.Points(4))
-		c.FillText(tickSty, vg.Point{X: x, Y: axisY + vg.Points(6)}, fmt.Sprint(r))
-		if r < k {
-			xm := xr(float64(r) + 0.5)
-			c.StrokeLine2(thin, xm, axisY, xm, axisY+vg.Points(2))
-		}
-	}
-	// Critical difference bar, from rank 1.
-	if t.CD > 0 && !math.IsInf(t.CD, 0) {
-		cdY := top - vg.Points(6)
-		xe := xr(math.Min(1+t.CD, float64(k)))
-		bar := draw.LineStyle{Color: color.Black, Width: vg.Points(1.2)}
-		c.StrokeLine2(bar, x0, cdY, xe, cdY)
-		c.StrokeLine2(thin, x0, cdY-vg.Points(3), x0, cdY+vg.Points(3))
-		c.StrokeLine2(thin, xe, cdY-vg.Points(3), xe, cdY+vg.Points(3))
-		cs := small
-		cs.XAlign, cs.YAlign = text.XLeft, text.YCenter
-		c.FillText(cs, vg.Point{X: xe + vg.Points(4), Y: cdY}, fmt.Sprintf("CD = %.3f (α = %s)", t.CD, fmtAlpha(t.Alpha)))
-	}
-	// Groups of models not significantly different.
-	gsty := draw.LineStyle{Color: color.Black, Width: vg.Points(2.6)}
-	for gi, g := range d.groups {
-		y := axisY - vg.Points(cdGroupGap+cdGroupStep*float64(gi))
-		lo, hi := t.AvgRanks[g[0]], t.AvgRanks[g[len(g)-1]]
-		c.StrokeLine2(gsty, xr(lo)-vg.Points(3), y, xr(hi)+vg.Points(3), y)
-	}
-	// Models: best half to the left, worst half to the right.
-	rowsTop := axisY - vg.Points(cdGroupGap+cdGroupStep*float64(len(d.groups))+8)
-	ls := draw.LineStyle{Color: color.NRGBA{0x33, 0x33, 0x33, 0xFF}, Width: vg.Points(0.7)}
-	for i, j := range order {
-		x := xr(t.AvgRanks[j])
-		var row int
-		lsty := sty
-		lsty.YAlign = text.YCenter
-		var xEnd, xText vg.Length
-		if i < nLeft {
-			row = i
-			xEnd, xText = x0-vg.Points(6), x0-vg.Points(8)
-			lsty.XAlign = text.XRight
-		} else {
-			row = k - 1 - i
-			xEnd, xText = x1+vg.Points(6), x1+vg.Points(8)
-			lsty.XAlign = text.XLeft
-		}
-		y := rowsTop - vg.Points(cdRowStep*float64(row))
-		c.StrokeLines(ls, []vg.Point{{X: x, Y: axisY}, {X: x, Y: y}, {X: xEnd, Y: y}})
-		c.FillText(lsty, vg.Point{X: xText, Y: y}, label(j))
-	}
 }

@@ -6,9 +6,11 @@ import (
 	"image/png"
 	"io"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 
 	"gonum.org/v1/plot/vg"
@@ -55,6 +57,27 @@ func buildTestFigures() ([]Figure, error) {
 		return nil, err
 	}
 	figs = append(figs, Figure{Name: "boxes", Plot: bp, Width: 7 * vg.Inch, Height: 4 * vg.Inch, LegendRight: true})
+	// Crowded cases of the layout test: a CD diagram of 14 models with
+	// wrapped names, and two figures of an assessment (the cost-gain map
+	// with its placed labels, the p_acc boxes with turned category labels).
+	rng := rand.New(rand.NewPCG(14, 2))
+	ranks := make([]float64, 14)
+	for i := range ranks {
+		ranks[i] = 1 + 13*rng.Float64()
+	}
+	cd14, h14, err := CDDiagram(RankTable{Models: modelNames(14, true), AvgRanks: ranks, CD: 4.9, Alpha: 0.05}, "ranks of 14")
+	if err != nil {
+		return nil, err
+	}
+	figs = append(figs, Figure{Name: "cd14", Plot: cd14, Width: CDWidth, Height: h14})
+	as, err := AssessFigures(assessCase(rng, 11, true), func(s string) string { return s })
+	if err != nil {
+		return nil, err
+	}
+	for _, f := range as[:2] { // cost-gain and p_acc
+		f.Name = strings.TrimPrefix(f.Name, "figures/")
+		figs = append(figs, f)
+	}
 	return figs, nil
 }
 
@@ -169,5 +192,34 @@ func BenchmarkRender(b *testing.B) {
 			}
 			b.ReportMetric(float64(b.Elapsed().Seconds())/float64(b.N*len(figs))*1e3, "ms/figure")
 		})
+	}
+}
+
+// TestRenderConcurrent renders each figure from several goroutines at
+// once (the bench layer renders figures concurrently); under -race it
+// checks that the layout does not write to the shared plot, and the
+// bytes must be those of a lone rendering.
+func TestRenderConcurrent(t *testing.T) {
+	figs := testFigures(t)
+	for _, f := range figs {
+		want, err := f.Render("svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := make([][]byte, 4)
+		var wg sync.WaitGroup
+		for i := range got {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				got[i], _ = f.Render("svg")
+			}()
+		}
+		wg.Wait()
+		for i := range got {
+			if !bytes.Equal(got[i], want) {
+				t.Errorf("%s: concurrent rendering %d differs", f.Name, i)
+			}
+		}
 	}
 }

@@ -1,11 +1,9 @@
 package results
 
 import (
-	"bytes"
 	"encoding/json"
 	"math"
 	"os"
-	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -68,33 +66,5 @@ func TestFmt(t *testing.T) {
 		if got := Fmt(c.v); got != c.want {
 			t.Errorf("Fmt(%v) = %q, want %q", c.v, got, c.want)
 		}
-	}
-}
-
-func TestSummaryTeX(t *testing.T) {
-	rows := []Summary{
-		{Dataset: "iris_2", Pipeline: "std+l2", Model: "knn-k5", Metrics: []MetricSummary{{0.95, 0.02, 0.9, 1}, {0.95, 0.02, 0.9, 1}, {0.94, 0.03, 0.9, 1}}},
-		{Dataset: "iris_2", Pipeline: "std+l2", Model: "svm-rbf-C1", Metrics: []MetricSummary{{0.97, 0.01, 0.9, 1}, {0.93, 0.01, 0.9, 1}, {0.94, 0.03, 0.9, 1}}},
-		{Dataset: "wine&co", Pipeline: "raw", Model: "centroid", Metrics: []MetricSummary{{0.7, math.NaN(), math.NaN(), math.NaN()}, {math.NaN(), 0, 0, 0}, {0.5, 0.1, 0, 1}}},
-	}
-	var b bytes.Buffer
-	if err := WriteSummaryTeX(&b, rows, TeXOptions{Caption: "100% of 5_folds"}); err != nil {
-		t.Fatal(err)
-	}
-	s := b.String()
-	for _, want := range []string{
-		`\toprule`, `\midrule`, `\bottomrule`,
-		`iris\_2`, `wine\&co`, `100\% of 5\_folds`,
-		`$\mathbf{0.970} \pm \mathbf{0.010}$`, // best accuracy of iris_2
-		`$0.950 \pm 0.020$`,
-		`$\mathbf{0.940} \pm \mathbf{0.030}$`, // macro F1 tie: both bold
-		`$\mathbf{0.700}$`, " & --",
-	} {
-		if !strings.Contains(s, want) {
-			t.Errorf("LaTeX lacks %q:\n%s", want, s)
-		}
-	}
-	if strings.Count(s, `\mathbf{0.940}`) != 2 {
-		t.Errorf("tied best cells should both be bold:\n%s", s)
 	}
 }

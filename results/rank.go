@@ -4,12 +4,14 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"strings"
 	"text/tabwriter"
 )
 
 // WriteRankText writes a rank table for a terminal: the models by average
-// rank, Friedman's chi-square, the Iman–Davenport F with its p-value and
+// rank, Friedman's chi-square (Demšar's form and tie-corrected), the
+// Iman–Davenport F (from the tie-corrected chi-square) with its p-value and
 // decision, the Nemenyi critical difference, the groups of models not
 // significantly different, and the warnings.
 func WriteRankText(w io.Writer, t RankTable) error {
@@ -21,7 +23,8 @@ func WriteRankText(w io.Writer, t RankTable) error {
 		fmt.Fprintf(tw, "%d\t%s\t%.3f\n", i+1, t.Models[j], t.AvgRanks[j])
 	}
 	tw.Flush()
-	fmt.Fprintf(&b, "\nFriedman chi-square     %.3f  (df %d, %s)\n", t.ChiSq, t.DF, pIs(t.ChiSqP))
+	fmt.Fprintf(&b, "\nFriedman chi-square     %.3f  (Demšar's form, no tie correction; df %d, %s)\n", t.ChiSq, t.DF, pIs(t.ChiSqP))
+	fmt.Fprintf(&b, "  tie-corrected         %s  (df %d, %s; the F below uses it)\n", fmtStat(t.ChiSqTieCorrected), t.DF, pIs(t.ChiSqTieCorrectedP))
 	verdict := "the models do not all perform alike"
 	if !t.Reject {
 		verdict = "no evidence that the models differ"
@@ -64,6 +67,8 @@ func WriteRankText(w io.Writer, t RankTable) error {
 type RankJSON struct {
 	AvgRanks           map[string]float64 `json:"avg_ranks"`
 	FriedmanChi2       float64            `json:"friedman_chi2"`
+	FriedmanChi2Tied   *float64           `json:"friedman_chi2_tie_corrected"`
+	PValueChi2Tied     *float64           `json:"p_value_chi2_tie_corrected"`
 	ImanDavenportF     float64            `json:"iman_davenport_f"`
 	PValue             float64            `json:"p_value"`
 	CriticalDifference float64            `json:"critical_difference"`
@@ -90,6 +95,11 @@ func NewRankJSON(t RankTable) RankJSON {
 	}
 	if j.Warnings == nil {
 		j.Warnings = []string{}
+	}
+	// NaN (every dataset ties all models) is null.
+	if !math.IsNaN(t.ChiSqTieCorrected) {
+		x, p := t.ChiSqTieCorrected, t.ChiSqTieCorrectedP
+		j.FriedmanChi2Tied, j.PValueChi2Tied = &x, &p
 	}
 	for i, m := range t.Models {
 		j.AvgRanks[m] = t.AvgRanks[i]

@@ -113,12 +113,23 @@ func (r row) errAt(col string, format string, args ...any) error {
 	return &ParseError{File: r.t.file, Line: line, Column: column, Err: fmt.Errorf("column %s: "+format, append([]any{col}, args...)...)}
 }
 
+// str returns a required text cell, undoing the writers' formula
+// neutralisation (UnescapeCSVCell).
 func (r row) str(col string) (string, error) {
 	s := r.rec[r.t.col[col]]
 	if s == "" {
 		return "", r.errAt(col, "empty value")
 	}
-	return s, nil
+	return UnescapeCSVCell(s), nil
+}
+
+// text returns an optional text cell ("" when the column is absent),
+// unescaped.
+func (r row) text(col string) string {
+	if !r.has(col) {
+		return ""
+	}
+	return UnescapeCSVCell(r.rec[r.t.col[col]])
 }
 
 func (r row) integer(col string) (int, error) {
@@ -211,8 +222,10 @@ func ReadFolds(r io.Reader, file string) ([]Fold, error) {
 	})
 }
 
-// ReadPredictions reads predictions.csv; p_acc is optional (NaN when
-// absent or empty), the correct column is ignored (it is derived).
+// ReadPredictions reads predictions.csv; p_acc and unused are optional
+// (NaN when absent or empty), so are shots (0), probs (nil; "nan" entries
+// are NaN) and exact_predicted (""); the correct column is ignored (it is
+// derived).
 func ReadPredictions(r io.Reader, file string) ([]Prediction, error) {
 	req := []string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted"}
 	return readRows(r, file, req, func(rw row) (Prediction, error) {
@@ -241,6 +254,33 @@ func ReadPredictions(r io.Reader, file string) ([]Prediction, error) {
 		if p.PAcc, err = rw.number("p_acc"); err != nil {
 			return p, err
 		}
+		if p.Unused, err = rw.number("unused"); err != nil {
+			return p, err
+		}
+		if rw.has("shots") && strings.TrimSpace(rw.rec[rw.t.col["shots"]]) != "" {
+			if p.Shots, err = rw.integer("shots"); err != nil {
+				return p, err
+			}
+			if p.Shots < 0 {
+				return p, rw.errAt("shots", "negative value %d", p.Shots)
+			}
+		}
+		if rw.has("probs") {
+			if s := strings.TrimSpace(rw.rec[rw.t.col["probs"]]); s != "" {
+				for _, f := range strings.Split(s, ";") {
+					if f == "nan" {
+						p.Probs = append(p.Probs, math.NaN())
+						continue
+					}
+					v, err := strconv.ParseFloat(f, 64)
+					if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+						return p, rw.errAt("probs", "want numbers (or nan) separated by ';', got %q", f)
+					}
+					p.Probs = append(p.Probs, v)
+				}
+			}
+		}
+		p.Exact = rw.text("exact_predicted")
 		return p, nil
 	})
 }
@@ -263,7 +303,7 @@ func ReadSummary(r io.Reader, file string) ([]Summary, error) {
 		if s.Folds < 1 {
 			return s, rw.errAt("n_scores", "want at least 1, got %d", s.Folds)
 		}
-		s.Interval = rw.rec[rw.t.col["interval"]]
+		s.Interval = rw.text("interval")
 		for _, m := range MetricNames {
 			var ms MetricSummary
 			for _, c := range []struct {
@@ -340,7 +380,7 @@ type Run struct {
 
 // ReadRun reads the run directory dir: manifest.json, summary.csv and
 // folds.csv are required, predictions.csv is optional (a stored baseline
-// may omit it; paired tests then rely on the manifests, see bench.Compare).
+// may omit it; paired tests then rely on the manifests, see bench/report.Compare).
 // Errors name the file and, for malformed content, the line.
 func ReadRun(dir string) (*Run, error) {
 	st, err := os.Stat(dir)

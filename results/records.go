@@ -22,7 +22,12 @@ type Prediction struct {
 	PAcc                     float64   // post-selection probability; NaN when the model has none
 	Shots                    int       // accepted shots behind PAcc and Probs; 0 with exact probabilities or no such model
 	Probs                    []float64 // P(k | acc) in the dataset's class order; nil when the model has none
-	Exact                    string    // the exact-mode decision of an interference model run another way; "" otherwise
+	// Unused is the share of the accepted probability (or shots) on class
+	// register values that name no class (noise can reach them): Probs
+	// are not renormalised, so sum(Probs) + Unused = 1. NaN when the
+	// model reports none.
+	Unused float64
+	Exact  string // the exact-mode decision of an interference model run another way; "" otherwise
 }
 
 // Fold is one row of folds.csv.
@@ -76,7 +81,7 @@ func Fmt(v float64) string {
 // WritePredictions writes predictions.csv.
 func WritePredictions(w io.Writer, rows []Prediction) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "exact_predicted"})
+	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "unused", "exact_predicted"})
 	for _, r := range rows {
 		correct := "0"
 		if r.Label == r.Predicted {
@@ -93,8 +98,9 @@ func WritePredictions(w io.Writer, rows []Prediction) error {
 				probs[i] = "nan"
 			}
 		}
-		cw.Write([]string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.Row), r.Label, r.Predicted, correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), r.Exact})
+		name := csvTexts(r.Dataset, r.Pipeline, r.Model, r.Label, r.Predicted, r.Exact)
+		cw.Write([]string{name[0], name[1], name[2], strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), Fmt(r.Unused), name[5]})
 	}
 	cw.Flush()
 	return cw.Error()
@@ -108,8 +114,8 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 	head = append(head, "mean_p_acc", "mean_shots", "exact_disagreement")
 	cw.Write(head)
 	for _, r := range rows {
-		rec := []string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.NTrain), strconv.Itoa(r.NTest)}
+		rec := append(csvTexts(r.Dataset, r.Pipeline, r.Model), strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.Itoa(r.NTrain), strconv.Itoa(r.NTest))
 		for _, v := range r.Scores.Values() {
 			rec = append(rec, Fmt(v))
 		}
@@ -130,7 +136,7 @@ func WriteSummary(w io.Writer, rows []Summary) error {
 	head = append(head, "mean_p_acc")
 	cw.Write(head)
 	for _, r := range rows {
-		rec := []string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Folds), r.Interval}
+		rec := csvTexts(r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Folds), r.Interval)
 		if len(r.Metrics) != len(MetricNames) {
 			return fmt.Errorf("results: summary row %s/%s/%s has %d metrics, want %d", r.Dataset, r.Pipeline, r.Model, len(r.Metrics), len(MetricNames))
 		}
@@ -150,8 +156,8 @@ func WriteTimings(w io.Writer, rows []Timing) error {
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "seconds"})
 	for _, r := range rows {
-		cw.Write([]string{r.Dataset, r.Pipeline, r.Model, strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.FormatFloat(r.Seconds, 'f', 6, 64)})
+		cw.Write(append(csvTexts(r.Dataset, r.Pipeline, r.Model), strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.FormatFloat(r.Seconds, 'f', 6, 64)))
 	}
 	cw.Flush()
 	return cw.Error()

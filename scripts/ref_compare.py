@@ -1,7 +1,7 @@
 #!/usr/bin/python3
-"""Reference values for bench/compare.go (WelchT, TwoProportions).
+"""Reference values for bench/report/compare.go (WelchT, TwoProportions).
 
-Writes bench/testdata/ref_compare.json. Run with Debian's /usr/bin/python3
+Writes bench/report/testdata/ref_compare.json. Run with Debian's /usr/bin/python3
 (scipy 1.10.1):  /usr/bin/python3 scripts/ref_compare.py
 
 - Welch: scipy.stats.ttest_ind_from_stats(m1, se1*sqrt(n1), n1, m2,
@@ -52,7 +52,7 @@ for k1, n1, k2, n2, alpha in cases:
 
 out = dict(source="scripts/ref_compare.py with scipy %s, numpy %s" % (scipy.__version__, np.__version__),
            welch=welch, two_proportions=props)
-path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "bench", "testdata", "ref_compare.json")
+path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "bench", "report", "testdata", "ref_compare.json")
 with open(path, "w") as f:
     json.dump(out, f, indent=1)
     f.write("\n")

@@ -4,7 +4,7 @@ fringe's runner (bench), computed with scikit-learn and numpy.
 
 Run with the Debian interpreter (python3-sklearn 1.2.1, numpy 1.24.2):
 
-    /usr/bin/python3 scripts/ref_iris_loo.py [bench/testdata/iris_loo_reference.csv]
+    /usr/bin/python3 scripts/ref_iris_loo.py [bench/runner/testdata/iris_loo_reference.csv]
 
 Data: sklearn.datasets.load_iris() (the iris.csv shipped with scikit-learn,
 the file fringe embeds), all 150 rows, classes setosa, versicolor, virginica.
@@ -175,7 +175,7 @@ def interference(x_train, y_train, x, n_class, balanced):
 
 
 def main():
-    out_path = sys.argv[1] if len(sys.argv) > 1 else "bench/testdata/iris_loo_reference.csv"
+    out_path = sys.argv[1] if len(sys.argv) > 1 else "bench/runner/testdata/iris_loo_reference.csv"
     iris = load_iris()
     x_all, y_all, names = iris.data, iris.target, list(iris.target_names)
     n, n_class = len(y_all), len(names)

@@ -7,7 +7,7 @@ together with the library versions and the exact call behind every number.
 The Go tests read that fixture; they never run Python.
 
 Run from the repository root with the Debian interpreter (numpy 1.24.2,
-scipy 1.10.1):
+scipy 1.10.1, scikit-learn 1.2.1 for the Wine folds):
 
     /usr/bin/python3 scripts/ref_stats.py
 
@@ -23,7 +23,14 @@ from pathlib import Path
 
 import numpy as np
 import scipy
+import sklearn
 from scipy import stats
+from sklearn.datasets import load_wine
+from sklearn.model_selection import StratifiedKFold
+from sklearn.naive_bayes import GaussianNB
+from sklearn.neighbors import KNeighborsClassifier
+from sklearn.pipeline import make_pipeline
+from sklearn.preprocessing import StandardScaler
 
 OUT = Path(__file__).resolve().parent.parent / "bench" / "stats" / "testdata" / "ref_stats.json"
 
@@ -59,6 +66,51 @@ def corrected_t_case(a, b, n_train, n_test):
         "call": "d = a - b; t = d.mean()/sqrt((1/n + n_test/n_train)*d.var(ddof=1)); "
                 "p = 2*scipy.stats.t.sf(abs(t), n - 1)",
         "t": t, "df": n - 1, "p": 2 * stats.t.sf(abs(t), n - 1),
+    }
+
+
+def corrected_t_uneven_case():
+    """Corrected paired t on the uneven folds of Wine (178 rows, 10 folds).
+
+    Fold scores of two scikit-learn classifiers on the splits of
+    StratifiedKFold; the test sizes are 17 or 18, so the mean sizes 17.8
+    and 160.2 are not whole numbers. The statistic uses their exact ratio
+    (Nadeau & Bengio define n2/n1 on the sizes); the rounded sizes 18/160
+    are recorded for contrast.
+    """
+    X, y = load_wine(return_X_y=True)
+    cv = StratifiedKFold(n_splits=10, shuffle=True, random_state=178)
+    a, b, n_train, n_test = [], [], [], []
+    for tr, te in cv.split(X, y):
+        m1 = make_pipeline(StandardScaler(), KNeighborsClassifier(n_neighbors=5)).fit(X[tr], y[tr])
+        m2 = GaussianNB().fit(X[tr], y[tr])
+        a.append(float(np.mean(m1.predict(X[te]) == y[te])))
+        b.append(float(np.mean(m2.predict(X[te]) == y[te])))
+        n_train.append(len(tr))
+        n_test.append(len(te))
+    d = np.asarray(a) - np.asarray(b)
+    n = d.size
+    mtr, mte = float(np.mean(n_train)), float(np.mean(n_test))
+    tq = stats.t.ppf(0.975, n - 1)
+
+    def t_of(ratio):
+        se = np.sqrt((1 / n + ratio) * d.var(ddof=1))
+        return d.mean() / se, se
+
+    t, se = t_of(mte / mtr)
+    tr_, _ = t_of(round(mte) / round(mtr))
+    return {
+        "dataset": "wine: sklearn.datasets.load_wine(return_X_y=True), 178 rows",
+        "splits": "sklearn.model_selection.StratifiedKFold(n_splits=10, shuffle=True, random_state=178)",
+        "models": "a: make_pipeline(StandardScaler(), KNeighborsClassifier(n_neighbors=5)); b: GaussianNB(); "
+                  "fold accuracy mean(predict(X[test]) == y[test])",
+        "n_train": n_train, "n_test": n_test, "a": a, "b": b,
+        "mean_train": mtr, "mean_test": mte,
+        "call": "d = a - b; t = d.mean()/sqrt((1/n + mean(n_test)/mean(n_train))*d.var(ddof=1)); "
+                "p = 2*scipy.stats.t.sf(abs(t), n - 1); interval d.mean() -/+ scipy.stats.t.ppf(0.975, n - 1)*se",
+        "t": t, "df": n - 1, "p": 2 * stats.t.sf(abs(t), n - 1),
+        "lo": d.mean() - tq * se, "hi": d.mean() + tq * se,
+        "t_rounded": tr_, "p_rounded": 2 * stats.t.sf(abs(tr_), n - 1),
     }
 
 
@@ -115,17 +167,26 @@ def friedman_case(name, table, alphas=(0.05, 0.10)):
     ranks = np.array([stats.rankdata(-row) for row in data])  # rank 1 = highest, ties averaged
     avg = ranks.mean(axis=0)
     chi2 = 12 * n / (k * (k + 1)) * (np.sum(avg ** 2) - k * (k + 1) ** 2 / 4)
-    F = (n - 1) * chi2 / (n * (k - 1) - chi2)
+    chi2c = res.statistic
+    F = (n - 1) * chi2c / (n * (k - 1) - chi2c)
+    # Two-way analysis of variance on the (average) ranks: models are the
+    # treatments, data sets the blocks (whose rank sums are all equal).
+    centred = ranks - (k + 1) / 2
+    ss_models = n * np.sum((avg - (k + 1) / 2) ** 2)
+    ss_total = np.sum(centred ** 2)
+    F_anova = (n - 1) * ss_models / (ss_total - ss_models)
     return {
         "name": name, "scores": table,
-        "call": "scipy.stats.friedmanchisquare(*np.asarray(scores).T); "
+        "call": "res = scipy.stats.friedmanchisquare(*np.asarray(scores).T); "
                 "ranks = [scipy.stats.rankdata(-row) for row in scores]; avg = ranks.mean(axis=0); "
-                "chi2 = 12n/(k(k+1))*(sum(avg**2) - k(k+1)**2/4); F = (n-1)chi2/(n(k-1) - chi2); "
+                "chi2 = 12n/(k(k+1))*(sum(avg**2) - k(k+1)**2/4); "
+                "F = (n-1)*res.statistic/(n(k-1) - res.statistic); "
                 "p = scipy.stats.f.sf(F, k-1, (k-1)(n-1)); "
+                "F_anova_ranks = (n-1)*SS_models/(SS_total - SS_models) on the centred ranks; "
                 "cd = scipy.stats.studentized_range.ppf(1-alpha, k, np.inf)/np.sqrt(2)*np.sqrt(k(k+1)/(6n))",
-        "chi2_tie_corrected": res.statistic, "p_chi2_tie_corrected": res.pvalue,
+        "chi2_tie_corrected": chi2c, "p_chi2_tie_corrected": res.pvalue,
         "avg_ranks": avg.tolist(), "chi2": chi2, "p_chi2": stats.chi2.sf(chi2, k - 1),
-        "F": F, "p": stats.f.sf(F, k - 1, (k - 1) * (n - 1)),
+        "F": F, "p": stats.f.sf(F, k - 1, (k - 1) * (n - 1)), "F_anova_ranks": F_anova,
         "cd": [{"alpha": al, "cd": stats.studentized_range.ppf(1 - al, k, np.inf) / np.sqrt(2)
                 * np.sqrt(k * (k + 1) / (6 * n))} for al in alphas],
     }
@@ -138,6 +199,7 @@ def main():
             "python": platform.python_version(),
             "numpy": np.__version__,
             "scipy": scipy.__version__,
+            "sklearn": sklearn.__version__,
         },
     }
 
@@ -160,6 +222,7 @@ def main():
         corrected_t_case(a, b, 180, 20),
         corrected_t_case(a[:10], b[:10], 180, 20),
     ]
+    out["corrected_t_uneven"] = corrected_t_uneven_case()
 
     # 5x2cv.
     rng = np.random.default_rng(19981895)

@@ -22,6 +22,15 @@
 //     to [1, n_c - 1], into Test. A class with a single member is an error
 //     (ErrTooFewPerClass).
 //
+// Learning curves: a Subsampler (NewSubsampler, Take; Subsample in one
+// call) draws class-stratified subsamples of a training part of a given
+// Size (a fraction in (0, 1] or a count). Class counts start with one row
+// per class present (largest class first) and then follow the quota
+// method of Balinski & Young (at most the ceiling of each quota m n_k / n,
+// and never decreasing as m grows); each class's positions are shuffled
+// once, so the subsamples of all sizes are nested (prefixes of one order
+// per class). Bad sizes wrap ErrSize.
+//
 // Determinism: the splits are a function of the labels, the parameters and
 // the state of the *rand.Rand passed in; the same generator state gives the
 // same splits. Stratified and Holdout draw from it exactly once per non-empty
@@ -32,6 +41,7 @@
 // caller sets it.
 //
 // Errors wrap ErrFolds (k < 2 or k > n), ErrFraction (testFrac outside
-// (0, 1)), ErrTooFewPerClass, or ErrLabel (a label outside [0, nClass));
+// (0, 1)), ErrTooFewPerClass, ErrSize (a subsample size outside its range)
+// or ErrLabel (a label outside [0, nClass));
 // none of the functions panics on bad arguments.
 package cv

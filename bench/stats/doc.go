@@ -8,11 +8,15 @@
 // One model on one data set (scores of the r×k folds of repeated k-fold
 // cross-validation, or of any resampling scheme):
 //
-//   - CorrectedInterval: the corrected resampled t interval of Nadeau and
-//     Bengio (Machine Learning 52:239, 2003) with the variance factor
-//     1/(r·k) + n_test/n_train of Bouckaert and Frank (PAKDD 2004):
+//   - CorrectedIntervalSizes: the corrected resampled t interval of
+//     Nadeau and Bengio (Machine Learning 52:239, 2003) with the variance
+//     factor 1/(r·k) + n_test/n_train of Bouckaert and Frank (PAKDD 2004):
 //     Var(mean) = (1/n + n_test/n_train)·s², s² the sample variance
 //     (n−1 denominator), and a t quantile with n−1 degrees of freedom.
+//     n_test/n_train is the ratio of the mean split sizes (Sizes,
+//     MeanSizes), never of rounded means: with uneven folds (Wine, 178
+//     rows, 10 folds of 17 or 18) it is 17.8/160.2 = 1/9, not 18/160.
+//     CorrectedInterval takes whole sizes, for splits of equal size.
 //   - NaiveInterval: the textbook t interval, Var(mean) = s²/n, which
 //     ignores the overlap of training sets and is too narrow; kept for
 //     comparison only.
@@ -21,8 +25,9 @@
 //
 // Two models on one data set:
 //
-//   - CorrectedPairedT: the corrected resampled t test on paired fold
-//     scores (same variance factor as CorrectedInterval), two-sided.
+//   - CorrectedPairedTSizes (CorrectedPairedT with whole sizes): the
+//     corrected resampled t test on paired fold scores (same variance
+//     factor as CorrectedIntervalSizes), two-sided.
 //   - FiveByTwoCV: Dietterich's 5×2cv paired t test (Neural Computation
 //     10:1895, 1998), t = p₁⁽¹⁾ / sqrt(Σ s_i² / 5), 5 degrees of freedom.
 //   - McNemar: McNemar's test on the discordant counts b and c with
@@ -32,8 +37,11 @@
 //
 //   - Wilcoxon: the signed-rank test with Demšar's handling of zero
 //     differences, a normal approximation and an exact p-value.
-//   - Friedman: average ranks, Friedman's chi-square, the Iman–Davenport F
-//     and the Nemenyi critical difference.
+//   - Friedman: average ranks, Friedman's chi-square in Demšar's form
+//     (no tie correction) and tie-corrected (equal to
+//     scipy.stats.friedmanchisquare), the Iman–Davenport F computed from
+//     the tie-corrected statistic (the decision is taken on its p-value;
+//     without ties both forms agree) and the Nemenyi critical difference.
 //   - NemenyiQ and NemenyiCD: the Nemenyi critical value and critical
 //     difference, computed from the distribution of the range of k
 //     standard normals (StudentizedRangeCDF, StudentizedRangeQuantile),
@@ -63,10 +71,11 @@
 //
 // With one test instance per split (n_test = 1) the per-split scores of an
 // accuracy are 0 or 1 and the corrected t interval is not meaningful.
-// CorrectedInterval and CorrectedPairedT still apply their formula — they
-// never switch method on their own — and add a warning; the caller
-// chooses the replacement: Wilson on the pooled count of correct
-// predictions for one model, McNemar on the pooled predictions for two.
+// CorrectedIntervalSizes and CorrectedPairedTSizes still apply their
+// formula — they never switch method on their own — and add a warning;
+// the caller chooses the replacement: Wilson on the pooled count of
+// correct predictions for one model, McNemar on the pooled predictions
+// for two.
 //
 // # Errors, NaN and panics
 //

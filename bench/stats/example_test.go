@@ -39,13 +39,34 @@ func ExampleFriedman() {
 	}
 	r, _ := stats.Friedman(scores, 0.05)
 	fmt.Printf("average ranks %.3f\n", r.AvgRanks)
-	fmt.Printf("chi2 %.3f  F %.3f  p %.4f  CD %.3f\n", r.ChiSq, r.ImanDavenportF, r.P, r.CD)
+	fmt.Printf("chi2 %.3f (Demšar's form), %.3f (tie-corrected)\n", r.ChiSq, r.ChiSqTieCorrected)
+	fmt.Printf("F %.3f  p %.4f  CD %.3f\n", r.ImanDavenportF, r.P, r.CD)
 	for _, w := range r.Warnings {
 		fmt.Println("warning:", w)
 	}
 	// Output:
 	// average ranks [2.417 2.500 1.083]
-	// chi2 7.583  F 8.585  p 0.0068  CD 1.353
-	// warning: ties within 1 data sets (indices 4): average ranks used; ChiSq is not tie-corrected (see ChiSqTieCorrected)
+	// chi2 7.583 (Demšar's form), 7.913 (tie-corrected)
+	// F 9.681  p 0.0046  CD 1.353
+	// warning: ties within 1 data sets (indices 4): average ranks used; the decision uses the tie-corrected Friedman statistic (Demšar's uncorrected form is given beside it)
 	// warning: few data sets (N = 6 ≤ 10): the chi-square and F approximations are rough
+}
+
+// Ten folds of 178 instances: eight folds test 18 instances, two test 17,
+// so the mean sizes are 160.2 and 17.8 (ratio exactly 1/9). Invented
+// scores.
+func ExampleCorrectedIntervalSizes() {
+	nTest := []int{18, 18, 18, 18, 18, 18, 18, 18, 17, 17}
+	nTrain := make([]int, len(nTest))
+	for i, n := range nTest {
+		nTrain[i] = 178 - n
+	}
+	sizes, _ := stats.MeanSizes(nTrain, nTest)
+	scores := []float64{0.944, 0.889, 1, 0.944, 0.889, 0.944, 1, 0.944, 0.941, 1}
+	iv, _ := stats.CorrectedIntervalSizes(scores, sizes, 0.05)
+	fmt.Printf("sizes %.1f / %.1f\n", sizes.Train, sizes.Test)
+	fmt.Printf("mean %.4f [%.4f, %.4f]\n", iv.Mean, iv.Lo, iv.Hi)
+	// Output:
+	// sizes 160.2 / 17.8
+	// mean 0.9495 [0.9068, 0.9922]
 }

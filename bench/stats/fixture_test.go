@@ -43,6 +43,21 @@ type refFixture struct {
 		DF     int
 		P      float64
 	} `json:"corrected_t"`
+	CorrectedTUneven struct {
+		NTrain    []int     `json:"n_train"`
+		NTest     []int     `json:"n_test"`
+		A         []float64 `json:"a"`
+		B         []float64 `json:"b"`
+		MeanTrain float64   `json:"mean_train"`
+		MeanTest  float64   `json:"mean_test"`
+		Call      string    `json:"call"`
+		T         float64   `json:"t"`
+		DF        int       `json:"df"`
+		P         float64   `json:"p"`
+		Lo, Hi    float64
+		TRounded  float64 `json:"t_rounded"`
+		PRounded  float64 `json:"p_rounded"`
+	} `json:"corrected_t_uneven"`
 	FiveByTwo []struct {
 		Diff [5][2]float64 `json:"diff"`
 		Call string        `json:"call"`
@@ -79,6 +94,7 @@ type refFixture struct {
 		PChiSq           float64     `json:"p_chi2"`
 		F                float64     `json:"F"`
 		P                float64     `json:"p"`
+		FAnovaRanks      float64     `json:"F_anova_ranks"`
 		CD               []struct {
 			Alpha float64 `json:"alpha"`
 			CD    float64 `json:"cd"`

@@ -7,23 +7,25 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
-// CorrectedPairedT is the corrected resampled t test (Nadeau & Bengio,
-// Machine Learning 52:239, 2003) of two models scored on the same splits:
-// with d_i = a_i − b_i over the n = r·k splits,
+// CorrectedPairedTSizes is the corrected resampled t test (Nadeau &
+// Bengio, Machine Learning 52:239, 2003) of two models scored on the same
+// splits, whose mean sizes are s: with d_i = a_i − b_i over the n = r·k
+// splits,
 //
-//	t = mean(d) / sqrt((1/n + nTest/nTrain) · s_d²),   n − 1 degrees of freedom,
+//	t = mean(d) / sqrt((1/n + s.Test/s.Train) · s_d²),   n − 1 degrees of freedom,
 //
 // and a two-sided p-value. The interval of the mean difference is
-// CorrectedInterval(d, nTrain, nTest, alpha).
+// CorrectedIntervalSizes(d, s, alpha). Uneven folds are treated as in
+// CorrectedIntervalSizes (the ratio of the mean sizes).
 //
 // Degenerate input: a single pair gives Statistic and P NaN (Reject false)
 // with a warning. When every d_i is equal (zero variance) the statistic is
 // ±Inf with P = 0 if the common difference is non-zero, and 0 with P = 1
-// if it is zero; both carry a warning. nTest = 1 (leave-one-out) carries
-// the warning of CorrectedInterval. It returns an error for samples of
-// different lengths, none, non-finite values, nTrain or nTest < 1, or
-// alpha outside (0, 1).
-func CorrectedPairedT(a, b []float64, nTrain, nTest int, alpha float64) (TestResult, error) {
+// if it is zero; both carry a warning. Leave-one-out (test size 1)
+// carries a warning as in CorrectedIntervalSizes. It returns an error for
+// samples of different lengths, none, non-finite values, sizes below 1 or
+// not finite, or alpha outside (0, 1).
+func CorrectedPairedTSizes(a, b []float64, s Sizes, alpha float64) (TestResult, error) {
 	if err := checkAlpha(alpha); err != nil {
 		return TestResult{}, fmt.Errorf("stats: corrected paired t: %w", err)
 	}
@@ -33,8 +35,8 @@ func CorrectedPairedT(a, b []float64, nTrain, nTest int, alpha float64) (TestRes
 	if len(a) == 0 {
 		return TestResult{}, fmt.Errorf("stats: corrected paired t: %w: no pairs", ErrTooFew)
 	}
-	if nTrain < 1 || nTest < 1 {
-		return TestResult{}, fmt.Errorf("stats: corrected paired t: %w: nTrain = %d, nTest = %d (both must be ≥ 1)", ErrTooFew, nTrain, nTest)
+	if err := s.check(); err != nil {
+		return TestResult{}, fmt.Errorf("stats: corrected paired t: %w", err)
 	}
 	d := make([]float64, len(a))
 	for i := range a {
@@ -50,13 +52,21 @@ func CorrectedPairedT(a, b []float64, nTrain, nTest int, alpha float64) (TestRes
 		return r, nil
 	}
 	mean, v := meanVar(d)
-	factor := 1/float64(n) + float64(nTest)/float64(nTrain)
+	factor := 1/float64(n) + s.Test/s.Train
 	r.Statistic, r.P = tTwoSided(&r, mean, factor*v, n-1, maxAbs(a)+maxAbs(b))
 	r.decide(r.P, alpha)
-	if nTest == 1 {
-		r.warnf("n_test = 1 (leave-one-out): per-fold scores are single outcomes; prefer McNemar on the pooled predictions")
+	if s.leaveOneOut() {
+		r.warnf("one test instance per split (leave-one-out): per-fold scores are single outcomes; prefer McNemar's test on the pooled predictions")
 	}
 	return r, nil
+}
+
+// CorrectedPairedT is CorrectedPairedTSizes with whole split sizes, for
+// splits that all have nTrain training and nTest test instances. With
+// uneven folds, pass the exact mean sizes to CorrectedPairedTSizes instead
+// of rounding them.
+func CorrectedPairedT(a, b []float64, nTrain, nTest int, alpha float64) (TestResult, error) {
+	return CorrectedPairedTSizes(a, b, Sizes{Train: float64(nTrain), Test: float64(nTest)}, alpha)
 }
 
 // tTwoSided returns t = mean/sqrt(v2) and its two-sided p-value with df
@@ -165,7 +175,7 @@ func McNemar(b, c int, alpha float64) (McNemarResult, error) {
 	r.decide(distuv.ChiSquared{K: 1}.Survival(r.Statistic), alpha)
 	r.PExact = min(1, 2*distuv.Binomial{N: float64(n), P: 0.5}.CDF(float64(min(b, c))))
 	if n < McNemarSmall {
-		r.warnf("few discordant pairs (b + c = %d < %d): the chi-square approximation is poor; prefer PExact = %.4g", n, McNemarSmall, r.PExact)
+		r.warnf("few discordant pairs (b + c = %d < %d): the chi-square approximation is poor; prefer the exact binomial p-value, %.4g", n, McNemarSmall, r.PExact)
 	}
 	return r, nil
 }

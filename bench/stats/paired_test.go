@@ -28,6 +28,80 @@ func TestCorrectedPairedTAgainstScipy(t *testing.T) {
 	}
 }
 
+func TestCorrectedPairedTUnevenFolds(t *testing.T) {
+	// Reference: scripts/ref_stats.py, corrected_t_uneven (scikit-learn
+	// 1.2.1 StratifiedKFold on Wine, 178 rows, 10 folds of 17 or 18 test
+	// rows; scipy 1.10.1 t.sf and t.ppf; the call is in c.Call).
+	c := ref(t).CorrectedTUneven
+	s, err := MeanSizes(c.NTrain, c.NTest)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Means of whole numbers: rounding only.
+	checkNear(t, "mean train", s.Train, c.MeanTrain, 1e-12, 0)
+	checkNear(t, "mean test", s.Test, c.MeanTest, 1e-12, 0)
+	// 10-fold cross-validation of 178 rows: 160.2 and 17.8, ratio 1/9
+	// (derived by hand: N(k−1)/k and N/k).
+	checkNear(t, "size ratio", s.Test/s.Train, 1.0/9, 1e-15, 0)
+	got, err := CorrectedPairedTSizes(c.A, c.B, s, 0.05)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Same closed form (1e-12 covers summation order); p through gonum's
+	// and scipy's incomplete beta (tolT).
+	checkNear(t, "t", got.Statistic, c.T, 1e-12, 1e-12)
+	checkNear(t, "p", got.P, c.P, 1e-14, tolT)
+	if got.DF != c.DF {
+		t.Errorf("DF = %d, want %d", got.DF, c.DF)
+	}
+	d := make([]float64, len(c.A))
+	for i := range d {
+		d[i] = c.A[i] - c.B[i]
+	}
+	iv, err := CorrectedIntervalSizes(d, s, 0.05)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkNear(t, "lo", iv.Lo, c.Lo, tolT, tolT)
+	checkNear(t, "hi", iv.Hi, c.Hi, tolT, tolT)
+	// Rounding the mean sizes (18 and 160) changes the statistic: the
+	// integer form reproduces the rounded reference and differs from the
+	// exact one by more than the tolerance.
+	rounded, err := CorrectedPairedT(c.A, c.B, 160, 18, 0.05)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkNear(t, "t rounded", rounded.Statistic, c.TRounded, 1e-12, 1e-12)
+	checkNear(t, "p rounded", rounded.P, c.PRounded, 1e-14, tolT)
+	if near(rounded.P, got.P, 1e-6, 0) {
+		t.Errorf("rounded sizes give p %g, the exact sizes %g: expected a visible difference", rounded.P, got.P)
+	}
+}
+
+func TestMeanSizesErrors(t *testing.T) {
+	for _, c := range []struct {
+		name        string
+		train, test []int
+		want        error
+	}{
+		{"lengths", []int{9, 9}, []int{1}, ErrLength},
+		{"empty", nil, nil, ErrTooFew},
+		{"zero test", []int{9, 9}, []int{1, 0}, ErrTooFew},
+	} {
+		if _, err := MeanSizes(c.train, c.test); !errors.Is(err, c.want) {
+			t.Errorf("%s: err = %v, want %v", c.name, err, c.want)
+		}
+	}
+	for _, s := range []Sizes{{0, 1}, {10, 0.5}, {math.NaN(), 1}, {math.Inf(1), 1}} {
+		if _, err := CorrectedIntervalSizes([]float64{0.5, 0.6}, s, 0.05); !errors.Is(err, ErrTooFew) {
+			t.Errorf("sizes %+v: err = %v, want ErrTooFew", s, err)
+		}
+		if _, err := CorrectedPairedTSizes([]float64{0.5, 0.6}, []float64{0.4, 0.6}, s, 0.05); !errors.Is(err, ErrTooFew) {
+			t.Errorf("paired, sizes %+v: err = %v, want ErrTooFew", s, err)
+		}
+	}
+}
+
 func TestCorrectedPairedTMatchesInterval(t *testing.T) {
 	// The test rejects at alpha exactly when the corrected interval of the
 	// differences excludes 0 (same SE, same t quantile): a property of the
@@ -155,7 +229,7 @@ func TestMcNemarAgainstScipy(t *testing.T) {
 			t.Errorf("DF = %d, want 1", got.DF)
 		}
 		small := c.B+c.C < McNemarSmall
-		warned := len(got.Warnings) == 1 && strings.Contains(got.Warnings[0], "prefer PExact")
+		warned := len(got.Warnings) == 1 && strings.Contains(got.Warnings[0], "prefer the exact binomial p-value")
 		if small != warned {
 			t.Errorf("b=%d c=%d: warnings %q, want a small-sample warning: %v", c.B, c.C, got.Warnings, small)
 		}

@@ -232,6 +232,16 @@ func absInt(x int) int {
 
 // FriedmanResult is the outcome of the Friedman test with the
 // Iman–Davenport correction and the Nemenyi critical difference.
+//
+// Two forms of Friedman's statistic are given. ChiSq is the form printed
+// by Demšar (2006), which assumes untied ranks; ChiSqTieCorrected divides
+// it by the tie correction and equals scipy.stats.friedmanchisquare
+// (scipy 1.10.1). Without ties they are equal. The decision uses the
+// tie-corrected form: the Iman–Davenport F computed from it is exactly the
+// two-way analysis-of-variance F on the (average) ranks, which is how
+// Iman and Davenport (Commun. Statist. A 9:571, 1980) derive their
+// statistic, so ties neither inflate nor deflate it; Demšar's form
+// understates the statistic when ranks tie.
 type FriedmanResult struct {
 	// Ranks[i][j] is the rank of model j on data set i: 1 for the highest
 	// score, ties sharing the average of their ranks.
@@ -241,17 +251,21 @@ type FriedmanResult struct {
 	// ChiSq is Friedman's statistic in the form given by Demšar (2006),
 	// 12N/(k(k+1)) · (Σ_j R_j² − k(k+1)²/4), without tie correction.
 	ChiSq float64
+	// PChiSq is the chi-square p-value of ChiSq with DF degrees of freedom.
+	PChiSq float64
 	// ChiSqTieCorrected is ChiSq divided by 1 − Σ(t³ − t)/(N·k·(k² − 1)),
 	// the sum over tie groups of size t within data sets; it equals the
 	// statistic of scipy.stats.friedmanchisquare. NaN when every data set
-	// is one tie group.
+	// is one tie group (0/0).
 	ChiSqTieCorrected float64
-	// PChiSq is the chi-square p-value of ChiSq with DF degrees of freedom.
-	PChiSq float64
+	// PChiSqTieCorrected is the chi-square p-value of ChiSqTieCorrected
+	// (scipy's p-value); NaN with it.
+	PChiSqTieCorrected float64
 	// DF is k − 1.
 	DF int
-	// ImanDavenportF is (N−1)·ChiSq / (N(k−1) − ChiSq), +Inf when every
-	// data set ranks the models identically.
+	// ImanDavenportF is (N−1)·X / (N(k−1) − X) with X = ChiSqTieCorrected
+	// (X = ChiSq = 0 when that is NaN), +Inf when every data set ranks the
+	// models identically.
 	ImanDavenportF float64
 	// DF1 = k − 1 and DF2 = (k − 1)(N − 1) are the degrees of freedom of F.
 	DF1, DF2 int
@@ -343,24 +357,30 @@ func Friedman(scores [][]float64, alpha float64) (FriedmanResult, error) {
 		sumSq += res.AvgRanks[j] * res.AvgRanks[j]
 	}
 	res.ChiSq = max(0, 12*fn/(fk*(fk+1))*(sumSq-fk*(fk+1)*(fk+1)/4))
-	res.ChiSqTieCorrected = math.NaN()
-	if c := 1 - tieSum/(fn*fk*(fk*fk-1)); c > 0 {
+	chi2 := distuv.ChiSquared{K: fk - 1}
+	res.PChiSq = chi2.Survival(res.ChiSq)
+	res.ChiSqTieCorrected, res.PChiSqTieCorrected = math.NaN(), math.NaN()
+	x := res.ChiSq // the statistic the decision uses
+	if c := 1 - tieSum/(fn*fk*(fk*fk-1)); c > 1e-12 {
 		res.ChiSqTieCorrected = res.ChiSq / c
+		res.PChiSqTieCorrected = chi2.Survival(res.ChiSqTieCorrected)
+		x = res.ChiSqTieCorrected
 	}
-	res.PChiSq = distuv.ChiSquared{K: fk - 1}.Survival(res.ChiSq)
-	den := fn*(fk-1) - res.ChiSq
+	// With identical rankings X reaches its maximum N(k − 1) (also under
+	// ties, where the correction scales both alike) and F is infinite.
+	den := fn*(fk-1) - x
 	if den <= 1e-12*fn*(fk-1) {
 		res.ImanDavenportF = math.Inf(1)
 		res.P = 0
 	} else {
-		res.ImanDavenportF = (fn - 1) * res.ChiSq / den
+		res.ImanDavenportF = (fn - 1) * x / den
 		res.P = distuv.F{D1: float64(res.DF1), D2: float64(res.DF2)}.Survival(res.ImanDavenportF)
 	}
 	res.Reject = res.P <= alpha
 	res.CD = NemenyiCD(k, n, alpha)
 
 	if len(tiedSets) > 0 {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("ties within %d data sets (indices %s): average ranks used; ChiSq is not tie-corrected (see ChiSqTieCorrected)", len(tiedSets), joinInts(tiedSets)))
+		res.Warnings = append(res.Warnings, fmt.Sprintf("ties within %d data sets (indices %s): average ranks used; the decision uses the tie-corrected Friedman statistic (Demšar's uncorrected form is given beside it)", len(tiedSets), joinInts(tiedSets)))
 	}
 	if math.IsNaN(res.ChiSqTieCorrected) {
 		res.Warnings = append(res.Warnings, "every data set ties all models: no evidence either way")

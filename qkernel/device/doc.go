@@ -94,6 +94,11 @@
 // small noisy circuit are checked against QuTiP 4.7.1
 // (scripts/ref_device_qutip.py).
 //
+// # Imports
+//
+// The package imports qkernel/circuit and qkernel/sim; its tests also use
+// datasets and bench/cv (embedded data and the assess-style splits).
+//
 // # Errors and panics
 //
 // Errors are prefixed "device: "; description errors are *Error values.

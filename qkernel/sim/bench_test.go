@@ -46,19 +46,6 @@ func BenchmarkGate(b *testing.B) {
 	}
 }
 
-// layerCircuit is one layer of the workload of ../shared/perf/numpy_dm.py:
-// RY with a random angle on every qubit, then CNOTs (q, q+1) down the line.
-func layerCircuit(n int, rng *rand.Rand) *circuit.Circuit {
-	c := &circuit.Circuit{NQubits: n, Regs: circuit.Layout{Ancilla: 0}}
-	for q := range n {
-		c.Ops = append(c.Ops, circuit.Op{Gate: circuit.RY, Target: q, Angle: rng.Float64() * 6.28})
-	}
-	for q := 0; q+1 < n; q++ {
-		c.Ops = append(c.Ops, circuit.Op{Gate: circuit.CNOT, Controls: []int{q}, Target: q + 1})
-	}
-	return c
-}
-
 // BenchmarkDensityMatrix runs noisy gates on a density matrix: RY layers
 // with single-qubit depolarizing (p1 = 1e-3) after each, CNOT ladders with
 // two-qubit depolarizing (p2 = 1e-2) after each, the workload of
@@ -77,7 +64,7 @@ func BenchmarkDensityMatrix(b *testing.B) {
 			b.ReportAllocs()
 			gates := 0
 			for b.Loop() {
-				if err := runDensity(ctx, d, c, m); err != nil {
+				if err := runDensityActive(ctx, d, c, m); err != nil {
 					b.Fatal(err)
 				}
 				gates += len(c.Ops)
@@ -128,4 +115,93 @@ func BenchmarkOutcomes(b *testing.B) {
 			})
 		}
 	}
+}
+
+// classifierCircuit compiles a classifier circuit of M training vectors of
+// d features and nClass classes from seeded random data.
+func classifierCircuit(tb testing.TB, M, d, nClass int) *circuit.Circuit {
+	tb.Helper()
+	in := randomInstance(rand.New(rand.NewPCG(7, uint64(M*1000+d*10+nClass))), M, d, nClass, false)
+	c, err := circuit.Compile(in.test, in.train, in.y, in.nClass, in.w)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return c
+}
+
+// BenchmarkNoisyGate reports ns per noisy gate (the gate and every channel
+// the noise model attaches to it) of the density-matrix simulator, for
+// scripts/bench_dm.sh, which divides it by the time of one memory pass over
+// the density matrix (16 * 4^n bytes read and written) at the bandwidth of
+// the triad of ../shared/perf/stream.c, measured in the same run.
+//
+// workload=layers is the RY layer and CNOT ladder of numpy_dm.py, applied
+// again and again to one matrix (every gate on all n qubits, as a per-gate
+// cost); workload=classifier is a compiled classifier circuit (M=32, d=8, C=2 on
+// 10 qubits; M=8, d=4, C=2 on 7) simulated from |0...0> by Simulate
+// (decomposed, so its CNOTs join distant qubits; its class qubit is idle
+// until the end), per elementary gate. noise=depol is
+// depolarizing (1e-3, 1e-2); noise=all adds amplitude damping 1e-3 and
+// phase damping 2e-3 after every gate on every qubit it touches.
+func BenchmarkNoisyGate(b *testing.B) {
+	noises := []struct {
+		name string
+		m    NoiseModel
+	}{
+		{"depol", NoiseModel{Depolarizing: [2]float64{1e-3, 1e-2}}},
+		{"all", NoiseModel{Depolarizing: [2]float64{1e-3, 1e-2}, AmplitudeDamping: 1e-3, PhaseDamping: 2e-3}},
+	}
+	for _, n := range []int{7, 10} {
+		for _, work := range []string{"layers", "classifier"} {
+			var c *circuit.Circuit
+			if work == "layers" {
+				c = layerCircuit(n, rand.New(rand.NewPCG(1, 2)))
+			} else if n == 10 {
+				c = classifierCircuit(b, 32, 8, 2)
+			} else {
+				c = classifierCircuit(b, 8, 4, 2)
+			}
+			if c.NQubits != n {
+				b.Fatalf("%s circuit has %d qubits, want %d", work, c.NQubits, n)
+			}
+			r := c.Decompose().Resources()
+			gates := r.CNOT + r.SingleQubit
+			for _, nz := range noises {
+				b.Run(fmt.Sprintf("qubits=%d/workload=%s/noise=%s", n, work, nz.name), func(b *testing.B) {
+					ctx := context.Background()
+					d, err := NewDensity(n)
+					if err != nil {
+						b.Fatal(err)
+					}
+					b.ReportAllocs()
+					for b.Loop() {
+						if work == "layers" {
+							// Layers keep evolving one matrix, every gate on all n qubits.
+							if err := runDensityActive(ctx, d, c, nz.m); err != nil {
+								b.Fatal(err)
+							}
+						} else if _, err := Simulate(ctx, c, Options{Noise: nz.m, Method: DensityMatrix}); err != nil {
+							b.Fatal(err)
+						}
+					}
+					b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(gates), "ns/gate")
+					b.ReportMetric(float64(int(16)<<(2*n)), "bytes/pass")
+				})
+			}
+		}
+	}
+}
+
+// runDensityActive is runDensity on a matrix in any state: every qubit is
+// active from the start (no idle qubits), so every gate runs at full size.
+func runDensityActive(ctx context.Context, d *Density, c *circuit.Circuit, m NoiseModel) error {
+	ops := c.Ops
+	if m.gateNoise() {
+		ops = c.Decompose().Ops
+	}
+	all := make([]int, d.N)
+	for q := range all {
+		all[q] = q
+	}
+	return applyDensity(ctx, d, d.Rho, planLazyFrom(ops, d.N, all, true), m)
 }

@@ -182,6 +182,19 @@ func (m NoiseModel) dampingSuperop() (Superop, bool) {
 	return s, on
 }
 
+// after1 is the channel after a single-qubit gate: depolarizing with
+// Depolarizing[0], then amplitude and phase damping.
+func (m NoiseModel) after1() Superop {
+	s := identitySuperop()
+	if p := m.Depolarizing[0]; p != 0 {
+		s = s.Then(DepolarizingSuperop(p))
+	}
+	if damp, on := m.dampingSuperop(); on {
+		s = s.Then(damp)
+	}
+	return s
+}
+
 // checkDist checks an outcome distribution: finite non-negative entries and
 // a power-of-two length of at least 2.
 func checkDist(p []float64) (nbits int, err error) {

@@ -150,6 +150,9 @@ func Simulate(ctx context.Context, c *circuit.Circuit, opt Options) (Result, err
 	if err != nil {
 		return Result{}, err
 	}
+	if err := ctx.Err(); err != nil {
+		return Result{}, err
+	}
 	res := Result{Method: m, Qubits: c.NQubits}
 	switch m {
 	case StateVector:
@@ -157,11 +160,8 @@ func Simulate(ctx context.Context, c *circuit.Circuit, opt Options) (Result, err
 		if err != nil {
 			return Result{}, err
 		}
-		for i, op := range c.Ops {
-			if i%64 == 0 && ctx.Err() != nil {
-				return Result{}, ctx.Err()
-			}
-			s.ApplyOp(op)
+		if err := runState(ctx, s, c.Ops); err != nil {
+			return Result{}, err
 		}
 		res.P = stateOutcomes(s, c.Regs)
 	case DensityMatrix:
@@ -186,39 +186,80 @@ func Simulate(ctx context.Context, c *circuit.Circuit, opt Options) (Result, err
 	return res, nil
 }
 
-// runDensity applies the circuit to d with gate noise (decomposing UCRY
-// when the model has gate noise, so that every elementary gate is noisy).
+// runDensity applies the circuit to d, which must be |0...0> as NewDensity
+// returns it, with gate noise (decomposing UCRY when the model has gate
+// noise, so that every elementary gate is noisy). Idle qubits are left out
+// until an operation touches them (see lazy.go); on return d holds the
+// state in the circuit's layout. It checks ctx between operations.
 func runDensity(ctx context.Context, d *Density, c *circuit.Circuit, m NoiseModel) error {
+	ops := c.Ops
+	if m.gateNoise() {
+		ops = c.Decompose().Ops
+	}
+	lp := planLazy(ops, d.N, true)
+	v := &Density{Rho: d.Rho[:1]}
+	if err := applyDensity(ctx, v, d.Rho, lp, m); err != nil {
+		return err
+	}
+	lp.finishDensity(v, d.Rho)
+	return nil
+}
+
+// enterDensity inserts the qubits that operation i of lp touches first into
+// the compact density v, whose entries live at the start of full.
+func (lp *lazyPlan) enterDensity(v *Density, full []complex128, i int) {
+	for _, b := range lp.grow[i] {
+		growDensity(full, v.N, b)
+		v.N++
+		v.Rho = full[:1<<(2*v.N)]
+	}
+}
+
+// finishDensity inserts the qubits no operation touched; full then holds
+// the state in the circuit's layout.
+func (lp *lazyPlan) finishDensity(v *Density, full []complex128) {
+	for _, b := range lp.tail {
+		growDensity(full, v.N, b)
+		v.N++
+		v.Rho = full[:1<<(2*v.N)]
+	}
+}
+
+// applyDensity runs the scheduled operations of lp on the compact density v
+// (a prefix of full, grown as the schedule says) with the gate noise of m.
+// A CNOT and its channels (two-qubit depolarizing, then damping of both
+// qubits) take one pass over the matrix, as does a single-qubit gate with
+// its channels (one fused superoperator). It checks ctx about every
+// tickWork entries of work and returns ctx.Err() when cancelled.
+func applyDensity(ctx context.Context, v *Density, full []complex128, lp *lazyPlan, m NoiseModel) error {
+	tk := ticker{ctx: ctx}
 	if !m.gateNoise() {
-		for i, op := range c.Ops {
-			if i%64 == 0 && ctx.Err() != nil {
-				return ctx.Err()
+		for i, op := range lp.ops {
+			lp.enterDensity(v, full, i)
+			if err := tk.add(lp.work[i]); err != nil {
+				return err
 			}
-			d.ApplyOp(op)
+			v.ApplyOp(op)
 		}
 		return nil
 	}
-	after1 := identitySuperop()
-	if p := m.Depolarizing[0]; p != 0 {
-		after1 = after1.Then(DepolarizingSuperop(p))
-	}
+	d := v
+	after1 := m.after1()
 	damp, dampOn := m.dampingSuperop()
+	var damp2 *[4][4]float64 // damping of both CNOT qubits, fused into the CNOT's pass
 	if dampOn {
-		after1 = after1.Then(damp)
+		r, _ := realSuperop(&damp) // damping superoperators are real
+		damp2 = &r
 	}
-	for i, op := range c.Decompose().Ops {
-		if i%16 == 0 && ctx.Err() != nil {
-			return ctx.Err()
+	for i, op := range lp.ops {
+		lp.enterDensity(d, full, i)
+		if err := tk.add(lp.work[i]); err != nil {
+			return err
 		}
 		switch op.Gate {
 		case circuit.Measure:
 		case circuit.CNOT:
-			ctl := op.Controls[0]
-			d.applyCNOTDepolarize2(ctl, op.Target, m.Depolarizing[1])
-			if dampOn {
-				d.ApplySuperop1(ctl, damp)
-				d.ApplySuperop1(op.Target, damp)
-			}
+			d.applyCNOTNoise(op.Controls[0], op.Target, m.Depolarizing[1], damp2)
 		case circuit.CZ, circuit.SWAP:
 			// Device gates: the noise of a CNOT.
 			ctl := op.Controls[0]
@@ -274,7 +315,50 @@ func stateOutcomes(s *State, regs circuit.Layout) []float64 {
 	return out
 }
 
+// runState applies the noiseless operations ops to s, which must be
+// |0...0> as NewState returns it, leaving idle qubits out until an
+// operation touches them (see lazy.go). It checks ctx about every tickWork
+// amplitudes of work.
+func runState(ctx context.Context, s *State, ops []circuit.Op) error {
+	lp := planLazy(ops, s.N, false)
+	v := &State{Amp: s.Amp[:1]}
+	tk := ticker{ctx: ctx}
+	for i, op := range lp.ops {
+		lp.enterState(v, s.Amp, i)
+		if err := tk.add(lp.work[i]); err != nil {
+			return err
+		}
+		v.ApplyOp(op)
+	}
+	lp.finishState(v, s.Amp)
+	return nil
+}
+
+// enterState inserts the qubits that operation i of lp touches first into
+// the compact state v, whose amplitudes live at the start of full.
+func (lp *lazyPlan) enterState(v *State, full []complex128, i int) {
+	for _, b := range lp.grow[i] {
+		growState(full, v.N, b)
+		v.N++
+		v.Amp = full[:1<<v.N]
+	}
+}
+
+// finishState inserts the qubits no operation touched; full then holds the
+// state in the circuit's layout.
+func (lp *lazyPlan) finishState(v *State, full []complex128) {
+	for _, b := range lp.tail {
+		growState(full, v.N, b)
+		v.N++
+		v.Amp = full[:1<<v.N]
+	}
+}
+
 // runTrajectories averages the outcome distributions of noisy trajectories.
+// Each trajectory starts in |0...0> and leaves idle qubits out until an
+// operation touches them (see lazy.go), which changes neither the jumps
+// drawn nor their probabilities. It checks ctx about every tickWork
+// amplitudes of work.
 func runTrajectories(ctx context.Context, c *circuit.Circuit, opt Options) (mean, stderr []float64, err error) {
 	T := opt.Trajectories
 	if T == 0 {
@@ -289,17 +373,25 @@ func runTrajectories(ctx context.Context, c *circuit.Circuit, opt Options) (mean
 	q := len(c.Regs.Class)
 	mean = make([]float64, 2<<q)
 	m2 := make([]float64, 2<<q)
-	s, err := NewState(c.NQubits)
+	full, err := NewState(c.NQubits)
 	if err != nil {
 		return nil, nil, err
 	}
+	lp := planLazy(ops, c.NQubits, false)
+	tk := ticker{ctx: ctx}
+	s := &State{}
 	for t := 1; t <= T; t++ {
 		if ctx.Err() != nil {
 			return nil, nil, ctx.Err()
 		}
-		clear(s.Amp)
-		s.Amp[0] = 1
-		for _, op := range ops {
+		clear(full.Amp)
+		full.Amp[0] = 1
+		s.N, s.Amp = 0, full.Amp[:1]
+		for i, op := range lp.ops {
+			lp.enterState(s, full.Amp, i)
+			if err := tk.add(lp.work[i]); err != nil {
+				return nil, nil, err
+			}
 			s.ApplyOp(op)
 			if !m.gateNoise() {
 				continue
@@ -312,7 +404,8 @@ func runTrajectories(ctx context.Context, c *circuit.Circuit, opt Options) (mean
 				s.noisy1(op.Target, m, opt.Rng)
 			}
 		}
-		p := stateOutcomes(s, c.Regs)
+		lp.finishState(s, full.Amp)
+		p := stateOutcomes(full, c.Regs)
 		if m.Readout != [2]float64{} {
 			if p, err = Readout(p, m.Readout[0], m.Readout[1]); err != nil {
 				return nil, nil, err

@@ -11,7 +11,7 @@ import (
 	"os/signal"
 	"syscall"
 
-	"fringe/bench"
+	"fringe/bench/input"
 )
 
 func main() {
@@ -53,7 +53,7 @@ func exitCode(err error) int {
 	switch {
 	case err == nil:
 		return 0
-	case errors.Is(err, errUsage), errors.Is(err, bench.ErrInput):
+	case errors.Is(err, errUsage), errors.Is(err, input.ErrBad):
 		return 2
 	}
 	return 1
@@ -72,6 +72,7 @@ func commands() []*command {
 		{name: "list", args: "", short: "list embedded datasets, pipeline steps and models", run: runList},
 		{name: "rank", args: "SCORES.csv [-alpha A] [-json] [-plot FILE]", short: "rank models across datasets from a dataset,model,score CSV (Friedman, Iman-Davenport, Nemenyi CD)", run: runRank},
 		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-json]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},
+		{name: "verify", args: "RUN_DIR [-spec-dir DIR]", short: "check a run directory: its manifest seal and file digests, and its predictions, folds, summary and comparisons recomputed from predictions.csv and the spec; exit status 1 when it does not verify", run: runVerify},
 		{name: "merge", args: "[-out DIR] PARTIAL_DIR...", short: "merge the partial run directories of all shards of a run (fringe run -shard i/n) into one run directory", run: runMerge},
 		{name: "slurm", args: "SPEC.toml -shards N [-out DIR] [-fringe PATH] [-cpus C] [-mem M] [-time T] [-partition P] [-account A] [-script FILE]", short: "write a Slurm job: an array with one shard per array task and a merge job that waits for it", run: runSlurm},
 		{name: "circuit", args: "[-dataset NAME] [-pipeline P] [-train N] [-row R] [-qasm] | -export DIR [-model NAME] SPEC.toml", short: "show the compiled circuit's resources or OpenQASM 3 text for one test instance, or export every test instance's circuit of a spec", run: runCircuit},

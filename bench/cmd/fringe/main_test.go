@@ -65,6 +65,11 @@ func TestBadInput(t *testing.T) {
 		{"too_many_qubits.toml", []string{"too_many_qubits.toml:7", "16 qubits", "at most 12", "trajectories"}},
 		{"subset_large.toml", []string{"subset_large.toml:9", "model[1].train_subset", "500"}},
 		{"subset_small.toml", []string{"subset_small.toml:8", "model[1].train_subset", "3 classes"}},
+		{"control_char.toml", []string{"control_char.toml:6", "model[1].name", "U+0008"}},
+		{"control_class.toml", []string{"control_class.toml:5", "dataset[1].classes", "U+0000"}},
+		{"formula_name.toml", []string{"formula_name.toml:6", "model[1].name", "formula"}},
+		{"formula_dataset.toml", []string{"formula_dataset.toml:5", "dataset[1].as", "formula"}},
+		{"formula_spec.toml", []string{"formula_spec.toml:1", "key name", "formula"}},
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {

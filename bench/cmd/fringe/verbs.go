@@ -10,7 +10,8 @@ import (
 	"runtime"
 	"strings"
 
-	"fringe/bench"
+	"fringe/bench/modelkit"
+	"fringe/bench/spec"
 	"fringe/datasets"
 )
 
@@ -86,14 +87,14 @@ func runDemo(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) > 0 {
 		return usagef("demo takes no arguments, got %q", pos[0])
 	}
-	spec, err := bench.DemoSpec()
+	s, err := spec.Demo()
 	if err != nil {
 		return err
 	}
 	if !rf.quiet {
-		fmt.Fprint(stdout, bench.DemoStory+"\n")
+		fmt.Fprint(stdout, spec.DemoStory+"\n")
 	}
-	return execute(ctx, spec, rf, append([]string{"fringe", "demo"}, args...), stdout, stderr)
+	return execute(ctx, s, rf, append([]string{"fringe", "demo"}, args...), stdout, stderr)
 }
 
 func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
@@ -106,11 +107,11 @@ func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) != 1 {
 		return usagef("run takes exactly one spec file (see 'fringe run -h')")
 	}
-	spec, err := bench.LoadSpec(pos[0])
+	s, err := spec.Load(pos[0])
 	if err != nil {
 		return err
 	}
-	return execute(ctx, spec, rf, append([]string{"fringe", "run"}, args...), stdout, stderr)
+	return execute(ctx, s, rf, append([]string{"fringe", "run"}, args...), stdout, stderr)
 }
 
 func helpOK(err error) error {
@@ -160,12 +161,12 @@ func runList(ctx context.Context, c *command, args []string, stdout, stderr io.W
 		w.item(st.Syntax, st.Description)
 	}
 	w.head("MODELS ([[model]] kind = ...)")
-	for _, m := range bench.ModelInfos() {
+	for _, m := range modelkit.Infos() {
 		w.item(m.Kind, m.Description)
 		w.more("keys: " + orNone(m.Keys))
 	}
 	w.head("NOISE (interference models with mode = \"noisy\": noise = { ... })")
-	for _, n := range bench.NoiseKeys {
+	for _, n := range modelkit.NoiseKeys {
 		w.item(n.Key, n.Meaning)
 	}
 	return w.err

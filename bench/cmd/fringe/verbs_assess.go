@@ -11,7 +11,8 @@ import (
 	"strings"
 	"time"
 
-	"fringe/bench"
+	"fringe/bench/assess"
+	"fringe/bench/spec"
 	"fringe/results"
 )
 
@@ -20,8 +21,8 @@ import (
 func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags(c, stdout)
 	dsFlag := fs.String("datasets", "", "comma-separated embedded dataset names or CSV paths (default: every embedded dataset, or the spec's)")
-	pipesFlag := fs.String("pipelines", "", "comma-separated pipelines (default: "+strings.Join(bench.DefaultAssessPipelines, ",")+", or the spec's)")
-	subsetsFlag := fs.String("subsets", joinInts(bench.DefaultAssessSubsets), "comma-separated train_subset sizes for the register and gate table")
+	pipesFlag := fs.String("pipelines", "", "comma-separated pipelines (default: "+strings.Join(assess.DefaultPipelines, ",")+", or the spec's)")
+	subsetsFlag := fs.String("subsets", joinInts(assess.DefaultSubsets), "comma-separated train_subset sizes for the register and gate table")
 	out := fs.String("out", "", "output directory (default fringe-out/assess, or fringe-out/<spec name>-assess)")
 	seed := fs.Uint64("seed", 1, "seed of the splits (the spec's seed when a spec is given and -seed is not)")
 	folds := fs.Int("folds", 10, "folds of the stratified cross-validation (capped per dataset at its smallest class)")
@@ -40,7 +41,7 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	if *workers < 1 {
 		return usagef("-workers must be at least 1, got %d", *workers)
 	}
-	opt := bench.AssessOptions{Folds: *folds, Repeats: *repeats, Ratio: *ratio, Workers: *workers, Seed: *seed}
+	opt := assess.Options{Folds: *folds, Repeats: *repeats, Ratio: *ratio, Workers: *workers, Seed: *seed}
 	switch *weights {
 	case "balanced":
 	case "uniform":
@@ -62,18 +63,18 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	}
 	dir := filepath.Join("fringe-out", "assess")
 	if len(pos) == 1 {
-		spec, err := bench.LoadSpec(pos[0])
+		s, err := spec.Load(pos[0])
 		if err != nil {
 			return err
 		}
-		opt.Datasets, opt.Pipelines = spec.Datasets, spec.Pipelines
-		opt.File, opt.Dir = spec.File, spec.Dir
+		opt.Datasets, opt.Pipelines = s.Datasets, s.Pipelines
+		opt.File, opt.Dir = s.File, s.Dir
 		seedSet := false
 		fs.Visit(func(f *flag.Flag) { seedSet = seedSet || f.Name == "seed" })
 		if !seedSet {
-			opt.Seed = spec.Seed
+			opt.Seed = s.Seed
 		}
-		dir = filepath.Join("fringe-out", spec.Name+"-assess")
+		dir = filepath.Join("fringe-out", s.Name+"-assess")
 	}
 	if *dsFlag != "" {
 		opt.Datasets = nil
@@ -81,7 +82,7 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 			if n == "" {
 				return usagef("-datasets: empty name in %q", *dsFlag)
 			}
-			opt.Datasets = append(opt.Datasets, bench.DatasetSpec{Name: n})
+			opt.Datasets = append(opt.Datasets, spec.Dataset{Name: n})
 		}
 	}
 	if *pipesFlag != "" {
@@ -91,14 +92,14 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 		dir = *out
 	}
 	start := time.Now()
-	a, err := bench.Assess(ctx, opt)
+	a, err := assess.Run(ctx, opt)
 	if err != nil {
 		if ctx.Err() != nil {
 			return fmt.Errorf("interrupted; nothing was written")
 		}
 		return err
 	}
-	if err := bench.WriteAssessment(dir, a); err != nil {
+	if err := assess.Write(dir, a); err != nil {
 		return err
 	}
 	if !*quiet {

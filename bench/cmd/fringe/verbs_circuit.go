@@ -9,7 +9,10 @@ import (
 	"strings"
 	"text/tabwriter"
 
-	"fringe/bench"
+	"fringe/bench/export"
+	"fringe/bench/modelkit"
+	"fringe/bench/plan"
+	"fringe/bench/spec"
 	"fringe/qkernel/circuit"
 )
 
@@ -24,15 +27,15 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 	row := fs.Int("row", 0, "dataset row (0-based) of the test instance")
 	qasm := fs.Bool("qasm", false, "print the OpenQASM 3 program of the circuit instead of its resources")
 	seed := fs.Uint64("seed", 1, "seed for drawing the training subset")
-	export := fs.String("export", "", "write the OpenQASM 3 program of every test instance of a spec's splits into folder `DIR`, with index.csv mapping files to (dataset, pipeline, repeat, fold, row): fringe circuit -export DIR SPEC.toml")
+	exportDir := fs.String("export", "", "write the OpenQASM 3 program of every test instance of a spec's splits into folder `DIR`, with index.csv mapping files to (dataset, pipeline, repeat, fold, row): fringe circuit -export DIR SPEC.toml")
 	model := fs.String("model", "", "with -export: the spec's interference or counts model whose balance and train_subset the circuits use (default: the first counts model, else the first interference model)")
 	workers := fs.Int("workers", runtime.NumCPU(), "with -export: splits compiled at once")
 	pos, err := parse(fs, args, stderr)
 	if err != nil {
 		return helpOK(err)
 	}
-	if *export != "" {
-		return runExport(ctx, fs, pos, *export, *model, *workers, stdout)
+	if *exportDir != "" {
+		return runExport(ctx, fs, pos, *exportDir, *model, *workers, stdout)
 	}
 	if *model != "" {
 		return usagef("-model applies with -export only")
@@ -43,11 +46,11 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 	if *train < 0 {
 		return usagef("-train must be non-negative, got %d", *train)
 	}
-	req := bench.CircuitRequest{
-		Dataset:  bench.DatasetSpec{Name: *ds, Classes: splitList(*classes), Features: splitList(*features)},
+	req := export.CircuitRequest{
+		Dataset:  spec.Dataset{Name: *ds, Classes: splitList(*classes), Features: splitList(*features)},
 		Pipeline: *pipeline, Train: *train, Balance: *balance, Row: *row, Seed: *seed,
 	}
-	res, err := bench.BuildCircuit(req)
+	res, err := export.BuildCircuit(req)
 	if err != nil {
 		return err
 	}
@@ -94,15 +97,15 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 	if workers < 1 {
 		return usagef("-workers must be at least 1, got %d", workers)
 	}
-	spec, err := bench.LoadSpec(pos[0])
+	s, err := spec.Load(pos[0])
 	if err != nil {
 		return err
 	}
-	plan, err := bench.NewPlan(spec)
+	pl, err := plan.New(s)
 	if err != nil {
 		return err
 	}
-	sum, err := bench.ExportCircuits(ctx, plan, dir, bench.ExportOptions{Model: model, Workers: workers})
+	sum, err := export.Circuits(ctx, pl, dir, export.Options{Model: model, Workers: workers})
 	if err != nil {
 		return err
 	}
@@ -120,7 +123,7 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 	}
 	fmt.Fprintf(stdout, "wrote %d OpenQASM 3 programs (%.1f MB, at most %d qubits) and index.csv to %s\n", sum.Circuits, float64(sum.Bytes)/1e6, sum.MaxQubits, sum.Dir)
 	fmt.Fprintf(stdout, "circuits: %s\n", settings)
-	fmt.Fprintf(stdout, "report outcomes as CSV with columns %s (and pipeline when the spec has several); class is the bit string class_out[q-1]...class_out[0]\n", strings.Join(bench.CountsColumns, ","))
+	fmt.Fprintf(stdout, "report outcomes as CSV with columns %s (and pipeline when the spec has several); class is the bit string class_out[q-1]...class_out[0]\n", strings.Join(modelkit.CountsColumns, ","))
 	return nil
 }
 

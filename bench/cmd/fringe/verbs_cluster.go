@@ -12,36 +12,40 @@ import (
 
 	"golang.org/x/term"
 
-	"fringe/bench"
+	"fringe/bench/cluster"
+	"fringe/bench/input"
+	"fringe/bench/plan"
+	"fringe/bench/runner"
+	"fringe/bench/spec"
 	"fringe/results"
 )
 
 // saveEvery is how long a finished task waits at most before it is
-// persisted (bench.DefaultSaveEvery; tests shorten it).
-var saveEvery = bench.DefaultSaveEvery
+// persisted (runner.DefaultSaveEvery; tests shorten it).
+var saveEvery = runner.DefaultSaveEvery
 
 // execute plans, runs and writes a spec, keeping finished tasks in a
 // partial run directory as they complete: OUT.partial for a whole run
 // (removed once OUT is written), OUT itself for a shard (-shard i/n), which
 // `fringe merge` joins with the other shards. Started again with the same
 // command, a run that was stopped continues from its partial directory.
-func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []string, stdout, stderr io.Writer) error {
+func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, stdout, stderr io.Writer) error {
 	if rf.workers < 1 {
 		return usagef("-workers must be at least 1, got %d", rf.workers)
 	}
-	var shard bench.Shard
+	var shard plan.Shard
 	sharded := rf.shard != ""
 	if sharded {
 		var err error
-		if shard, err = bench.ParseShard(rf.shard); err != nil {
+		if shard, err = plan.ParseShard(rf.shard); err != nil {
 			return err
 		}
 	}
 	out := rf.out
 	if out == "" {
-		out = filepath.Join("fringe-out", spec.Name)
+		out = filepath.Join("fringe-out", s.Name)
 		if sharded {
-			out = filepath.Join("fringe-out", spec.Name+".shards", fmt.Sprintf("shard-%d-of-%d", shard.I, shard.N))
+			out = filepath.Join("fringe-out", s.Name+".shards", fmt.Sprintf("shard-%d-of-%d", shard.I, shard.N))
 		}
 	}
 	partialDir := out + ".partial"
@@ -49,11 +53,11 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 		partialDir = out
 	}
 	start := time.Now()
-	plan, err := bench.NewPlan(spec)
+	pl, err := plan.New(s)
 	if err != nil {
 		return err
 	}
-	pr, err := bench.OpenPartial(partialDir, plan, shard, bench.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
+	pr, err := runner.OpenPartial(partialDir, pl, shard, runner.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
 	if err != nil {
 		return err
 	}
@@ -74,14 +78,14 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 		note("resuming from %s: %d of %d tasks were finished before; running the other %d", partialDir, pr.Loaded(), pr.Total(), len(todo))
 	}
 	if len(todo) > 0 {
-		opt := bench.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery}
-		var prog *bench.Progress
+		opt := runner.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery}
+		var prog *runner.Progress
 		if !rf.quiet {
-			prog = bench.NewProgress(stderr, isTerminal(stderr), pr.Loaded(), pr.Total())
+			prog = runner.NewProgress(stderr, isTerminal(stderr), pr.Loaded(), pr.Total())
 			opt.Progress = prog.Update
 		}
 		stopWatch := watchInterrupt(ctx, stderr, prog, rf.quiet)
-		_, err := bench.Execute(ctx, plan, opt)
+		_, err := runner.Execute(ctx, pl, opt)
 		stopWatch()
 		if prog != nil {
 			if err == nil {
@@ -97,7 +101,7 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 					return fmt.Errorf("interrupted before any task finished; nothing was kept")
 				}
 				return fmt.Errorf("interrupted: %d of %d tasks are finished and kept in %s; run the same command again to resume", pr.Finished(), pr.Total(), partialDir)
-			case errors.Is(err, bench.ErrInput):
+			case errors.Is(err, input.ErrBad):
 				// The run cannot complete with this input: its partial
 				// directory would only be refused or mixed up later.
 				if rerr := pr.Remove(); rerr != nil {
@@ -117,34 +121,34 @@ func execute(ctx context.Context, spec *bench.Spec, rf *runFlags, cmdline []stri
 	end := time.Now()
 	if sharded {
 		if !rf.quiet {
-			fmt.Fprintf(stdout, "shard %s: %d of the run's %d tasks finished in %.1f s; partial run directory: %s\n", shard, len(res), len(plan.Tasks), end.Sub(start).Seconds(), out)
+			fmt.Fprintf(stdout, "shard %s: %d of the run's %d tasks finished in %.1f s; partial run directory: %s\n", shard, len(res), len(pl.Tasks), end.Sub(start).Seconds(), out)
 			fmt.Fprintf(stdout, "join the shards with: fringe merge -out DIR SHARD_DIR...\n")
 		}
 		return nil
 	}
-	info := bench.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
-	if err := plan.Write(out, res, info, nil); err != nil {
+	info := runner.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
+	if err := runner.Write(pl, out, res, info, nil); err != nil {
 		return err
 	}
 	if err := pr.Remove(); err != nil {
 		fmt.Fprintln(stderr, "fringe: warning: remove the partial run directory:", err)
 	}
 	if !rf.quiet {
-		if err := results.WriteSummaryText(stdout, plan.Summarise(res)); err != nil {
+		if err := results.WriteSummaryText(stdout, runner.Summarise(pl, res)); err != nil {
 			return err
 		}
 		resumed := ""
 		if pr.Loaded() > 0 {
-			resumed = fmt.Sprintf(" (%d finished before, %d now)", pr.Loaded(), len(plan.Tasks)-pr.Loaded())
+			resumed = fmt.Sprintf(" (%d finished before, %d now)", pr.Loaded(), len(pl.Tasks)-pr.Loaded())
 		}
-		fmt.Fprintf(stdout, "\n%d tasks%s in %.1f s with %d workers; run directory: %s\n", len(plan.Tasks), resumed, end.Sub(start).Seconds(), rf.workers, out)
+		fmt.Fprintf(stdout, "\n%d tasks%s in %.1f s with %d workers; run directory: %s\n", len(pl.Tasks), resumed, end.Sub(start).Seconds(), rf.workers, out)
 	}
 	return nil
 }
 
 // watchInterrupt tells the user, when ctx is cancelled (Ctrl-C, SIGTERM),
 // what happens next. The returned function stops watching.
-func watchInterrupt(ctx context.Context, stderr io.Writer, prog *bench.Progress, quiet bool) func() {
+func watchInterrupt(ctx context.Context, stderr io.Writer, prog *runner.Progress, quiet bool) func() {
 	stop := make(chan struct{})
 	done := make(chan struct{})
 	go func() {
@@ -186,7 +190,7 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 		return usagef("merge takes the partial run directories of every shard (see 'fringe merge -h')")
 	}
 	start := time.Now()
-	m, err := bench.Merge(pos)
+	m, err := runner.Merge(pos)
 	if err != nil {
 		return err
 	}
@@ -199,15 +203,15 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 			return usagef("-out %s is one of the partial run directories being merged; choose another", dir)
 		}
 	}
-	info := bench.RunInfo{Command: append([]string{"fringe", "merge"}, args...), Workers: m.Workers, Start: m.Start, End: time.Now()}
+	info := runner.RunInfo{Command: append([]string{"fringe", "merge"}, args...), Workers: m.Workers, Start: m.Start, End: time.Now()}
 	if info.Start.IsZero() {
 		info.Start = start
 	}
-	if err := m.Plan.Write(dir, m.Results, info, nil); err != nil {
+	if err := runner.Write(m.Plan, dir, m.Results, info, nil); err != nil {
 		return err
 	}
 	if !*quiet {
-		if err := results.WriteSummaryText(stdout, m.Plan.Summarise(m.Results)); err != nil {
+		if err := results.WriteSummaryText(stdout, runner.Summarise(m.Plan, m.Results)); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "\nmerged %d shards (%d tasks) in %.1f s; run directory: %s\n", m.Shards, len(m.Results), time.Since(start).Seconds(), dir)
@@ -230,7 +234,7 @@ func sameDir(a, b string) bool {
 // runSlurm is `fringe slurm SPEC -shards N`: it writes the cluster job.
 func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags(c, stdout)
-	o := bench.SlurmOptions{}
+	o := cluster.SlurmOptions{}
 	fs.IntVar(&o.Shards, "shards", 0, "number of shards = array tasks (required; at most the plan's units of work)")
 	out := fs.String("out", "", "directory of the merged run (default fringe-out/<spec name>); shards go to DIR.shards/")
 	fs.StringVar(&o.Fringe, "fringe", "fringe", "the fringe binary on the cluster's nodes: a path, or a name looked up on PATH")
@@ -250,26 +254,26 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if o.Shards == 0 {
 		return usagef("slurm needs -shards N (see 'fringe slurm -h')")
 	}
-	spec, err := bench.LoadSpec(pos[0])
+	s, err := spec.Load(pos[0])
 	if err != nil {
 		return err
 	}
-	plan, err := bench.NewPlan(spec)
+	pl, err := plan.New(s)
 	if err != nil {
 		return err
 	}
-	if o.Shards >= 1 && o.Shards <= bench.MaxShards {
-		if _, err := plan.ShardTasks(bench.Shard{I: 1, N: o.Shards}); err != nil {
+	if o.Shards >= 1 && o.Shards <= plan.MaxShards {
+		if _, err := pl.ShardTasks(plan.Shard{I: 1, N: o.Shards}); err != nil {
 			return err
 		}
 	}
-	o.Spec, o.JobName, o.Tasks = pos[0], "fringe-"+spec.Name, len(plan.Tasks)
+	o.Spec, o.JobName, o.Tasks = pos[0], "fringe-"+s.Name, len(pl.Tasks)
 	o.Out = *out
 	if o.Out == "" {
-		o.Out = filepath.Join("fringe-out", spec.Name)
+		o.Out = filepath.Join("fringe-out", s.Name)
 	}
 	var b bytes.Buffer
-	if err := bench.WriteSlurmScript(&b, o); err != nil {
+	if err := cluster.WriteSlurmScript(&b, o); err != nil {
 		return err
 	}
 	if *script == "" {
@@ -279,6 +283,6 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if err := os.WriteFile(*script, b.Bytes(), 0o755); err != nil {
 		return fmt.Errorf("write %s: %w", *script, err)
 	}
-	fmt.Fprintf(stdout, "wrote %s (%d tasks in %d shards); submit it with: bash %s\n", *script, len(plan.Tasks), o.Shards, *script)
+	fmt.Fprintf(stdout, "wrote %s (%d tasks in %d shards); submit it with: bash %s\n", *script, len(pl.Tasks), o.Shards, *script)
 	return nil
 }

@@ -13,6 +13,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"fringe/bench/internal/benchtest"
 )
 
 // TestMain lets the test binary stand in for the fringe command in a child
@@ -258,7 +260,7 @@ func TestClusterBadInput(t *testing.T) {
 	f2 := shard(grid, "f2", "2/4")
 	// An unfinished run of the grid, as a killed run leaves it.
 	unfinished := filepath.Join(base, "unfinished")
-	copyTree(t, s1, unfinished+".partial")
+	benchtest.CopyDir(t, s1, unfinished+".partial")
 	b, _ := os.ReadFile(filepath.Join(s1, "run.json"))
 	os.WriteFile(filepath.Join(unfinished+".partial", "run.json"), bytes.Replace(b, []byte(`"shard": "1/3"`), []byte(`"shard": "1/1"`), 1), 0o644)
 	os.WriteFile(filepath.Join(base, "notes.txt"), []byte("x"), 0o644)
@@ -278,7 +280,7 @@ func TestClusterBadInput(t *testing.T) {
 		{"merge nothing", []string{"merge"}, []string{"partial run directories"}},
 		{"merge missing", []string{"merge", "-out", filepath.Join(base, "m"), s1, s3}, []string{"missing shard(s) 2 of 3", "given: 1, 3"}},
 		{"merge other seed", []string{"merge", "-out", filepath.Join(base, "m"), s1, o2, s3}, []string{o2, "different run", "seed 100, not 99"}},
-		{"merge duplicate", []string{"merge", "-out", filepath.Join(base, "m"), s1, s2, s3, copyTree(t, s2, filepath.Join(base, "s2copy"))}, []string{"duplicate shards", "shard 2/3", "s2copy"}},
+		{"merge duplicate", []string{"merge", "-out", filepath.Join(base, "m"), s1, s2, s3, benchtest.CopyDir(t, s2, filepath.Join(base, "s2copy"))}, []string{"duplicate shards", "shard 2/3", "s2copy"}},
 		{"merge shard counts", []string{"merge", "-out", filepath.Join(base, "m"), s1, f2, s3}, []string{f2, "shard 2/4", "different shard counts"}},
 		{"merge into a shard", []string{"merge", "-out", s2, s1, s2, s3}, []string{"-out", "one of the partial run directories"}},
 		{"merge a run directory", []string{"merge", "-out", filepath.Join(base, "m"), filepath.Join(base, "notes.txt")}, []string{"notes.txt"}},
@@ -328,29 +330,6 @@ func listDir(t *testing.T, dir string) string {
 		return nil
 	})
 	return b.String()
-}
-
-// copyTree copies a directory tree and returns the copy's path.
-func copyTree(t *testing.T, from, to string) string {
-	t.Helper()
-	err := filepath.WalkDir(from, func(path string, d os.DirEntry, err error) error {
-		if err != nil {
-			return err
-		}
-		rel, _ := filepath.Rel(from, path)
-		if d.IsDir() {
-			return os.MkdirAll(filepath.Join(to, rel), 0o755)
-		}
-		b, err := os.ReadFile(path)
-		if err != nil {
-			return err
-		}
-		return os.WriteFile(filepath.Join(to, rel), b, 0o644)
-	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return to
 }
 
 // TestSlurmVerb writes a job script to a file and checks its array size,

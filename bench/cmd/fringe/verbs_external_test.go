@@ -1,13 +1,14 @@
 package main
 
 import (
-	"encoding/csv"
 	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"fringe/bench/internal/benchtest"
 )
 
 // python returns a Python 3 interpreter (python3 on PATH, else
@@ -25,21 +26,6 @@ func python(t *testing.T) string {
 	}
 	t.Skip("no python3 on PATH or at /usr/bin/python3: the example classifier cannot run")
 	return ""
-}
-
-// readCSV reads a whole CSV file.
-func readCSV(t *testing.T, path string) [][]string {
-	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
-	return recs
 }
 
 // column returns the index of a named column.
@@ -88,7 +74,7 @@ timeout = 120
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	recs := readCSV(t, filepath.Join(out, "predictions.csv"))
+	recs := benchtest.ReadCSV(t, filepath.Join(out, "predictions.csv"))
 	head := recs[0]
 	cm, cp, cr, cf, cpred, cprobs := column(t, head, "model"), column(t, head, "pipeline"), column(t, head, "row"), column(t, head, "fold"), column(t, head, "predicted"), column(t, head, "probs")
 	knn, ext := map[string]string{}, map[string]string{}
@@ -213,7 +199,7 @@ balance = true
 	if !strings.Contains(stdout, "wrote 100 OpenQASM 3 programs") || !strings.Contains(stdout, "train") {
 		t.Errorf("export summary:\n%s", stdout)
 	}
-	index := readCSV(t, filepath.Join(circuits, "index.csv"))
+	index := benchtest.ReadCSV(t, filepath.Join(circuits, "index.csv"))
 	if len(index) != 101 {
 		t.Fatalf("index has %d lines, want 101", len(index))
 	}
@@ -265,7 +251,7 @@ balance = true
 	if code, _, stderr := runCmd(t, "", "run", spec, "-out", out, "-quiet"); code != 0 {
 		t.Fatalf("run: exit %d: %s", code, stderr)
 	}
-	recs := readCSV(t, filepath.Join(out, "predictions.csv"))
+	recs := benchtest.ReadCSV(t, filepath.Join(out, "predictions.csv"))
 	head := recs[0]
 	cm, cpred, cpacc, cshots, cprobs := column(t, head, "model"), column(t, head, "predicted"), column(t, head, "p_acc"), column(t, head, "shots"), column(t, head, "probs")
 	n := 0
@@ -283,7 +269,7 @@ balance = true
 	if n != 100 {
 		t.Errorf("%d counts records, want 100", n)
 	}
-	folds := readCSV(t, filepath.Join(out, "folds.csv"))
+	folds := benchtest.ReadCSV(t, filepath.Join(out, "folds.csv"))
 	if ce := column(t, folds[0], "exact_disagreement"); folds[1][ce] == "" && folds[len(folds)-1][ce] == "" {
 		t.Errorf("folds.csv has no exact disagreement for the counts model")
 	}
@@ -314,7 +300,7 @@ func TestExportUsage(t *testing.T) {
 	if code != 0 || !strings.Contains(out, "command") || !strings.Contains(out, "counts") || !strings.Contains(out, "FRINGE_SEED") {
 		t.Errorf("fringe list does not describe the command and counts kinds:\n%s", out)
 	}
-	if n := len(readCSV(t, filepath.Join(work, "c", "index.csv"))); n != 151 {
+	if n := len(benchtest.ReadCSV(t, filepath.Join(work, "c", "index.csv"))); n != 151 {
 		t.Errorf("export of iris under the default 10 folds: %d index lines, want 151 (header and one per row)", n)
 	}
 }

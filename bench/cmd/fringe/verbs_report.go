@@ -10,7 +10,8 @@ import (
 	"path/filepath"
 	"strings"
 
-	"fringe/bench"
+	"fringe/bench/input"
+	"fringe/bench/report"
 	"fringe/results"
 )
 
@@ -46,14 +47,14 @@ func runRank(ctx context.Context, c *command, args []string, stdout, stderr io.W
 		if errors.As(err, &pe) {
 			err = pe.Err
 		}
-		return &bench.InputError{File: path, Err: fmt.Errorf("cannot read the scores: %w", err)}
+		return &input.Error{File: path, Err: fmt.Errorf("cannot read the scores: %w", err)}
 	}
-	t, err := bench.ReadScores(f, path)
+	t, err := report.ReadScores(f, path)
 	f.Close()
 	if err != nil {
 		return err
 	}
-	rt, err := bench.Rank(t, *alpha)
+	rt, err := report.Rank(t, *alpha)
 	if err != nil {
 		return err
 	}
@@ -109,7 +110,7 @@ func runCompare(ctx context.Context, c *command, args []string, stdout, stderr i
 	if *correction != "holm" && *correction != "none" {
 		return usagef("-correction must be holm or none, got %q", *correction)
 	}
-	opt := bench.CompareOptions{Alpha: *alpha, Tolerance: *tol, NoCorrection: *correction == "none"}
+	opt := report.CompareOptions{Alpha: *alpha, Tolerance: *tol, NoCorrection: *correction == "none"}
 	if !(*alpha > 0 && *alpha < 0.5) {
 		return usagef("-alpha must lie in (0, 0.5), got %v", *alpha)
 	}
@@ -130,11 +131,11 @@ func runCompare(ctx context.Context, c *command, args []string, stdout, stderr i
 	for i, dir := range pos {
 		r, err := results.ReadRun(dir)
 		if err != nil {
-			return &bench.InputError{Err: err}
+			return &input.Error{Err: err}
 		}
 		runs[i] = r
 	}
-	rc, err := bench.Compare(runs[0], runs[1], opt)
+	rc, err := report.Compare(runs[0], runs[1], opt)
 	if err != nil {
 		return err
 	}

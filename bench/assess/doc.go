@@ -1,0 +1,18 @@
+// Package assess writes the suitability report of datasets for amplitude
+// encoding (`fringe assess`): per dataset and pipeline, the registers and
+// padding waste, CNOT and single-qubit counts and depth of the compiled
+// circuit for the full training part and for train_subset sizes, the noise
+// budget, post-selection statistics and the shots a confident decision
+// needs, what L2 normalisation throws away (k-NN before and after, with
+// lift and on the norm alone), centered kernel-target alignment of the
+// interference and RBF kernels, exact accuracy against the best classical
+// baseline with the paired corrected interval, and a Pareto-front ranking
+// (assess.go). The closed forms behind the criteria are in math.go;
+// Write renders the report files atomically (output.go).
+//
+// Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
+// bench/runner (it runs small plans), bench/report, bench/export (the
+// class-balanced subsets of the circuits), bench/outdir, bench/stats and
+// results. It must never import cluster, and nothing but the command
+// imports it.
+package assess

@@ -1,0 +1,16 @@
+// Package export builds the interference circuits of a plan's test
+// instances as programs for other tools and devices.
+//
+// Circuits writes the OpenQASM 3 program of every test instance of a plan
+// (every dataset, pipeline, repeat and fold) into a folder, with index.csv
+// mapping each file to its instance, written atomically: the circuits a
+// run's interference models would simulate, with the same training subsets
+// and weights, so that counts measured on a device and read back by a
+// counts model decide exactly as shot mode would. BuildCircuit compiles the
+// circuit of one test instance of a dataset for `fringe circuit`.
+//
+// Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
+// bench/outdir, results (the CSV cell rule) and the model packages
+// (qkernel, qkernel/circuit, datasets). It must never import runner,
+// report, assess or cluster.
+package export

@@ -1,0 +1,301 @@
+package modelkit
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"fringe/baselines"
+	"fringe/qkernel"
+)
+
+// builder makes a fresh, unfitted model for one task. seed is the task's
+// seed, derived from the run seed and the task key.
+type builder func(seed uint64) baselines.Model
+
+// Spec is one validated model configuration of a spec's [[model]] table:
+// its kind, its display name and its parameters. New builds a fresh,
+// unfitted model from it.
+type Spec struct {
+	Kind   string
+	Name   string         // display name (the table's `name`, or a label built from kind and params)
+	Params map[string]any // the validated parameters, by key
+	Line   int            // line of the table in the spec file (0 if unknown); set by the spec parser
+
+	// Interference is the configuration of an interference model (nil for
+	// other kinds); its Seed is set per task by New.
+	Interference *qkernel.Classifier
+
+	build builder
+}
+
+// New builds a fresh, unfitted model for a task with the given seed.
+func (m Spec) New(seed uint64) baselines.Model { return m.build(seed) }
+
+// InputFiles lists the files the model reads while it runs, resolved
+// against dir (the spec's folder): the counts file of a counts model, and
+// every argument of a command model that names an existing regular file
+// (its script, say; the program runs in dir). A change to one of them
+// between sessions must not mix old and new results, so the run's
+// fingerprint covers them.
+func (m Spec) InputFiles(dir string) []string {
+	var out []string
+	switch m.Kind {
+	case "counts":
+		if f, ok := m.Params["file"].(string); ok {
+			out = append(out, countsPath(dir, f))
+		}
+	case "command":
+		run, _ := m.Params["run"].([]string)
+		for _, arg := range run {
+			path := arg
+			if !filepath.IsAbs(path) && dir != "" {
+				path = filepath.Join(dir, path)
+			}
+			if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
+				out = append(out, path)
+			}
+		}
+	}
+	return out
+}
+
+// Info describes a model kind for `fringe list`.
+type Info struct {
+	Kind, Keys, Description string
+}
+
+// Infos lists the model kinds a spec may use.
+func Infos() []Info {
+	return []Info{
+		{"interference", "mode, balance, shots, train_subset, noise, method, trajectories", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise); balance = true weights the index register by 1/(C*M_k)"},
+		{"knn", "k, metric, weights", "k-nearest neighbours; metric euclidean|manhattan|cosine; weights uniform|distance; ties: nearer then lower index, vote ties to the first class"},
+		{"svm", "kernel, C, gamma, degree, coef0, tol", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; one-vs-one"},
+		{"logreg", "C, max_iter", "multinomial logistic regression, L2 penalty 1/C (intercept unpenalised), fitted by L-BFGS"},
+		{"centroid", "", "nearest centroid (Euclidean), a sanity baseline"},
+		{"command", "run, timeout", "your own classifier as a program, run once per task: run = [\"python3\", \"mine.py\"] gets the paths of TRAIN (row,label,<features>), TEST (row,<features>) and OUT, and writes OUT as row,predicted[,prob_<class>...]; FRINGE_SEED holds the task's seed; timeout in seconds"},
+		{"counts", "file, balance, train_subset", "outcomes measured on a device for the circuits of `fringe circuit -export` (file = CSV with dataset,repeat,fold,row,ancilla,class,count[,pipeline]), decided by post-selection as shot mode does; balance and train_subset as the exported circuits"},
+	}
+}
+
+// Parse validates one [[model]] table (as decoded from TOML: strings,
+// int64, float64, bool, []any and map[string]any values) and returns its
+// Spec. Errors about one key are a *KeyError naming the key (for a noise
+// key, "noise.<key>"); the spec parser adds the file, line and table.
+func Parse(m map[string]any) (Spec, error) {
+	p := newParams(m)
+	kind := p.str("kind", "")
+	if p.err != nil {
+		return Spec{}, p.err
+	}
+	name := p.str("name", "")
+	if p.err != nil {
+		return Spec{}, p.err
+	}
+	ms := Spec{Kind: kind, Params: map[string]any{}}
+	var label string
+	switch kind {
+	case "":
+		return ms, keyErr("kind", "missing model kind (one of %s)", kindList())
+	case "interference":
+		label = parseInterferenceModel(p, &ms)
+	case "knn":
+		label = parseKNN(p, &ms)
+	case "svm":
+		label = parseSVM(p, &ms)
+	case "logreg":
+		label = parseLogReg(p, &ms)
+	case "command":
+		label = parseCommand(p, &ms)
+	case "counts":
+		label = parseCounts(p, &ms)
+	case "centroid":
+		label = "centroid"
+		ms.build = func(uint64) baselines.Model { return &baselines.Centroid{} }
+	default:
+		return ms, keyErr("kind", "unknown model kind %q (one of %s)", kind, kindList())
+	}
+	if err := p.finish(kind); err != nil {
+		return ms, err
+	}
+	if name != "" {
+		label = name
+	}
+	if strings.ContainsAny(label, ",\"\n") {
+		return ms, keyErr("name", "model name %q must not contain commas, quotes or newlines", label)
+	}
+	ms.Name = label
+	return ms, nil
+}
+
+// parseInterferenceModel reads the keys of an interference model (see
+// parseInterference), sets the model's params and builder and returns its
+// default label.
+func parseInterferenceModel(p *params, ms *Spec) string {
+	q, label, noise := parseInterference(p)
+	ms.Params["mode"], ms.Params["balance"] = q.Mode.String(), q.Balance
+	ms.Params["shots"], ms.Params["train_subset"] = q.Shots, q.TrainSubset
+	if noise != nil {
+		ms.Params["noise"] = noise
+	}
+	ms.build = func(seed uint64) baselines.Model {
+		c := q
+		c.Seed = seed
+		return &c
+	}
+	ms.Interference = &q
+	return label
+}
+
+// parseKNN reads the keys of a k-NN model: k, metric and weights.
+func parseKNN(p *params, ms *Spec) string {
+	var label string
+	k := p.integer("k", 5)
+	metricS := p.str("metric", "euclidean")
+	weightsS := p.str("weights", "uniform")
+	if p.err == nil && k < 1 {
+		p.fail("k", "k must be at least 1, got %d", k)
+	}
+	metric, err := baselines.ParseMetric(metricS)
+	if err != nil {
+		p.fail("metric", "%v", err)
+	}
+	weights, err := baselines.ParseWeighting(weightsS)
+	if err != nil {
+		p.fail("weights", "%v", err)
+	}
+	label = fmt.Sprintf("knn-k%d", k)
+	if metricS != "euclidean" {
+		label += "-" + metricS
+	}
+	if weightsS != "uniform" {
+		label += "-" + weightsS
+	}
+	ms.Params["k"], ms.Params["metric"], ms.Params["weights"] = k, metricS, weightsS
+	ms.build = func(uint64) baselines.Model {
+		return &baselines.KNN{K: k, Metric: metric, Weights: weights}
+	}
+	return label
+}
+
+// parseSVM reads the keys of an SVM: kernel, C, gamma (a positive number
+// or "scale"), degree, coef0 and tol.
+func parseSVM(p *params, ms *Spec) string {
+	var label string
+	kernelS := p.str("kernel", "rbf")
+	c := p.number("C", 1)
+	gamma := 0.0
+	gammaS := "scale"
+	if p.has("gamma") {
+		switch v := p.m["gamma"].(type) {
+		case string:
+			p.used["gamma"] = true
+			if v != "scale" {
+				p.fail("gamma", "gamma is a positive number or \"scale\", got %q", v)
+			}
+		default:
+			gamma = p.number("gamma", 0)
+			if p.err == nil && !(gamma > 0) {
+				p.fail("gamma", "gamma must be positive, got %v", gamma)
+			}
+			gammaS = fmtNum(gamma)
+		}
+	}
+	degree := p.integer("degree", 3)
+	coef0 := p.number("coef0", 0)
+	tol := p.number("tol", 1e-3)
+	kernel, err := baselines.ParseKernel(kernelS)
+	if err != nil {
+		p.fail("kernel", "%v", err)
+	}
+	if p.err == nil && !(c > 0) {
+		p.fail("C", "C must be positive, got %v", c)
+	}
+	if p.err == nil && degree < 1 {
+		p.fail("degree", "degree must be at least 1, got %d", degree)
+	}
+	if p.err == nil && !(tol > 0) {
+		p.fail("tol", "tol must be positive, got %v", tol)
+	}
+	label = fmt.Sprintf("svm-%s-C%s", kernelS, fmtNum(c))
+	if kernelS == "rbf" || kernelS == "poly" {
+		if gammaS != "scale" {
+			label += "-g" + gammaS
+		}
+	}
+	if kernelS == "poly" {
+		label += fmt.Sprintf("-d%d", degree)
+	}
+	ms.Params["kernel"], ms.Params["C"], ms.Params["gamma"] = kernelS, c, gammaS
+	ms.Params["degree"], ms.Params["coef0"], ms.Params["tol"] = degree, coef0, tol
+	ms.build = func(uint64) baselines.Model {
+		return &baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: coef0, Tol: tol}
+	}
+	return label
+}
+
+// parseLogReg reads the keys of a logistic regression: C and max_iter.
+func parseLogReg(p *params, ms *Spec) string {
+	var label string
+	c := p.number("C", 1)
+	maxIter := p.integer("max_iter", 0)
+	if p.err == nil && !(c > 0) {
+		p.fail("C", "C must be positive, got %v", c)
+	}
+	if p.err == nil && maxIter < 0 {
+		p.fail("max_iter", "max_iter must be non-negative, got %d", maxIter)
+	}
+	label = "logreg-C" + fmtNum(c)
+	ms.Params["C"], ms.Params["max_iter"] = c, maxIter
+	ms.build = func(uint64) baselines.Model {
+		return &baselines.LogReg{C: c, MaxIter: maxIter}
+	}
+	return label
+}
+
+func kindList() string {
+	var ks []string
+	for _, mi := range Infos() {
+		ks = append(ks, mi.Kind)
+	}
+	return strings.Join(ks, ", ")
+}
+
+// fmtNum formats a parameter value for a model label: shortest form.
+func fmtNum(v float64) string {
+	if v == math.Trunc(v) && math.Abs(v) < 1e15 {
+		return strconv.FormatInt(int64(v), 10)
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// ParamInt reads an integer parameter value as Spec.Params holds it (int,
+// or int64/float64 as TOML decodes it); anything else is 0.
+func ParamInt(x any) int {
+	switch v := x.(type) {
+	case int:
+		return v
+	case int64:
+		return int(v)
+	case float64:
+		return int(v)
+	}
+	return 0
+}
+
+// ParamFloat reads a numeric parameter value (int, int64 or float64);
+// anything else is NaN.
+func ParamFloat(x any) float64 {
+	switch v := x.(type) {
+	case int:
+		return float64(v)
+	case int64:
+		return float64(v)
+	case float64:
+		return v
+	}
+	return math.NaN()
+}

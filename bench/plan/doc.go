@@ -1,0 +1,25 @@
+// Package plan turns a spec into a plan: the datasets loaded (embedded,
+// synthetic or from a file, with their class and feature selections), the
+// splits drawn, and the list of tasks, each one (dataset, pipeline, model,
+// repeat, fold) with a stable key. Building a plan checks everything that
+// can be checked before a model is fitted — parameters against the data
+// (k of k-NN, train_subset), circuits against the simulators' qubit limits
+// — so bad input fails fast and leaves nothing behind; every such error is
+// an input error.
+//
+// Seeds: Seed and NewRand derive generators from the run seed and a key,
+// never from scheduling. The splits of a dataset depend only on the seed,
+// its display name and the repeat, so every pipeline and model sees the
+// same folds. ModelSeed gives each task its model's seed; InterferenceSeed
+// gives every interference model of a split one shared seed (paired
+// comparisons, and exported circuits that match the run).
+//
+// Units and shards: the tasks that share a dataset, pipeline and split form
+// a unit of work (the pipeline is fitted once per unit, Prepare); a Shard
+// deals whole units round-robin. Fingerprint digests everything the plan
+// computes on, for the identity of partial runs.
+//
+// Imports: bench/input, bench/spec, bench/modelkit, bench/cv and the model
+// packages. It must never import runner, report, export, assess, cluster or
+// results.
+package plan

@@ -1,0 +1,283 @@
+package plan
+
+import (
+	"errors"
+	"fmt"
+	"path/filepath"
+
+	"fringe/baselines"
+	"fringe/bench/cv"
+	"fringe/bench/input"
+	"fringe/bench/modelkit"
+	"fringe/bench/spec"
+	"fringe/datasets"
+	"fringe/qkernel"
+	"fringe/qkernel/circuit"
+	"fringe/qkernel/sim"
+)
+
+// Plan is a spec made concrete: datasets loaded, splits drawn, tasks listed.
+// Building a plan checks all input that can be checked before any model is
+// fitted, so bad input fails fast and leaves nothing behind.
+type Plan struct {
+	Spec     *spec.Spec
+	Datasets []*Dataset
+	Tasks    []Task
+
+	layout *modelkit.Layout // what models may know of the run (TaskContext.Layout)
+}
+
+// Dataset is a loaded dataset with its splits (all repeats).
+type Dataset struct {
+	Spec   spec.Dataset
+	Name   string // display name
+	Data   *datasets.Dataset
+	Splits []cv.Split // in (repeat, fold) order
+}
+
+// Task is one unit of work: fit one pipeline and one model on one split of
+// one dataset. Its key is stable across runs and worker counts.
+type Task struct {
+	Index    int // position in task order
+	Dataset  int // index into Plan.Datasets
+	Pipeline int // index into Spec.Pipelines
+	Model    int // index into Spec.Models
+	Split    int // index into Dataset.Splits
+}
+
+// Key returns the task's stable key: dataset/pipeline/model/repeat/fold.
+func (p *Plan) Key(t Task) string {
+	d := p.Datasets[t.Dataset]
+	s := d.Splits[t.Split]
+	return fmt.Sprintf("%s/%s/%s/%d/%d", d.Name, p.Spec.Pipelines[t.Pipeline], p.Spec.Models[t.Model].Name, s.Repeat, s.Fold)
+}
+
+// New loads the spec's datasets, draws the splits and lists the tasks in
+// order (dataset, pipeline, model, repeat, fold). All errors are input
+// errors (errors.Is(err, input.ErrBad)).
+func New(s *spec.Spec) (*Plan, error) {
+	p := &Plan{Spec: s}
+	for _, ds := range s.Datasets {
+		pd, err := planDataset(s, ds)
+		if err != nil {
+			return nil, err
+		}
+		p.Datasets = append(p.Datasets, pd)
+	}
+	if err := p.checkModels(); err != nil {
+		return nil, err
+	}
+	for di, d := range p.Datasets {
+		for pi := range s.Pipelines {
+			for mi := range s.Models {
+				for si := range d.Splits {
+					p.Tasks = append(p.Tasks, Task{Index: len(p.Tasks), Dataset: di, Pipeline: pi, Model: mi, Split: si})
+				}
+			}
+		}
+	}
+	p.layout = p.newLayout()
+	return p, nil
+}
+
+func planDataset(s *spec.Spec, ds spec.Dataset) (*Dataset, error) {
+	inErr := func(err error) error {
+		return &input.Error{File: s.File, Line: ds.Line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+	}
+	data, err := LoadDataset(s, ds)
+	if err != nil {
+		return nil, err
+	}
+	counts := data.ClassCounts()
+	present := 0
+	for _, c := range counts {
+		if c > 0 {
+			present++
+		}
+	}
+	if present < 2 {
+		return nil, inErr(fmt.Errorf("needs at least two classes with members, has %d", present))
+	}
+	pd := &Dataset{Spec: ds, Name: ds.Display(), Data: data}
+	switch s.CV.Method {
+	case spec.CVLeaveOneOut:
+		pd.Splits = cv.LeaveOneOut(data.Len())
+	case spec.CVStratified:
+		for r := 0; r < s.CV.Repeats; r++ {
+			rng := NewRand(s.Seed, "split", pd.Name, fmt.Sprint(r))
+			sp, err := cv.Stratified(data.Y, len(data.Classes), s.CV.Folds, rng)
+			if err != nil {
+				return nil, inErr(classError(err, data, s.CV.Folds))
+			}
+			for i := range sp {
+				sp[i].Repeat = r
+			}
+			pd.Splits = append(pd.Splits, sp...)
+		}
+	case spec.CVHoldout:
+		for r := 0; r < s.CV.Repeats; r++ {
+			rng := NewRand(s.Seed, "split", pd.Name, fmt.Sprint(r))
+			sp, err := cv.Holdout(data.Y, len(data.Classes), s.CV.TestFraction, rng)
+			if err != nil {
+				return nil, inErr(classError(err, data, 0))
+			}
+			sp.Repeat, sp.Fold = r, 0
+			pd.Splits = append(pd.Splits, sp)
+		}
+	}
+	// Every training part must hold at least two classes.
+	for _, sp := range pd.Splits {
+		seen := map[int]bool{}
+		for _, i := range sp.Train {
+			seen[data.Y[i]] = true
+		}
+		if len(seen) < 2 {
+			return nil, inErr(fmt.Errorf("repeat %d fold %d: training part holds a single class", sp.Repeat, sp.Fold))
+		}
+	}
+	return pd, nil
+}
+
+// LoadDataset loads a dataset named in a spec (embedded, synthetic or CSV,
+// relative paths resolved against the spec's directory) and applies its
+// class and feature selection.
+func LoadDataset(s *spec.Spec, ds spec.Dataset) (*datasets.Dataset, error) {
+	inErr := func(err error) error {
+		return &input.Error{File: s.File, Line: ds.Line, Err: fmt.Errorf("dataset %s: %w", ds.Display(), err)}
+	}
+	var data *datasets.Dataset
+	var err error
+	if spec.IsPath(ds.Name) {
+		path := ds.Name
+		if !filepath.IsAbs(path) && s.Dir != "" {
+			path = filepath.Join(s.Dir, path)
+		}
+		data, err = datasets.LoadCSV(path, datasets.CSVOptions{Label: ds.Label, DropInvalid: ds.DropInvalid})
+		if err != nil {
+			return nil, &input.Error{Err: err} // the CSV error names file, line and column
+		}
+	} else {
+		if ds.Label != "" || ds.DropInvalid {
+			return nil, inErr(fmt.Errorf("label and drop_invalid apply to CSV files only"))
+		}
+		data, err = datasets.Load(ds.Name)
+		if err != nil {
+			return nil, inErr(err)
+		}
+	}
+	if len(ds.Classes) > 0 || len(ds.Features) > 0 {
+		data, err = data.Subset(ds.Classes, ds.Features)
+		if err != nil {
+			return nil, inErr(err)
+		}
+	}
+	return data, nil
+}
+
+// classError adds the class name to a splitter error.
+func classError(err error, data *datasets.Dataset, folds int) error {
+	var ce *cv.ClassError
+	if errors.As(err, &ce) && ce.Class >= 0 && ce.Class < len(data.Classes) {
+		if folds > 0 {
+			return fmt.Errorf("class %q has %d members, fewer than the %d folds", data.Classes[ce.Class], ce.Count, folds)
+		}
+		return fmt.Errorf("class %q has %d members, fewer than the %d a stratified holdout needs", data.Classes[ce.Class], ce.Count, ce.Need)
+	}
+	return err
+}
+
+// checkModels rejects parameters that cannot fit the planned splits: k of
+// k-NN larger than a training part, and an interference model's
+// train_subset larger than a training part or smaller than the number of
+// classes it holds.
+func (p *Plan) checkModels() error {
+	if err := p.checkQubits(); err != nil {
+		return err
+	}
+	for mi, m := range p.Spec.Models {
+		var key string
+		var k int
+		switch m.Kind {
+		case "knn":
+			key, k = "k", m.Params["k"].(int)
+		case "interference", "counts":
+			key, k = "train_subset", modelkit.ParamInt(m.Params["train_subset"])
+		default:
+			continue
+		}
+		if k == 0 {
+			continue
+		}
+		full := fmt.Sprintf("model[%d].%s", mi+1, key)
+		bad := func(err error) error {
+			return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(full), Key: full, Err: err}
+		}
+		for _, d := range p.Datasets {
+			for _, sp := range d.Splits {
+				if k > len(sp.Train) {
+					return bad(fmt.Errorf("%s = %d exceeds the %d training instances of dataset %s (repeat %d fold %d): %w",
+						key, k, len(sp.Train), d.Name, sp.Repeat, sp.Fold, baselines.ErrParam))
+				}
+				if m.Kind == "knn" {
+					continue
+				}
+				seen := map[int]bool{}
+				for _, i := range sp.Train {
+					seen[d.Data.Y[i]] = true
+				}
+				if k < len(seen) {
+					return bad(fmt.Errorf("train_subset = %d is smaller than the %d classes in the training instances of dataset %s (repeat %d fold %d); a class-balanced subset needs one per class",
+						k, len(seen), d.Name, sp.Repeat, sp.Fold))
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// checkQubits rejects an interference model whose circuit, for the largest
+// training part (or its train_subset) and the features after each pipeline,
+// needs more qubits than the simulator it will run on holds: the density
+// matrix (sim.MaxDensityQubits) when chosen explicitly, state vectors and
+// trajectories (sim.MaxStateQubits) otherwise. Checking here makes the error
+// immediate and the same on every run.
+func (p *Plan) checkQubits() error {
+	for mi, m := range p.Spec.Models {
+		q := m.Interference
+		if q == nil || q.Mode == qkernel.ModeExact || q.Mode == qkernel.ModeShots {
+			continue
+		}
+		gate := q.Mode == qkernel.ModeCircuit || !q.Noise.IsZero() || q.Method != sim.Auto
+		if !gate {
+			continue // closed-form channels only
+		}
+		limit, simName, alt := sim.MaxStateQubits, "state-vector and trajectory simulators hold", "set train_subset"
+		if q.Method == sim.DensityMatrix {
+			limit, simName, alt = sim.MaxDensityQubits, "density-matrix simulator holds", "set train_subset or method = \"trajectories\""
+		}
+		for _, d := range p.Datasets {
+			for _, ps := range p.Spec.Pipelines {
+				pipe, err := datasets.ParsePipeline(ps)
+				if err != nil {
+					return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
+				}
+				dim := len(pipe.FeatureNames(d.Data.Features))
+				mTrain := 0
+				for _, sp := range d.Splits {
+					mTrain = max(mTrain, len(sp.Train))
+				}
+				if q.TrainSubset > 0 {
+					mTrain = min(mTrain, q.TrainSubset)
+				}
+				ni, nd, nc := circuit.RegisterSizes(mTrain, dim, len(d.Data.Classes))
+				if n := 1 + ni + nd + nc; n > limit {
+					key := fmt.Sprintf("model[%d]", mi+1)
+					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
+						Err: fmt.Errorf("model %s on dataset %s, pipeline %s: the circuit needs %d qubits (%d training vectors, %d features); the %s at most %d; %s: %w",
+							m.Name, d.Name, ps, n, mTrain, dim, simName, limit, alt, qkernel.ErrTooLarge)}
+				}
+			}
+		}
+	}
+	return nil
+}

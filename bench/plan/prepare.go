@@ -1,0 +1,95 @@
+package plan
+
+import (
+	"errors"
+	"fmt"
+
+	"gonum.org/v1/gonum/mat"
+
+	"fringe/baselines"
+	"fringe/bench/input"
+	"fringe/datasets"
+	"fringe/qkernel"
+)
+
+// Gather copies the rows idx of a dataset into a new matrix, with their
+// labels and their dataset row ids.
+func Gather(d *datasets.Dataset, idx []int) (*mat.Dense, []int, []int) {
+	c := d.Dim()
+	X := mat.NewDense(len(idx), c, nil)
+	y := make([]int, len(idx))
+	rows := make([]int, len(idx))
+	for i, j := range idx {
+		copy(X.RawRowView(i), d.X.RawRowView(j))
+		y[i] = d.Y[j]
+		rows[i] = d.Rows[j]
+	}
+	return X, y, rows
+}
+
+// classify marks pipeline errors that stem from the data as input errors.
+func (p *Plan) classify(err error, where string) error {
+	if errors.Is(err, datasets.ErrZeroVector) || errors.Is(err, datasets.ErrUnknownStep) ||
+		errors.Is(err, datasets.ErrStepParam) || errors.Is(err, datasets.ErrNotFiniteValue) {
+		return &input.Error{File: p.Spec.File, Err: fmt.Errorf("%s: %w", where, err)}
+	}
+	return fmt.Errorf("%s: %w", where, err)
+}
+
+// ClassifyModel marks model errors caused by the data or parameters as input
+// errors, and maps a vector's position to its dataset row.
+func (p *Plan) ClassifyModel(err error, where, model string, rows []int) error {
+	var ve *qkernel.VectorError
+	if errors.As(err, &ve) && ve.Pos >= 0 && ve.Pos < len(rows) {
+		err = fmt.Errorf("dataset row %d: %w", rows[ve.Pos], err)
+	}
+	err = fmt.Errorf("%s, model %s: %w", where, model, err)
+	if errors.Is(err, baselines.ErrParam) || errors.Is(err, baselines.ErrData) ||
+		errors.Is(err, qkernel.ErrZeroVector) || errors.Is(err, qkernel.ErrOneClass) ||
+		errors.Is(err, qkernel.ErrTooLarge) || errors.Is(err, qkernel.ErrSubset) || errors.Is(err, qkernel.ErrOption) {
+		return &input.Error{File: p.Spec.File, Err: err}
+	}
+	return err
+}
+
+// Prepared is one split of one dataset under one pipeline, ready for the
+// models: the pipeline fitted on the training part and applied to both
+// parts. Models never modify these matrices, so one Prepared serves every
+// model of the split.
+type Prepared struct {
+	Where    string     // "dataset D, pipeline P, repeat R fold F", for messages
+	Features []string   // feature names after the pipeline
+	Ztr      *mat.Dense // the transformed training part, in split order
+	Ytr      []int      // its class indices
+	RowsTr   []int      // its dataset rows (0-based, as loaded)
+	Zte      *mat.Dense // the transformed test part, in split order
+	RowsTe   []int      // its dataset rows
+}
+
+// Prepare fits pipeline pi on the training part of split si of dataset di
+// and transforms both parts. Errors that stem from the data (a zero vector
+// to normalise, a non-finite value after a step, a step that does not fit
+// the data) are input errors naming the dataset, pipeline and split.
+func (p *Plan) Prepare(di, pi, si int) (*Prepared, error) {
+	d := p.Datasets[di]
+	sp := d.Splits[si]
+	ps := p.Spec.Pipelines[pi]
+	pipe, err := datasets.ParsePipeline(ps)
+	if err != nil {
+		return nil, &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
+	}
+	pr := &Prepared{Where: fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, ps, sp.Repeat, sp.Fold)}
+	pr.Features = pipe.FeatureNames(d.Data.Features)
+	Xtr, ytr, rowsTr := Gather(d.Data, sp.Train)
+	Xte, _, rowsTe := Gather(d.Data, sp.Test)
+	Ztr, err := pipe.FitTransform(Xtr, rowsTr)
+	if err != nil {
+		return nil, p.classify(err, pr.Where)
+	}
+	Zte, err := pipe.Transform(Xte, rowsTe)
+	if err != nil {
+		return nil, p.classify(err, pr.Where)
+	}
+	pr.Ztr, pr.Ytr, pr.RowsTr, pr.Zte, pr.RowsTe = Ztr, ytr, rowsTr, Zte, rowsTe
+	return pr, nil
+}

@@ -1,0 +1,25 @@
+// Package runner executes plans and writes run directories.
+//
+//   - Execute runs a plan's tasks (all of them, or one shard's, or those a
+//     resumed run still lacks) on a worker pool, one unit of work
+//     (dataset, pipeline, split) at a time so that the pipeline is fitted
+//     once for all models; every task's model gets a seed derived from the
+//     run seed and its key, so results never depend on the worker count
+//     or on scheduling (execute.go).
+//   - Partial directories keep finished tasks as they complete, so that a
+//     killed run resumes and a shard of a job array can be merged; their
+//     identity (run.json) binds them to the spec's canonical form, seed,
+//     version and plan fingerprint; task files store floats bit for bit
+//     (partial.go, taskfile.go, lock_*.go). Merge joins complete shards
+//     into the results of one run (merge.go).
+//   - Records, Summarise, Manifest, Report and Write turn results into the
+//     run directory: predictions.csv, folds.csv, summary.csv, summary.tex,
+//     summary.md, comparisons.csv, timings.csv, manifest.json and figures,
+//     written atomically; every file but the manifest and the timings is
+//     byte-identical for the same spec and seed (rundir.go).
+//   - Progress draws the progress bar or log lines (progress.go).
+//
+// Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
+// bench/report, bench/outdir, bench/stats and results. It must never
+// import export, assess or cluster.
+package runner

@@ -1,0 +1,182 @@
+package runner
+
+import (
+	"bytes"
+	"context"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+
+	"fringe/bench/internal/benchtest"
+	"fringe/results"
+)
+
+const verifySpec = `
+name = "verify"
+seed = 4
+datasets = ["iris", "wine"]
+pipelines = ["std+l2"]
+[cv]
+folds = 3
+[[model]]
+kind = "interference"
+mode = "shots"
+shots = 64
+[[model]]
+kind = "knn"
+[[model]]
+kind = "centroid"
+`
+
+// writeVerifyRun writes the run directory of verifySpec and returns it.
+func writeVerifyRun(t *testing.T) string {
+	t.Helper()
+	p := benchtest.Plan(t, "verify.toml", verifySpec)
+	res, err := Execute(context.Background(), p, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(t.TempDir(), "run")
+	if err := Write(p, dir, res, RunInfo{Workers: 2}, nil); err != nil {
+		t.Fatal(err)
+	}
+	return dir
+}
+
+func filesOf(t *testing.T, dir string) []string {
+	t.Helper()
+	var out []string
+	filepath.WalkDir(dir, func(path string, d fs.DirEntry, err error) error {
+		if err == nil && !d.IsDir() {
+			rel, _ := filepath.Rel(dir, path)
+			out = append(out, filepath.ToSlash(rel))
+		}
+		return nil
+	})
+	sort.Strings(out)
+	return out
+}
+
+func problemFiles(v *Verified) []string {
+	var out []string
+	for _, p := range v.Problems {
+		out = append(out, p.File)
+	}
+	return out
+}
+
+// TestVerifyEveryByte: a run directory as written verifies; then for
+// every file of it, changing one byte (in the middle of the file) makes
+// Verify report a problem naming that file.
+func TestVerifyEveryByte(t *testing.T) {
+	dir := writeVerifyRun(t)
+	v, err := Verify(dir, VerifyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(v.Problems) != 0 {
+		t.Fatalf("a fresh run directory does not verify: %v", v.Problems)
+	}
+	if strings.Join(v.Recomputed, " ") != "predictions.csv folds.csv summary.csv comparisons.csv" {
+		t.Errorf("recomputed %v", v.Recomputed)
+	}
+	files := filesOf(t, dir)
+	if v.Digests != len(files)-3 {
+		t.Errorf("%d digests checked for %d files (all but manifest, timings, digest list)", v.Digests, len(files))
+	}
+	for _, name := range files {
+		path := filepath.Join(dir, filepath.FromSlash(name))
+		orig, _ := os.ReadFile(path)
+		edited := bytes.Clone(orig)
+		i := len(edited) / 2
+		edited[i] ^= 0x01 // '0' <-> '1', 'a' <-> '`': one byte, one bit
+		os.WriteFile(path, edited, 0o644)
+		v, err := Verify(dir, VerifyOptions{})
+		os.WriteFile(path, orig, 0o644)
+		if err != nil {
+			// An edited manifest may no longer parse: the error names it.
+			if name == "manifest.json" && strings.Contains(err.Error(), "manifest.json") {
+				continue
+			}
+			t.Fatalf("%s edited: %v", name, err)
+		}
+		found := false
+		for _, p := range v.Problems {
+			found = found || p.File == name
+		}
+		if !found {
+			t.Errorf("one byte of %s changed: problems %v do not name it", name, v.Problems)
+		}
+	}
+	if v, _ := Verify(dir, VerifyOptions{}); len(v.Problems) != 0 {
+		t.Fatalf("restored directory does not verify: %v", v.Problems)
+	}
+}
+
+// TestVerifyRecomputes: an edited folds.csv whose digests are updated too
+// (as someone who knows the formats could) is still caught, by
+// recomputing it from predictions.csv; an added file is named.
+func TestVerifyRecomputes(t *testing.T) {
+	dir := writeVerifyRun(t)
+	path := filepath.Join(dir, "folds.csv")
+	data, _ := os.ReadFile(path)
+	lines := strings.Split(string(data), "\n")
+	f := strings.Split(lines[1], ",")
+	f[7] = "0.123456" // the accuracy of the first fold
+	lines[1] = strings.Join(f, ",")
+	os.WriteFile(path, []byte(strings.Join(lines, "\n")), 0o644)
+	// Re-seal everything as fringe would.
+	content := map[string][]byte{}
+	for _, name := range filesOf(t, dir) {
+		if name != "manifest.json" && name != "timings.csv" && name != results.DigestsFile {
+			content[name], _ = os.ReadFile(filepath.Join(dir, name))
+		}
+	}
+	list := results.DigestList(content)
+	os.WriteFile(filepath.Join(dir, results.DigestsFile), list, 0o644)
+	mdata, _ := os.ReadFile(filepath.Join(dir, "manifest.json"))
+	m, err := results.ReadManifest(bytes.NewReader(mdata), "manifest.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.DigestsSHA = results.SHA256Hex(list)
+	sealed, _ := results.SealManifest(m)
+	os.WriteFile(filepath.Join(dir, "manifest.json"), sealed, 0o644)
+	os.WriteFile(filepath.Join(dir, "notes.txt"), []byte("added"), 0o644)
+
+	v, err := Verify(dir, VerifyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := strings.Join(problemFiles(v), " ")
+	if got != "notes.txt folds.csv" {
+		t.Fatalf("problems %v, want notes.txt (unlisted) and folds.csv (recomputed)", v.Problems)
+	}
+	if msg := v.Problems[1].Msg; !strings.Contains(msg, "line 2, column accuracy") || !strings.Contains(msg, "0.123456") {
+		t.Errorf("folds.csv problem %q does not locate the edit", msg)
+	}
+}
+
+// TestCompareCSVRounding: in mean_p_acc, 1.5 units of the last decimal
+// are rounding; more, or any change elsewhere, is a difference.
+func TestCompareCSVRounding(t *testing.T) {
+	want := []byte("model,mean_p_acc,accuracy\nq,0.500000,0.900000\n")
+	for _, c := range []struct {
+		have string
+		ok   bool
+	}{
+		{"model,mean_p_acc,accuracy\nq,0.500000,0.900000\n", true},
+		{"model,mean_p_acc,accuracy\nq,0.500001,0.900000\n", true},
+		{"model,mean_p_acc,accuracy\nq,0.499999,0.900000\n", true},
+		{"model,mean_p_acc,accuracy\nq,0.500002,0.900000\n", false},
+		{"model,mean_p_acc,accuracy\nq,0.500000,0.900001\n", false},
+		{"model,mean_p_acc,accuracy\r\nq,0.500000,0.900000\r\n", false},
+	} {
+		if msg := compareCSV([]byte(c.have), want); (msg == "") != c.ok {
+			t.Errorf("%q: %q, want ok=%v", c.have, msg, c.ok)
+		}
+	}
+}
