@@ -133,7 +133,10 @@ func (nc *NoisyCircuit) validate() error {
 // The density matrix is exact. Consecutive one-qubit operations and
 // channels on a qubit are composed into one superoperator, applied when a
 // two-qubit gate needs the qubit or at the end (the composition of
-// channels on one qubit is associative, so this changes only rounding).
+// channels on one qubit is associative, so this changes only rounding);
+// a qubit joins the matrix only at its first two-qubit gate (before, it is
+// in a product state with the rest), so the matrix holds the qubits
+// entangled so far. A CNOT and its depolarizing channel take one pass.
 // A trajectory applies each channel as a quantum jump: Kraus operator K
 // with probability ||K psi||^2, then renormalisation; depolarizing picks
 // one of the d^2 Paulis (identity included) with probability p.
@@ -206,21 +209,67 @@ func (p *pending) flush(d *Density, q int) {
 }
 
 // runDensity returns the (ancilla, class) distribution before readout.
+//
+// Qubits join the density matrix lazily: a qubit that has seen only
+// one-qubit operations is in a product state with the rest, kept as its
+// pending superoperator applied to |0><0|, and joins (as the new most
+// significant compact qubit, rho -> rho_q ⊗ rho) at its first two-qubit
+// gate or, if measured, at the end. Unmeasured qubits that never meet a
+// two-qubit gate are traced out. So the matrix has 4^k entries for the k
+// qubits entangled so far.
 func (nc *NoisyCircuit) runDensity(ctx context.Context) ([]float64, error) {
-	d, err := NewDensity(nc.NQubits)
-	if err != nil {
-		return nil, err
+	n := nc.NQubits
+	if n > MaxDensityQubits {
+		return nil, fmt.Errorf("sim: %d qubits outside the density-matrix range [1,%d]", n, MaxDensityQubits)
 	}
-	pd := &pending{s: make([]Superop, nc.NQubits), set: make([]bool, nc.NQubits)}
+	buf := make([]complex128, 1<<(2*n))
+	buf[0] = 1
+	d := &Density{N: 0, Rho: buf[:1]}
+	pos := make([]int, n) // compact qubit of each qubit, -1 while idle
+	for i := range pos {
+		pos[i] = -1
+	}
+	pd := &pending{s: make([]Superop, n), set: make([]bool, n)}
+	// join adds qubit q, in the state of its pending superoperator applied
+	// to |0><0| (column 0 of the superoperator: rho_ab = S[2a+b][0]).
+	join := func(q int) {
+		if pos[q] >= 0 {
+			return
+		}
+		rq := [2][2]complex128{{1, 0}, {0, 0}}
+		if pd.set[q] {
+			s := &pd.s[q]
+			rq = [2][2]complex128{{s[0][0], s[1][0]}, {s[2][0], s[3][0]}}
+			pd.set[q] = false
+		}
+		k := d.N
+		D := 1 << k
+		next := buf[:1<<(2*(k+1))]
+		// New index (a<<k | r) << (k+1) | (b<<k | c) from old r<<k | c,
+		// written from the end so that no old entry is overwritten early.
+		for r := D - 1; r >= 0; r-- {
+			for c := D - 1; c >= 0; c-- {
+				v := next[r<<k|c]
+				for a := 1; a >= 0; a-- {
+					for b := 1; b >= 0; b-- {
+						next[(a<<k|r)<<(k+1)|(b<<k|c)] = rq[a][b] * v
+					}
+				}
+			}
+		}
+		d.N, d.Rho = k+1, next
+		pos[q] = k
+	}
+	var cq [2]int
 	for i, t := range nc.Ops {
 		if i%16 == 0 && ctx.Err() != nil {
 			return nil, ctx.Err()
 		}
 		op := t.Op
-		qs := op.Qubits()
 		if op.Gate == circuit.Measure {
 			continue
 		}
+		qs := op.Qubits()
 		for j, q := range qs {
 			if ch := t.Before[j]; ch != nil {
 				pd.then(q, ch.S)
@@ -236,11 +285,24 @@ func (nc *NoisyCircuit) runDensity(ctx context.Context) ([]float64, error) {
 				pd.then(op.Target, DepolarizingSuperop(p))
 			}
 		} else {
-			pd.flush(d, qs[0])
-			pd.flush(d, qs[1])
-			d.ApplyOp(op)
-			if p := t.Depolarizing; p != 0 {
-				d.Depolarize2(qs[0], qs[1], p)
+			for j, q := range qs {
+				if pos[q] < 0 {
+					join(q)
+				} else if pd.set[q] {
+					d.ApplySuperop1(pos[q], pd.s[q])
+					pd.set[q] = false
+				}
+				cq[j] = pos[q]
+			}
+			tgt, ctl := cq[0], cq[1]
+			switch op.Gate {
+			case circuit.CNOT:
+				d.applyCNOTNoise(ctl, tgt, t.Depolarizing, nil) // CNOT and depolarizing in one pass
+			default:
+				d.ApplyOp(circuit.Op{Gate: op.Gate, Target: tgt, Controls: cq[1:2]})
+				if p := t.Depolarizing; p != 0 {
+					d.Depolarize2(tgt, ctl, p)
+				}
 			}
 		}
 		for j, q := range qs {
@@ -249,13 +311,24 @@ func (nc *NoisyCircuit) runDensity(ctx context.Context) ([]float64, error) {
 			}
 		}
 	}
-	for q := range nc.NQubits {
+	measured := append([]int{nc.Regs.Ancilla}, nc.Regs.Class...)
+	for q := range n {
 		if nc.Final != nil && nc.Final[q] != nil {
 			pd.then(q, nc.Final[q].S)
 		}
-		pd.flush(d, q)
+		if pos[q] >= 0 && pd.set[q] {
+			d.ApplySuperop1(pos[q], pd.s[q])
+			pd.set[q] = false
+		}
 	}
-	return jointOutcomes(d.Diag(), nc.Regs), nil
+	for _, q := range measured {
+		join(q)
+	}
+	regs := circuit.Layout{Ancilla: pos[nc.Regs.Ancilla], Class: make([]int, len(nc.Regs.Class))}
+	for j, q := range nc.Regs.Class {
+		regs.Class[j] = pos[q]
+	}
+	return jointOutcomes(d.Diag(), regs), nil
 }
 
 // jointOutcomes sums basis-state probabilities into the (ancilla, class)
