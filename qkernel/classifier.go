@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 	"fringe/qkernel/sim"
 )
 
@@ -105,6 +106,13 @@ type Classifier struct {
 	// Trajectories is the number of Monte Carlo trajectories of the
 	// trajectory method; 0 means sim.DefaultTrajectories.
 	Trajectories int
+	// Device, in ModeNoisy, runs every row's circuit on a described
+	// device: compiled to it (device.Compile: placement, SABRE routing,
+	// native gates) and simulated under its calibrated noise
+	// (device.Program.Simulate) with Method and Trajectories. It replaces
+	// Noise and Channels (Validate rejects both together, and Mitigate for
+	// now); nil (the default) changes nothing.
+	Device *device.Device
 	// Mitigate configures readout-error mitigation: in ModeNoisy the
 	// decision is taken on the mitigated outcome distribution (see
 	// MitigateReadout and Mitigation) and Detail.Raw keeps the unmitigated
@@ -284,6 +292,9 @@ func (c *Classifier) makePlan() (*plan, error) {
 	nm, nd, nq := circuit.RegisterSizes(p.m, c.d, c.nClass)
 	p.qClass = nq
 	p.qubits = 1 + nm + nd + nq
+	if err := c.devicePlan(p); err != nil {
+		return nil, err
+	}
 	if c.Mitigate.Readout {
 		if _, err := c.confusion(nq); err != nil {
 			return nil, err

@@ -12,8 +12,9 @@ import (
 // run (see EstimateCost).
 type CostEstimate struct {
 	// Qubits and Resources describe the circuit of one test row (gate
-	// counts after decomposition, as circuit.Resources reports them),
-	// whatever the mode; only the simulated modes run it.
+	// counts of the published decomposition, circuit.RawResources: an
+	// upper bound on the row's circuit.Resources, whose dead gates depend
+	// on the data), whatever the mode; only the simulated modes run it.
 	Qubits    int
 	Resources circuit.Resources
 	// Simulated reports whether the rows are simulated gate by gate
@@ -79,7 +80,10 @@ func (c *Classifier) EstimateCost(cm *sim.CostModel, nTrain, nFeatures, nClass, 
 	if err != nil {
 		return CostEstimate{}, fmt.Errorf("qkernel: estimate: %w", err)
 	}
-	est := CostEstimate{Qubits: circ.NQubits, Resources: circ.Resources(), Simulated: p.gate}
+	// Raw counts: the circuit of sizes alone cannot know which gates a
+	// row's data leaves dead, so the published decomposition's counts are
+	// the estimate (an upper bound on every row's circuit.Resources).
+	est := CostEstimate{Qubits: circ.NQubits, Resources: circ.RawResources(), Simulated: p.gate}
 
 	// The closed form of every row: C inner products (whole set) or K
 	// (subset), of nFeatures terms; the subset draw and the weights are of

@@ -50,8 +50,8 @@ func TestEstimateCostStructure(t *testing.T) {
 		if p.gate {
 			wantMethod = p.method
 		}
-		if est.Qubits != p.qubits || est.Simulated != p.gate || est.Method != wantMethod || est.Resources != circ.Resources() {
-			t.Errorf("mode %v subset %d: estimate %+v, fitted plan %+v, resources %+v", c.Mode, c.TrainSubset, est, p, circ.Resources())
+		if est.Qubits != p.qubits || est.Simulated != p.gate || est.Method != wantMethod || est.Resources != circ.RawResources() {
+			t.Errorf("mode %v subset %d: estimate %+v, fitted plan %+v, raw resources %+v", c.Mode, c.TrainSubset, est, p, circ.RawResources())
 		}
 		if est.Total <= 0 || est.PerRow <= 0 || est.Total < est.PerRow {
 			t.Errorf("mode %v: costs %v per row, %v in all", c.Mode, est.PerRow, est.Total)

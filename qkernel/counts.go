@@ -35,6 +35,7 @@ func (c *Classifier) exactTwin() (*Classifier, *plan, error) {
 	e.Mode, e.Shots, e.Mitigate = ModeExact, 0, Mitigation{}
 	e.Noise, e.Channels = sim.NoiseModel{}, Channels{}
 	e.Method, e.Trajectories = sim.Auto, 0
+	e.Device = nil
 	p, err := e.makePlan()
 	if err != nil {
 		return nil, nil, fmt.Errorf("qkernel: %w", err)

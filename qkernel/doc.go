@@ -91,6 +91,16 @@
 //     Channels.Readout (they are the same model; Validate rejects setting
 //     both).
 //
+// With Classifier.Device set (package qkernel/device), step 1 instead
+// compiles each row's circuit to the described device (placement, SABRE
+// routing, native gates) and simulates it under the device's calibrated
+// noise: depolarizing per gate from its error rate, thermal relaxation
+// from T1 and T2 during gates and idling, readout errors per qubit; the
+// density matrix up to sim.MaxDensityQubits qubits, trajectories above.
+// Noise and Channels must then be zero (Validate), and the circuit must fit
+// the device's largest connected part (Fit: ErrTooLarge). Without a device
+// nothing changes.
+//
 // This order is checked against a density-matrix run of the same physics
 // (dephasing before the final H, depolarizing after it, readout channels on
 // the measured qubits). Noise can give probability to classes absent from

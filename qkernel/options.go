@@ -74,8 +74,8 @@ func (ch Channels) IsZero() bool { return ch == Channels{} }
 // by Fit). Key is the option's name as written in experiment specs: "mode",
 // "shots", "train_subset", "depolarizing", "amplitude_damping",
 // "phase_damping", "readout", "global_depolarizing", "ancilla_dephasing",
-// "method" or "trajectories". It unwraps to ErrOption, or to ErrMode for an
-// unknown mode.
+// "method", "trajectories" or "device". It unwraps to ErrOption, or to
+// ErrMode for an unknown mode.
 type OptionError struct {
 	Key    string
 	Reason string
@@ -102,7 +102,7 @@ func hasGateNoise(m sim.NoiseModel) bool {
 // gateLevel reports whether ModeNoisy simulates the compiled circuit gate by
 // gate: with gate noise, or when a simulator is named explicitly.
 func (c *Classifier) gateLevel() bool {
-	return c.Mode == ModeNoisy && (hasGateNoise(c.Noise) || c.Method != sim.Auto)
+	return c.Mode == ModeNoisy && (hasGateNoise(c.Noise) || c.Method != sim.Auto || c.Device != nil)
 }
 
 // Validate checks the options alone (no data) and returns an *OptionError
@@ -120,6 +120,8 @@ func (c *Classifier) gateLevel() bool {
 //   - Trajectories < 0, or an unknown Method;
 //   - Method StateVector with gate noise (a state vector is noiseless);
 //   - Trajectories > 0 with Method DensityMatrix or StateVector;
+//   - Device outside ModeNoisy, or with Noise, Channels or Method
+//     StateVector (key "device", or "method");
 //   - an option set in a mode that ignores it: Shots > 0 in ModeExact or
 //     ModeCircuit; Noise, Channels, Method or Trajectories outside
 //     ModeNoisy;
@@ -133,6 +135,9 @@ func (c *Classifier) gateLevel() bool {
 func (c *Classifier) Validate() error {
 	if c.Mode < 0 || int(c.Mode) >= len(modeNames) {
 		return &OptionError{Key: "mode", Reason: c.Mode.String(), err: ErrMode}
+	}
+	if err := c.validateDevice(); err != nil {
+		return err
 	}
 	switch {
 	case c.Shots < 0:

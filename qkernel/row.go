@@ -120,9 +120,14 @@ func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, prob
 		if c.Mode == ModeCircuit {
 			noise = sim.NoiseModel{}
 		}
-		res, err := s.share.simulate(ctx, ysub, circ, sim.Options{
-			Noise: noise, Method: p.method, Trajectories: c.Trajectories, Rng: rng,
-		})
+		var res sim.Result
+		if c.Device != nil && c.Mode == ModeNoisy {
+			res, err = c.deviceSimulate(ctx, circ, p, rng)
+		} else {
+			res, err = s.share.simulate(ctx, ysub, circ, sim.Options{
+				Noise: noise, Method: p.method, Trajectories: c.Trajectories, Rng: rng,
+			})
+		}
 		if err != nil {
 			return out, err
 		}

@@ -11,7 +11,9 @@ type Gate uint8
 // The gate set. H, X, RY, RZ and CNOT are the elementary gates of the
 // decomposed circuit (all in OpenQASM 3 stdgates.inc); UCRY is the
 // multiplexed rotation that Compile emits and Decompose expands; Measure reads
-// one qubit in the computational basis.
+// one qubit in the computational basis. SX, RX, CZ and SWAP are the extra
+// gates of device-native circuits (package qkernel/device); Compile never
+// emits them. Constants keep their values: new gates are appended.
 const (
 	// H is the Hadamard gate (1/sqrt2)[[1, 1], [1, -1]].
 	H Gate = iota
@@ -32,12 +34,25 @@ const (
 	// acts on Target. len(Angles) == 1 << len(Controls). With no controls it
 	// is a plain RY(Angles[0]).
 	UCRY
+	// SX is the square root of X, (1/2)[[1+i, 1-i], [1-i, 1+i]]
+	// = exp(i pi/4) RX(pi/2); SX SX = X exactly. A native gate of devices.
+	SX
+	// RX is exp(-i Angle X/2) = [[cos(Angle/2), -i sin(Angle/2)], [-i sin(Angle/2), cos(Angle/2)]].
+	RX
+	// CZ multiplies the basis states with both Controls[0] and Target at 1
+	// by -1; it is symmetric in its two qubits.
+	CZ
+	// SWAP exchanges the states of Controls[0] and Target. Routing inserts
+	// it; device translation expands it into three two-qubit native gates.
+	SWAP
 )
 
-var gateNames = [...]string{H: "h", X: "x", RY: "ry", RZ: "rz", CNOT: "cx", Measure: "measure", UCRY: "ucry"}
+var gateNames = [...]string{H: "h", X: "x", RY: "ry", RZ: "rz", CNOT: "cx", Measure: "measure", UCRY: "ucry",
+	SX: "sx", RX: "rx", CZ: "cz", SWAP: "swap"}
 
-// String returns the lower-case name of the gate ("h", "x", "ry", "rz",
-// "cx", "measure", "ucry").
+// String returns the lower-case name of the gate, its OpenQASM 3
+// stdgates.inc name where it has one ("h", "x", "ry", "rz", "cx",
+// "measure", "ucry", "sx", "rx", "cz", "swap").
 func (g Gate) String() string {
 	if int(g) < len(gateNames) {
 		return gateNames[g]
@@ -48,10 +63,10 @@ func (g Gate) String() string {
 // Op is one operation of a Circuit.
 //
 // Target is the qubit acted on (the target of CNOT and UCRY, the measured
-// qubit of Measure). Controls holds the single control of CNOT or the
-// multiplexing qubits of UCRY, least significant first; it is empty for the
-// other gates. Angle is the rotation angle of RY and RZ in radians; Angles
-// the angle vector of UCRY.
+// qubit of Measure). Controls holds the single control of CNOT, the other
+// qubit of CZ and SWAP, or the multiplexing qubits of UCRY, least
+// significant first; it is empty for the other gates. Angle is the rotation
+// angle of RY, RZ and RX in radians; Angles the angle vector of UCRY.
 type Op struct {
 	Gate     Gate
 	Target   int
@@ -127,7 +142,8 @@ func (c *Circuit) Validate() error {
 			measured[op.Target] = true
 			continue
 		}
-		for _, q := range op.qubits() {
+		var buf [2]int
+		for _, q := range op.appendQubits(buf[:0]) {
 			if measured[q] {
 				return fmt.Errorf("circuit: op %d (%s): qubit %d used after its measurement", i, op.Gate, q)
 			}
@@ -162,18 +178,18 @@ func (c *Circuit) validateOp(op Op) error {
 		}
 	}
 	switch op.Gate {
-	case H, X, Measure:
+	case H, X, SX, Measure:
 		if len(op.Controls) != 0 {
 			return fmt.Errorf("%d controls, want 0", len(op.Controls))
 		}
-	case RY, RZ:
+	case RY, RZ, RX:
 		if len(op.Controls) != 0 {
 			return fmt.Errorf("%d controls, want 0", len(op.Controls))
 		}
 		if math.IsNaN(op.Angle) || math.IsInf(op.Angle, 0) {
 			return fmt.Errorf("angle %v not finite", op.Angle)
 		}
-	case CNOT:
+	case CNOT, CZ, SWAP:
 		if len(op.Controls) != 1 {
 			return fmt.Errorf("%d controls, want 1", len(op.Controls))
 		}
@@ -202,11 +218,21 @@ func (op Op) qubits() []int {
 	return append(qs, op.Controls...)
 }
 
+// appendQubits appends the qubits of op, target first, to dst (pass a
+// slice of a local array to avoid an allocation in loops).
+func (op Op) appendQubits(dst []int) []int {
+	dst = append(dst, op.Target)
+	return append(dst, op.Controls...)
+}
+
 // Qubits returns the qubits the operation acts on: the target followed by
 // the controls.
 func (op Op) Qubits() []int { return op.qubits() }
 
-// Clone returns a deep copy of the circuit.
+// Clone returns a deep copy of the circuit. The copies of the control and
+// angle lists share two backing arrays (one allocation each, however many
+// operations), each list capped at its length so that appending to one
+// never writes into another.
 func (c *Circuit) Clone() *Circuit {
 	d := &Circuit{NQubits: c.NQubits, Regs: Layout{
 		Ancilla: c.Regs.Ancilla,
@@ -214,9 +240,30 @@ func (c *Circuit) Clone() *Circuit {
 		Data:    append([]int(nil), c.Regs.Data...),
 		Class:   append([]int(nil), c.Regs.Class...),
 	}}
+	nc, na := 0, 0
+	for _, op := range c.Ops {
+		nc += len(op.Controls)
+		na += len(op.Angles)
+	}
+	ctl := make([]int, 0, nc)
+	ang := make([]float64, 0, na)
 	d.Ops = make([]Op, len(c.Ops))
 	for i, op := range c.Ops {
-		d.Ops[i] = op.clone()
+		if len(op.Controls) > 0 {
+			k := len(ctl)
+			ctl = append(ctl, op.Controls...)
+			op.Controls = ctl[k:len(ctl):len(ctl)]
+		} else {
+			op.Controls = nil
+		}
+		if len(op.Angles) > 0 {
+			k := len(ang)
+			ang = append(ang, op.Angles...)
+			op.Angles = ang[k:len(ang):len(ang)]
+		} else {
+			op.Angles = nil
+		}
+		d.Ops[i] = op
 	}
 	return d
 }

@@ -31,6 +31,23 @@ func naiveApply(psi []complex128, op Op) {
 			}
 		}
 		return
+	case CZ:
+		a, b := op.Controls[0], op.Target
+		for i := range psi {
+			if bit(i, a) == 1 && bit(i, b) == 1 {
+				psi[i] = -psi[i]
+			}
+		}
+		return
+	case SWAP:
+		a, b := op.Controls[0], op.Target
+		for i := range psi {
+			if bit(i, a) == 1 && bit(i, b) == 0 {
+				j := i&^(1<<a) | 1<<b
+				psi[i], psi[j] = psi[j], psi[i]
+			}
+		}
+		return
 	case Measure:
 		return
 	}
@@ -58,6 +75,12 @@ func naiveApply(psi []complex128, op Op) {
 			u = [2][2]complex128{{c, -s}, {s, c}}
 		case RZ:
 			u = [2][2]complex128{{cmplx.Exp(complex(0, -op.Angle/2)), 0}, {0, cmplx.Exp(complex(0, op.Angle/2))}}
+		case RX:
+			c, s := complex(math.Cos(op.Angle/2), 0), complex(0, -math.Sin(op.Angle/2))
+			u = [2][2]complex128{{c, s}, {s, c}}
+		case SX:
+			// (1/2)[[1+i, 1-i], [1-i, 1+i]] (the matrix stated in the Gate docs).
+			u = [2][2]complex128{{(1 + 1i) / 2, (1 - 1i) / 2}, {(1 - 1i) / 2, (1 + 1i) / 2}}
 		}
 		j := i | 1<<op.Target
 		a0, a1 := psi[i], psi[j]
@@ -106,7 +129,7 @@ func TestDecomposeUCRY(t *testing.T) {
 		if err := c.Validate(); err != nil {
 			t.Fatal(err)
 		}
-		d := c.Decompose()
+		d := c.Expand()
 		var nry, ncx int
 		for _, o := range d.Ops {
 			switch o.Gate {
@@ -115,7 +138,7 @@ func TestDecomposeUCRY(t *testing.T) {
 			case CNOT:
 				ncx++
 			default:
-				t.Fatalf("k=%d: unexpected gate %s after Decompose", k, o.Gate)
+				t.Fatalf("k=%d: unexpected gate %s after Expand", k, o.Gate)
 			}
 		}
 		wantCX := 1 << k
@@ -210,7 +233,7 @@ func TestCompileState(t *testing.T) {
 			if c.Ops[last].Gate != H {
 				t.Fatalf("%+v: op %d is %s, want the final h", tc, last, c.Ops[last].Gate)
 			}
-			for _, ops := range [][]Op{c.Ops[:last], c.Decompose().Ops[:len(c.Decompose().Ops)-2-len(c.Regs.Class)]} {
+			for _, ops := range [][]Op{c.Ops[:last], c.Expand().Ops[:len(c.Expand().Ops)-2-len(c.Regs.Class)]} {
 				psi := naiveRun(c, ops)
 				want := make([]complex128, len(psi))
 				w := in.w
@@ -254,7 +277,9 @@ func regBits(reg []int, v int) int {
 
 // TestCompileResources checks the register sizes and gate counts against
 // the formula in doc.go, derived by hand from quant-ph/0407010 (2^k CNOT
-// and 2^k RY per rotation with k >= 1 controls) summed over the trees.
+// and 2^k RY per rotation with k >= 1 controls) summed over the trees: the
+// raw expansion (RawResources) equals it, the simplified circuit
+// (Resources) stays within it.
 func TestCompileResources(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 6))
 	pow := func(k int) int { return 1 << k }
@@ -267,7 +292,7 @@ func TestCompileResources(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		r := c.Resources()
+		r := c.RawResources()
 		if r.Index != tc.nm || r.Data != tc.nd || r.Class != tc.nc || r.Ancilla != 1 || r.Qubits != 1+tc.nm+tc.nd+tc.nc {
 			t.Errorf("%+v: registers %+v", tc, r)
 		}
@@ -282,6 +307,10 @@ func TestCompileResources(t *testing.T) {
 		}
 		if r.Depth < 1 || r.Depth > r.CNOT+r.SingleQubit {
 			t.Errorf("%+v: depth %d outside [1, %d]", tc, r.Depth, r.CNOT+r.SingleQubit)
+		}
+		s := c.Resources()
+		if s.CNOT > wantCX || s.SingleQubit > wantRY+2 || s.Depth > r.Depth || s.Measurements != 1+tc.nc || s.Qubits != r.Qubits {
+			t.Errorf("%+v: simplified %+v exceeds the formula (cx %d, single %d) or the raw depth %d", tc, s, wantCX, wantRY+2, r.Depth)
 		}
 	}
 }
@@ -377,40 +406,56 @@ func TestBalancedWeights(t *testing.T) {
 	}
 }
 
-// TestQASM3Golden compares the export of a fixed small instance with
-// testdata/compile.qasm byte for byte; run `go test -update` to rewrite it
-// and review the diff.
+// TestQASM3Golden compares the export of fixed small instances with the
+// files in testdata byte for byte; run `go test -update` to rewrite them
+// and review the diff. compile_m4*.qasm has four training vectors with
+// uniform weights, whose index tree and class rotations leave dead
+// rotations and cancelling CNOTs that Decompose removes.
 func TestQASM3Golden(t *testing.T) {
-	// Invented instance: 3 training vectors in 3 features, 2 classes.
+	// Invented instances: training vectors in 3 features, 2 classes.
 	test := []float64{0.6, -0.8, 0.1}
-	train := [][]float64{{1, 0.2, 0}, {-0.3, 0.9, 0.4}, {0.5, 0.5, -0.5}}
-	c, err := Compile(test, train, []int{0, 1, 0}, 2, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	got, err := QASM3(c)
-	if err != nil {
-		t.Fatal(err)
-	}
-	path := filepath.Join("testdata", "compile.qasm")
-	if *update {
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+	train := [][]float64{{1, 0.2, 0}, {-0.3, 0.9, 0.4}, {0.5, 0.5, -0.5}, {0.1, -0.7, 0.2}}
+	for _, tc := range []struct {
+		file    string
+		m       int
+		version int
+	}{
+		{"compile.qasm", 3, 3},
+		{"compile_m4.qasm", 4, 3},
+		{"compile_m4_v2.qasm", 4, 2},
+	} {
+		c, err := Compile(test, train[:tc.m], []int{0, 1, 0, 1}[:tc.m], 2, nil)
+		if err != nil {
 			t.Fatal(err)
 		}
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test -update to create it)", err)
-	}
-	if got != string(want) {
-		t.Errorf("QASM3 output differs from %s; run go test -update and review the diff\ngot:\n%s", path, got)
-	}
-	again, _ := QASM3(c)
-	if again != got {
-		t.Error("QASM3 not deterministic")
-	}
-	if strings.Contains(got, "ucry") || !strings.Contains(got, "ancilla_out[0] = measure ancilla[0];") {
-		t.Errorf("unexpected QASM3 text:\n%s", got)
+		got, err := QASM(c, QASMOptions{Version: tc.version})
+		if err != nil {
+			t.Fatal(err)
+		}
+		path := filepath.Join("testdata", tc.file)
+		if *update {
+			if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		want, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatalf("%v (run go test -update to create it)", err)
+		}
+		if got != string(want) {
+			t.Errorf("QASM output differs from %s; run go test -update and review the diff\ngot:\n%s", path, got)
+		}
+		again, _ := QASM(c, QASMOptions{Version: tc.version})
+		if again != got {
+			t.Error("QASM not deterministic")
+		}
+		meas := "ancilla_out[0] = measure ancilla[0];"
+		if tc.version == 2 {
+			meas = "measure ancilla[0] -> ancilla_out[0];"
+		}
+		if strings.Contains(got, "ucry") || strings.Contains(got, "(0)") || !strings.Contains(got, meas) {
+			t.Errorf("unexpected QASM text:\n%s", got)
+		}
 	}
 }
 

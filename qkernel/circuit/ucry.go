@@ -56,28 +56,57 @@ func decomposeUCRY(op Op) []Op {
 	}
 	theta := grayAngles(op.Angles)
 	out := make([]Op, 0, 2*len(theta))
+	ctl := make([]int, len(theta)) // one backing array for the CNOT controls
 	for i, t := range theta {
+		ctl[i] = op.Controls[grayControl(i, k)]
 		out = append(out,
 			Op{Gate: RY, Target: op.Target, Angle: t},
-			Op{Gate: CNOT, Target: op.Target, Controls: []int{op.Controls[grayControl(i, k)]}})
+			Op{Gate: CNOT, Target: op.Target, Controls: ctl[i : i+1 : i+1]})
 	}
 	return out
 }
 
-// Decompose returns a new circuit in which every UCRY is replaced by its
+// Expand returns a new circuit in which every UCRY is replaced by its
 // Gray-code sequence of RY and CNOT gates (quant-ph/0407010): a UCRY with k
 // controls becomes 2^k RY and 2^k CNOT (k >= 1), or one RY (k = 0). Every
-// other operation is copied unchanged, and the decomposed circuit acts on
-// every state exactly as the original (up to rounding of the angles).
-func (c *Circuit) Decompose() *Circuit {
-	d := c.Clone()
-	d.Ops = d.Ops[:0:0]
+// other operation is copied unchanged, and the expanded circuit acts on
+// every state exactly as the original (up to rounding of the angles). Its
+// gate counts are those of the formula in the package documentation; many
+// of its rotations can be dead (angle 0) and CNOTs can meet in cancelling
+// pairs. Decompose is Expand followed by Simplify.
+func (c *Circuit) Expand() *Circuit {
+	size := 0
 	for _, op := range c.Ops {
+		switch {
+		case op.Gate != UCRY:
+			size++
+		case len(op.Controls) == 0:
+			size++
+		default:
+			size += 2 << len(op.Controls)
+		}
+	}
+	d := c.Clone() // registers and the copies of the non-UCRY operations
+	ops := make([]Op, 0, size)
+	for _, op := range d.Ops {
 		if op.Gate == UCRY {
-			d.Ops = append(d.Ops, decomposeUCRY(op)...)
+			ops = append(ops, decomposeUCRY(op)...)
 			continue
 		}
-		d.Ops = append(d.Ops, op.clone())
+		ops = append(ops, op)
 	}
+	d.Ops = ops
+	return d
+}
+
+// Decompose returns the elementary-gate form of the circuit that the
+// simulators, Resources and the OpenQASM exporters use: Expand followed by
+// Simplify (dead rotations dropped, adjacent rotations merged, adjacent
+// CNOT pairs cancelled). It acts on every state as the original circuit up
+// to a global phase and the dropped angles (at most AngleTol each), so
+// every measured probability is unchanged to about 1e-12.
+func (c *Circuit) Decompose() *Circuit {
+	d := c.Expand()
+	simplifyOwned(d)
 	return d
 }

@@ -303,6 +303,10 @@ func (d *Density) ApplyOp(op circuit.Op) {
 	case circuit.Measure:
 	case circuit.CNOT:
 		d.ApplyCNOT(op.Controls[0], op.Target)
+	case circuit.CZ:
+		d.ApplyCZ(op.Controls[0], op.Target)
+	case circuit.SWAP:
+		d.ApplySWAP(op.Controls[0], op.Target)
 	case circuit.UCRY:
 		d.ApplyUCRY(op.Target, op.Controls, op.Angles)
 	default:

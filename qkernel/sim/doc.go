@@ -83,6 +83,22 @@
 // damping of the ancilla before the final H) and Readout. Each is validated
 // against the density-matrix simulation in the tests.
 //
+// # Calibrated noise
+//
+// A NoisyCircuit carries its own noise on every operation (TimedOp: channels
+// before the gate, a depolarizing strength after it, channels after it),
+// plus a final channel and readout errors per qubit; package qkernel/device
+// builds one from a device description. SimulateNoisy runs it on the
+// density matrix (consecutive one-qubit operations and channels on a qubit
+// fused into one superoperator) or by trajectories (quantum jumps), with
+// the output layout of Simulate. ThermalRelaxationKraus gives relaxation
+// over a time t from T1 and T2: amplitude damping gamma = 1 - exp(-t/T1)
+// composed with phase damping for 1/T_phi = 1/T2 - 1/(2 T1) (N&C 2010,
+// section 8.3; T2 <= 2 T1). DepolarizingForError converts an average gate
+// infidelity into a depolarizing strength with Nielsen's formula for the
+// average gate fidelity (quant-ph/0205035), net of the relaxation during
+// the gate. The device gates SX, RX, CZ and SWAP run in every simulator.
+//
 // # Sampling
 //
 // SampleCounts draws one multinomial sample by sequential binomials whose

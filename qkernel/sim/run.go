@@ -260,6 +260,17 @@ func applyDensity(ctx context.Context, v *Density, full []complex128, lp *lazyPl
 		case circuit.Measure:
 		case circuit.CNOT:
 			d.applyCNOTNoise(op.Controls[0], op.Target, m.Depolarizing[1], damp2)
+		case circuit.CZ, circuit.SWAP:
+			// Device gates: the noise of a CNOT.
+			ctl := op.Controls[0]
+			d.ApplyOp(op)
+			if p := m.Depolarizing[1]; p != 0 {
+				d.Depolarize2(ctl, op.Target, p)
+			}
+			if dampOn {
+				d.ApplySuperop1(ctl, damp)
+				d.ApplySuperop1(op.Target, damp)
+			}
 		default:
 			u, err := GateMatrix(op.Gate, op.Angle)
 			if err != nil {
@@ -387,7 +398,7 @@ func runTrajectories(ctx context.Context, c *circuit.Circuit, opt Options) (mean
 			}
 			switch op.Gate {
 			case circuit.Measure:
-			case circuit.CNOT:
+			case circuit.CNOT, circuit.CZ, circuit.SWAP:
 				s.noisy2(op.Controls[0], op.Target, m, opt.Rng)
 			default:
 				s.noisy1(op.Target, m, opt.Rng)

@@ -34,6 +34,8 @@ func GateMatrix(g circuit.Gate, angle float64) (Matrix, error) {
 		return Matrix{{complex(c, 0), complex(-s, 0)}, {complex(s, 0), complex(c, 0)}}, nil
 	case circuit.RZ:
 		return Matrix{{cmplx.Exp(complex(0, -angle/2)), 0}, {0, cmplx.Exp(complex(0, angle/2))}}, nil
+	case circuit.SX, circuit.RX:
+		return deviceGateMatrix(g, angle), nil
 	}
 	return Matrix{}, fmt.Errorf("sim: %s is not a single-qubit gate", g)
 }
@@ -229,6 +231,10 @@ func (s *State) ApplyOp(op circuit.Op) {
 	case circuit.Measure:
 	case circuit.CNOT:
 		s.ApplyCNOT(op.Controls[0], op.Target)
+	case circuit.CZ:
+		s.ApplyCZ(op.Controls[0], op.Target)
+	case circuit.SWAP:
+		s.ApplySWAP(op.Controls[0], op.Target)
 	case circuit.UCRY:
 		s.ApplyUCRY(op.Target, op.Controls, op.Angles)
 	default:
