@@ -26,7 +26,7 @@ import (
 //	spec
 //	modelkit
 //	outdir, input, cv, stats
-//	results, datasets, baselines, qkernel, qkernel/circuit, qkernel/sim
+//	results, datasets, baselines, qkernel, qkernel/device, qkernel/circuit, qkernel/sim
 var allowed = map[string][]string{
 	"bench":        {},
 	"bench/cv":     {},
@@ -59,7 +59,8 @@ var allowed = map[string][]string{
 	"results":         {"bench/stats"},
 	"datasets":        {},
 	"baselines":       {},
-	"qkernel":         {"qkernel/circuit", "qkernel/sim"},
+	"qkernel":         {"qkernel/circuit", "qkernel/sim", "qkernel/device"},
+	"qkernel/device":  {"qkernel/circuit", "qkernel/sim"},
 	"qkernel/circuit": {},
 	"qkernel/sim":     {"qkernel/circuit"},
 }
@@ -71,9 +72,11 @@ var allowed = map[string][]string{
 // refuses an import cycle for internal tests); the ground's tests never
 // import the harness beyond bench/cv.
 var testAllowed = map[string][]string{
-	"qkernel":   {"baselines", "datasets", "bench/cv"},
-	"baselines": {"datasets"},
-	"results":   {"datasets"},
+	"qkernel":         {"baselines", "datasets", "bench/cv"},
+	"qkernel/device":  {"datasets", "bench/cv"},
+	"qkernel/circuit": {"datasets"},
+	"baselines":       {"datasets"},
+	"results":         {"datasets"},
 }
 
 // modulePackages returns the module's packages (directories holding Go

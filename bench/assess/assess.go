@@ -210,10 +210,6 @@ func Run(ctx context.Context, opt Options) (*results.Assessment, error) {
 		a.Weights = "uniform"
 	}
 	var warn [][2]string
-	// Gate counts and depth depend only on the register sizes, that is on
-	// (M, d, C) (Decompose keeps every rotation, whatever its angle), so a
-	// circuit compiled once serves every row with the same shape.
-	cache := map[[3]int]circuit.Resources{}
 	for _, ds := range o.Datasets {
 		ad, err := assessRun(ctx, o, ds)
 		if err != nil {
@@ -229,7 +225,7 @@ func Run(ctx context.Context, opt Options) (*results.Assessment, error) {
 			Rows: ad.data.Len(), Features: ad.data.Features, Classes: ad.data.Classes, Counts: ad.data.ClassCounts(),
 		})
 		for pi, pipe := range o.Pipelines {
-			row, res, w, err := assessRow(o, ad, pi, pipe, cache)
+			row, res, w, err := assessRow(o, ad, pi, pipe)
 			if err != nil {
 				return nil, err
 			}
@@ -361,7 +357,7 @@ func foldAcc(p *plan.Plan, res []runner.TaskResult, pipe, model string) map[fold
 
 // assessRow computes the row of one (dataset, pipeline) and its resource
 // rows.
-func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]int]circuit.Resources) (results.AssessRow, []results.AssessResource, []string, error) {
+func assessRow(o Options, ad *assessDataset, pi int, pipe string) (results.AssessRow, []results.AssessResource, []string, error) {
 	data := ad.data
 	row := results.AssessRow{
 		Dataset: ad.spec.Display(), Pipeline: pipe, Instances: data.Len(), Classes: len(data.Classes),
@@ -391,7 +387,7 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string, cache map[[3]i
 	if err := normShare(&row, ad, pipe); err != nil {
 		return row, nil, nil, err
 	}
-	out, err := circuitResources(&row, o, ad, pi, pipe, cache)
+	out, err := circuitResources(&row, o, ad, pi, pipe)
 	if err != nil {
 		return row, nil, nil, err
 	}
@@ -521,9 +517,11 @@ func normShare(row *results.AssessRow, ad *assessDataset, pipe string) error {
 // circuitResources fills the kernel-target alignments on the first split
 // and the registers, gates, depth and noise budget of the compiled circuit
 // for each train_subset size and the full training part, returning one
-// resource row per size. Gate counts depend only on the register sizes, so
-// cache keeps one compiled circuit per (M, d, C).
-func circuitResources(row *results.AssessRow, o Options, ad *assessDataset, pi int, pipe string, cache map[[3]int]circuit.Resources) ([]results.AssessResource, error) {
+// resource row per size. The counts are of the circuit of the first test
+// row after its dead gates are removed (circuit.Simplify), so they depend
+// on the data, not only on the register sizes: every (dataset, pipeline,
+// size) compiles its own.
+func circuitResources(row *results.AssessRow, o Options, ad *assessDataset, pi int, pipe string) ([]results.AssessResource, error) {
 	data := ad.data
 	sp := ad.quantum.Datasets[0].Splits[0]
 	prep, err := ad.quantum.Prepare(0, pi, 0)
@@ -553,35 +551,30 @@ func circuitResources(row *results.AssessRow, o Options, ad *assessDataset, pi i
 	sizes = append(sizes, row.TrainSize)
 	var out []results.AssessResource
 	for _, m := range sizes {
-		key := [3]int{m, dim, C}
-		r, ok := cache[key]
-		if !ok {
-			idx := make([]int, len(sp.Train))
-			for i := range idx {
-				idx[i] = i
-			}
-			if m < len(idx) {
-				rng := plan.NewRand(o.Seed, "assess-subset", row.Dataset, fmt.Sprint(m))
-				idx = export.BalancedSubset(ytr, idx, C, m, rng.IntN)
-			}
-			train := make([][]float64, len(idx))
-			y := make([]int, len(idx))
-			for i, j := range idx {
-				train[i], y[i] = Ztr.RawRowView(j), ytr[j]
-			}
-			var w []float64
-			if !o.Uniform {
-				if w, err = circuit.BalancedWeights(y, C); err != nil {
-					return nil, fmt.Errorf("assess: %s: %w", where, err)
-				}
-			}
-			c, err := circuit.Compile(Zte.RawRowView(0), train, y, C, w)
-			if err != nil {
-				return nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
-			}
-			r = c.Resources()
-			cache[key] = r
+		idx := make([]int, len(sp.Train))
+		for i := range idx {
+			idx[i] = i
 		}
+		if m < len(idx) {
+			rng := plan.NewRand(o.Seed, "assess-subset", row.Dataset, fmt.Sprint(m))
+			idx = export.BalancedSubset(ytr, idx, C, m, rng.IntN)
+		}
+		train := make([][]float64, len(idx))
+		y := make([]int, len(idx))
+		for i, j := range idx {
+			train[i], y[i] = Ztr.RawRowView(j), ytr[j]
+		}
+		var w []float64
+		if !o.Uniform {
+			if w, err = circuit.BalancedWeights(y, C); err != nil {
+				return nil, fmt.Errorf("assess: %s: %w", where, err)
+			}
+		}
+		c, err := circuit.Compile(Zte.RawRowView(0), train, y, C, w)
+		if err != nil {
+			return nil, &input.Error{File: o.File, Err: fmt.Errorf("%s: %w", where, err)}
+		}
+		r := c.Resources()
 		res := results.AssessResource{
 			Dataset: row.Dataset, Pipeline: pipe, Train: m, Full: m == row.TrainSize,
 			Index: r.Index, Data: r.Data, Class: r.Class, Qubits: r.Qubits,

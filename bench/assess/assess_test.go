@@ -79,9 +79,13 @@ func TestAssessResources(t *testing.T) {
 		if want := int(math.Ceil(math.Log2(float64(r.Train)))); r.Index != want {
 			t.Errorf("%s M=%d: index %d, want ceil(log2 M) = %d", key, r.Train, r.Index, want)
 		}
+		// The published counts are an upper bound: the circuit's dead
+		// gates (rotations by 0, cancelling pairs) are removed
+		// (circuit.Simplify; qkernel/circuit checks the unsimplified
+		// circuit against the formula exactly).
 		cn, sq := gateFormula(ni, nd, nc)
-		if r.CNOT != cn || r.SingleQubit != sq {
-			t.Errorf("%s M=%d: CNOT %d single %d, formula %d %d", key, r.Train, r.CNOT, r.SingleQubit, cn, sq)
+		if r.CNOT > cn || r.SingleQubit > sq || r.CNOT == 0 {
+			t.Errorf("%s M=%d: CNOT %d single %d, formula (upper bound) %d %d", key, r.Train, r.CNOT, r.SingleQubit, cn, sq)
 		}
 		if want := float64((1<<nd)-d) / float64(int(1)<<nd); r.PaddingWaste != want {
 			t.Errorf("%s: padding waste %v, want %v", key, r.PaddingWaste, want)
