@@ -261,7 +261,7 @@ func WriteReportMarkdown(w io.Writer, r *Report) error {
 		b.WriteString("\n")
 	}
 	if len(r.Warnings) > 0 {
-		b.WriteString("## Warnings of the statistics\n\n")
+		b.WriteString("## Warnings\n\n")
 		for _, wn := range r.Warnings {
 			b.WriteString("- " + MDEscape(wn) + "\n")
 		}

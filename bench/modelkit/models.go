@@ -1,6 +1,7 @@
 package modelkit
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -72,9 +73,9 @@ type Info struct {
 func Infos() []Info {
 	return []Info{
 		{"interference", "mode, balance, shots, train_subset, noise, method, trajectories", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise); balance = true weights the index register by 1/(C*M_k)"},
-		{"knn", "k, metric, weights", "k-nearest neighbours; metric euclidean|manhattan|cosine; weights uniform|distance; ties: nearer then lower index, vote ties to the first class"},
-		{"svm", "kernel, C, gamma, degree, coef0, tol", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; one-vs-one"},
-		{"logreg", "C, max_iter", "multinomial logistic regression, L2 penalty 1/C (intercept unpenalised), fitted by L-BFGS"},
+		{"knn", "k, metric, weights, search", "k-nearest neighbours; metric euclidean|manhattan|cosine; weights uniform|distance; search auto|brute|tree (the exact k-d tree gives brute force's neighbours and ties); ties: nearer then lower index, vote ties to the first class"},
+		{"svm", "kernel, C, gamma, degree, coef0, tol, cache_mib, shrinking", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005) and shrinking (LIBSVM); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; kernel rows cached in cache_mib MiB per class pair (default 200); one-vs-one; absurd parameters are refused"},
+		{"logreg", "C, max_iter", "logistic regression in scikit-learn's default forms: binary (one weight vector) for two classes, multinomial for three or more; L2 penalty 1/C (intercept unpenalised); L-BFGS"},
 		{"centroid", "", "nearest centroid (Euclidean), a sanity baseline"},
 		{"command", "run, timeout", "your own classifier as a program, run once per task: run = [\"python3\", \"mine.py\"] gets the paths of TRAIN (row,label,<features>), TEST (row,<features>) and OUT, and writes OUT as row,predicted[,prob_<class>...]; FRINGE_SEED holds the task's seed; timeout in seconds"},
 		{"counts", "file, balance, train_subset", "outcomes measured on a device for the circuits of `fringe circuit -export` (file = CSV with dataset,repeat,fold,row,ancilla,class,count[,pipeline]), decided by post-selection as shot mode does; balance and train_subset as the exported circuits"},
@@ -156,6 +157,11 @@ func parseKNN(p *params, ms *Spec) string {
 	k := p.integer("k", 5)
 	metricS := p.str("metric", "euclidean")
 	weightsS := p.str("weights", "uniform")
+	searchS := p.str("search", "auto")
+	search, err := baselines.ParseKNNMethod(searchS)
+	if err != nil {
+		p.fail("search", "%v", err)
+	}
 	if p.err == nil && k < 1 {
 		p.fail("k", "k must be at least 1, got %d", k)
 	}
@@ -174,9 +180,9 @@ func parseKNN(p *params, ms *Spec) string {
 	if weightsS != "uniform" {
 		label += "-" + weightsS
 	}
-	ms.Params["k"], ms.Params["metric"], ms.Params["weights"] = k, metricS, weightsS
+	ms.Params["k"], ms.Params["metric"], ms.Params["weights"], ms.Params["search"] = k, metricS, weightsS, searchS
 	ms.build = func(uint64) baselines.Model {
-		return &baselines.KNN{K: k, Metric: metric, Weights: weights}
+		return &baselines.KNN{K: k, Metric: metric, Weights: weights, Method: search}
 	}
 	return label
 }
@@ -229,10 +235,33 @@ func parseSVM(p *params, ms *Spec) string {
 	if kernelS == "poly" {
 		label += fmt.Sprintf("-d%d", degree)
 	}
+	cacheMiB := p.number("cache_mib", baselines.DefaultCacheMiB)
+	shrinking := p.boolean("shrinking", true)
+	if p.err == nil && !(cacheMiB > 0) {
+		p.fail("cache_mib", "cache_mib must be a positive number of MiB, got %v", cacheMiB)
+	}
+	if p.err == nil && !shrinking {
+		label += "-noshrink"
+	}
 	ms.Params["kernel"], ms.Params["C"], ms.Params["gamma"] = kernelS, c, gammaS
 	ms.Params["degree"], ms.Params["coef0"], ms.Params["tol"] = degree, coef0, tol
+	ms.Params["cache_mib"], ms.Params["shrinking"] = cacheMiB, shrinking
+	proto := baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: coef0, Tol: tol, CacheMiB: cacheMiB, NoShrinking: !shrinking}
+	if p.err == nil {
+		// Absurd parameters (poly degree 10^6, gamma 10^12, ...) are
+		// refused here, with the bound and its reason (baselines).
+		if err := proto.CheckParams(); err != nil {
+			key := "kernel"
+			var pe *baselines.ParamError
+			if errors.As(err, &pe) {
+				key = pe.Param
+			}
+			p.fail(key, "%v", err)
+		}
+	}
 	ms.build = func(uint64) baselines.Model {
-		return &baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: coef0, Tol: tol}
+		m := proto
+		return &m
 	}
 	return label
 }

@@ -210,6 +210,9 @@ func (p *Plan) checkModels() error {
 	if err := p.checkQubits(); err != nil {
 		return err
 	}
+	if err := p.checkKernels(); err != nil {
+		return err
+	}
 	for mi, m := range p.Spec.Models {
 		var key string
 		var k int
@@ -269,6 +272,99 @@ func (p *Plan) checkPipelines() error {
 				return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines",
 					Err: fmt.Errorf("dataset %s (smallest training part %d rows, %d features): %w", d.Name, minTrain, d.Data.Dim(), err)}
 			}
+		}
+	}
+	return nil
+}
+
+// checkKernels rejects an SVM whose kernel is not finite, or collapses to
+// one value, on a dataset after a pipeline (baselines.SVM.CheckData; the
+// pipeline fitted on every row, as an illustration of what the folds
+// see): a kernel that overflows gives a model that predicts one class on
+// every fold without any error.
+func (p *Plan) checkKernels() error {
+	for mi, m := range p.Spec.Models {
+		if m.Kind != "svm" {
+			continue
+		}
+		for _, ps := range p.Spec.Pipelines {
+			pipe, err := datasets.ParsePipeline(ps)
+			if err != nil {
+				return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines", Err: err}
+			}
+			for _, d := range p.Datasets {
+				Z, err := pipe.FitTransformLabeled(d.Data.X, d.Data.Y, d.Data.Rows)
+				if err != nil {
+					continue // reported, located, when the split is prepared
+				}
+				svm, ok := m.New(0).(*baselines.SVM)
+				if !ok {
+					continue
+				}
+				if err := svm.CheckData(Z); err != nil {
+					key := fmt.Sprintf("model[%d]", mi+1)
+					var pe *baselines.ParamError
+					if errors.As(err, &pe) {
+						key += "." + pe.Param
+					}
+					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
+						Err: fmt.Errorf("model %s on dataset %s, pipeline %s: %w", m.Name, d.Name, ps, err)}
+				}
+			}
+		}
+	}
+	return nil
+}
+
+// MemoryBytes estimates the peak memory one task of model mi needs on the
+// plan's largest training part after each pipeline (0 for models without
+// an estimate), and says for which dataset and pipeline.
+func (p *Plan) MemoryBytes(mi int) (bytes int64, where string, err error) {
+	m := p.Spec.Models[mi]
+	svm, ok := m.New(0).(*baselines.SVM)
+	if !ok {
+		return 0, "", nil
+	}
+	for _, ps := range p.Spec.Pipelines {
+		pipe, err := datasets.ParsePipeline(ps)
+		if err != nil {
+			return 0, "", err
+		}
+		for _, d := range p.Datasets {
+			nTrain := 0
+			for _, sp := range d.Splits {
+				nTrain = max(nTrain, len(sp.Train))
+			}
+			width, err := pipe.CheckDims(nTrain, d.Data.Dim())
+			if err != nil {
+				return 0, "", err
+			}
+			b, err := svm.MemoryBytes(nTrain, width, len(d.Data.Classes))
+			if err != nil {
+				return 0, "", err
+			}
+			if b > bytes {
+				bytes, where = b, fmt.Sprintf("dataset %s, pipeline %s (%d training rows, %d features)", d.Name, ps, nTrain, width)
+			}
+		}
+	}
+	return bytes, where, nil
+}
+
+// CheckMemory refuses a plan whose models would need more than limit
+// bytes when workers tasks run at once, each holding the largest training
+// part's memory (MemoryBytes), with the estimate and the key to change.
+func (p *Plan) CheckMemory(workers int, limit int64) error {
+	for mi, m := range p.Spec.Models {
+		b, where, err := p.MemoryBytes(mi)
+		if err != nil || b == 0 {
+			continue
+		}
+		if need := b * int64(max(1, workers)); need > limit {
+			key := fmt.Sprintf("model[%d].cache_mib", mi+1)
+			return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
+				Err: fmt.Errorf("model %s needs about %.2f GiB per task on %s, %.2f GiB with %d workers, above the memory limit of %.2f GiB: lower cache_mib (now %v MiB), use fewer workers or rows, or raise -memory",
+					m.Name, float64(b)/(1<<30), where, float64(need)/(1<<30), workers, float64(limit)/(1<<30), m.Params["cache_mib"])}
 		}
 	}
 	return nil

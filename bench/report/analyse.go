@@ -89,6 +89,9 @@ type Input struct {
 	Predictions []results.Prediction
 	Variants    []results.Variant // one per model, in the run's model order
 	Label       string            // LaTeX label of the summary table; "" for none
+	// Warnings are the run's own warnings about its cells ({where,
+	// what}), reported with those of the statistics.
+	Warnings [][2]string
 }
 
 type analyser struct {
@@ -146,7 +149,7 @@ func Analyse(in Input) (*results.Report, error) {
 	if rep.Ranks, rep.Pairs, err = a.acrossDatasets(); err != nil {
 		return nil, err
 	}
-	rep.Warnings = results.GroupWarnings(a.warn)
+	rep.Warnings = results.GroupWarnings(append(append([][2]string(nil), in.Warnings...), a.warn...))
 	return rep, nil
 }
 

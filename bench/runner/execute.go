@@ -11,8 +11,10 @@ import (
 	"time"
 
 	"golang.org/x/sync/errgroup"
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 
+	"fringe/baselines"
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
 	"fringe/bench/plan"
@@ -96,6 +98,10 @@ type TaskResult struct {
 	Details []qkernel.Detail // per test instance, for models that report them; else nil
 	Scores  results.Scores
 	Elapsed time.Duration
+	// ConstantDecision: the model predicted one class on every test
+	// instance of the task and its decision values (baselines.Decisions)
+	// were equal on all of them, i.e. it does not discriminate at all.
+	ConstantDecision bool
 }
 
 // Execute runs the tasks of the plan (all, or opt.Tasks) on a worker pool
@@ -405,6 +411,13 @@ func runModel(ctx context.Context, p *plan.Plan, t plan.Task, pr *plan.Prepared)
 	if len(r.Pred) != len(sp.Test) {
 		return TaskResult{}, fmt.Errorf("model %s returned %d predictions for %d test instances", ms.Name, len(r.Pred), len(sp.Test))
 	}
+	if singleClass(r.Pred) && len(r.Pred) > 1 {
+		// Only then are the decision values looked at (another pass of
+		// the model over the test part).
+		if dv, err := baselines.Decisions(m, pr.Zte); err == nil && dv != nil {
+			r.ConstantDecision = constantRows(dv)
+		}
+	}
 	truth := make([]int, len(sp.Test))
 	for i, j := range sp.Test {
 		truth[i] = d.Data.Y[j]
@@ -425,4 +438,26 @@ func meanPAcc(d []qkernel.Detail) float64 {
 		s += x.PAcc
 	}
 	return s / float64(len(d))
+}
+
+// singleClass reports whether every prediction is the same class.
+func singleClass(pred []int) bool {
+	for _, c := range pred {
+		if c != pred[0] {
+			return false
+		}
+	}
+	return true
+}
+
+// constantRows reports whether every row of m equals the first (exactly:
+// a model that does not look at its input gives the same bits).
+func constantRows(m *mat.Dense) bool {
+	r, _ := m.Dims()
+	for i := 1; i < r; i++ {
+		if !floats.Equal(m.RawRowView(i), m.RawRowView(0)) {
+			return false
+		}
+	}
+	return true
 }

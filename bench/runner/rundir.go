@@ -346,7 +346,58 @@ func reportInput(p *plan.Plan, res []TaskResult, preds []results.Prediction, fol
 	for _, m := range p.Spec.Models {
 		in.Variants = append(in.Variants, report.VariantOf(m))
 	}
+	in.Warnings = degenerate(p, res)
 	return in
+}
+
+// degenerate warns about cells whose model predicts a single class on
+// every test instance of every fold, and says so louder when its decision
+// values were also equal on every fold (TaskResult.ConstantDecision): the
+// model then does not look at the data at all, and its scores are those of
+// a constant, whatever exit status the run has.
+func degenerate(p *plan.Plan, res []TaskResult) [][2]string {
+	type cell struct{ d, p, m int }
+	type state struct {
+		class            int
+		single, constant bool
+		decided          int // tasks with more than one test instance
+	}
+	var order []cell
+	cells := map[cell]*state{}
+	for _, r := range res {
+		k := cell{r.Task.Dataset, r.Task.Pipeline, r.Task.Model}
+		st, ok := cells[k]
+		if !ok {
+			if len(r.Pred) == 0 {
+				continue
+			}
+			st = &state{class: r.Pred[0], single: true, constant: true}
+			cells[k] = st
+			order = append(order, k)
+		}
+		for _, c := range r.Pred {
+			st.single = st.single && c == st.class
+		}
+		if len(r.Pred) > 1 {
+			st.decided++
+			st.constant = st.constant && r.ConstantDecision
+		}
+	}
+	var out [][2]string
+	for _, k := range order {
+		st := cells[k]
+		if !st.single {
+			continue
+		}
+		d := p.Datasets[k.d]
+		where := fmt.Sprintf("%s/%s/%s", d.Name, p.Spec.Pipelines[k.p], p.Spec.Models[k.m].Name)
+		msg := fmt.Sprintf("predicts class %s on every test instance of every fold", d.Data.Classes[st.class])
+		if st.constant && st.decided > 0 {
+			msg += ", with the same decision values for every instance: the model does not discriminate (check its parameters)"
+		}
+		out = append(out, [2]string{where, msg})
+	}
+	return out
 }
 
 // absDir is dir made absolute ("" stays "": a built-in spec).

@@ -65,6 +65,7 @@ type taskJSON struct {
 	ElapsedNS int64        `json:"elapsed_ns"`
 	Pred      []int        `json:"pred"`
 	Details   []detailJSON `json:"details"` // null for models without details
+	Constant  bool         `json:"constant_decision,omitempty"`
 }
 
 type detailJSON struct {
@@ -116,7 +117,7 @@ func (f *jsonFloat) UnmarshalJSON(b []byte) error {
 func encodeTasks(p *plan.Plan, run string, batch []TaskResult) ([]byte, error) {
 	tasks := make([]taskJSON, len(batch))
 	for k, r := range batch {
-		tj := taskJSON{Index: r.Task.Index, Key: p.Key(r.Task), NTrain: r.NTrain, NTest: r.NTest, ElapsedNS: int64(r.Elapsed), Pred: r.Pred}
+		tj := taskJSON{Index: r.Task.Index, Key: p.Key(r.Task), NTrain: r.NTrain, NTest: r.NTest, ElapsedNS: int64(r.Elapsed), Pred: r.Pred, Constant: r.ConstantDecision}
 		if r.Details != nil {
 			tj.Details = make([]detailJSON, len(r.Details))
 			for i, d := range r.Details {
@@ -218,7 +219,7 @@ func decodeTask(p *plan.Plan, member []bool, tj taskJSON) (*TaskResult, error) {
 	if tj.ElapsedNS < 0 {
 		return bad("negative elapsed time")
 	}
-	r := &TaskResult{Task: t, NTrain: tj.NTrain, NTest: tj.NTest, Pred: tj.Pred, Elapsed: time.Duration(tj.ElapsedNS)}
+	r := &TaskResult{Task: t, NTrain: tj.NTrain, NTest: tj.NTest, Pred: tj.Pred, Elapsed: time.Duration(tj.ElapsedNS), ConstantDecision: tj.Constant}
 	if tj.Details != nil {
 		if len(tj.Details) != len(sp.Test) {
 			return bad("%d details for %d test instances", len(tj.Details), len(sp.Test))

@@ -180,3 +180,39 @@ func TestCompareCSVRounding(t *testing.T) {
 		}
 	}
 }
+
+// TestDegenerateWarning: a model that predicts one class everywhere with
+// equal decision values (k-NN with k = the whole training part of a
+// balanced Iris: every vote ties, every prediction is the first class) is
+// named in the manifest's warnings and in summary.md; a model that
+// discriminates is not. Before, such a run passed with exit 0 and no word.
+func TestDegenerateWarning(t *testing.T) {
+	p := benchtest.Plan(t, "d.toml", `
+name = "degenerate"
+seed = 1
+datasets = ["iris"]
+pipelines = ["std"]
+[[model]]
+kind = "knn"
+k = 135
+[[model]]
+kind = "centroid"
+`)
+	res, err := Execute(context.Background(), p, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(t.TempDir(), "run")
+	if err := Write(p, dir, res, RunInfo{Workers: 2, NoFigures: true}, nil); err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range []string{"manifest.json", "summary.md"} {
+		data, _ := os.ReadFile(filepath.Join(dir, f))
+		if !bytes.Contains(data, []byte("iris/std/knn-k135")) || !bytes.Contains(data, []byte("predicts class setosa on every test instance of every fold, with the same decision values")) {
+			t.Errorf("%s does not warn about the constant k-NN", f)
+		}
+		if bytes.Contains(data, []byte("iris/std/centroid")) {
+			t.Errorf("%s warns about the centroid model, which discriminates", f)
+		}
+	}
+}

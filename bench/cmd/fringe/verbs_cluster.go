@@ -57,6 +57,12 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 	if err != nil {
 		return err
 	}
+	if !(rf.memory > 0) {
+		return usagef("-memory must be a positive number of GiB, got %v", rf.memory)
+	}
+	if err := pl.CheckMemory(rf.workers, int64(rf.memory*(1<<30))); err != nil {
+		return err
+	}
 	pr, err := runner.OpenPartial(partialDir, pl, shard, runner.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
 	if err != nil {
 		return err
