@@ -23,7 +23,7 @@ import (
 )
 
 // IndexColumns are the columns of index.csv in a circuit export.
-var IndexColumns = []string{"file", "dataset", "pipeline", "repeat", "fold", "row", "qubits", "class_bits"}
+var IndexColumns = []string{"file", "dataset", "pipeline", "repeat", "fold", "row", "qubits", "class_bits", "train_rows"}
 
 // Options configure Circuits.
 type Options struct {
@@ -224,7 +224,7 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 					return fmt.Errorf("export: %w", err)
 				}
 				index[k] = []string{name, results.EscapeCSVCell(it.Dataset), results.EscapeCSVCell(it.Pipeline), strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold),
-					strconv.Itoa(it.Row), strconv.Itoa(it.Circuit.NQubits), strconv.Itoa(len(it.Circuit.Regs.Class))}
+					strconv.Itoa(it.Row), strconv.Itoa(it.Circuit.NQubits), strconv.Itoa(len(it.Circuit.Regs.Class)), joinRows(it.TrainRows)}
 				sizes[k], qubits[k] = int64(len(text)), it.Circuit.NQubits
 				k++
 				return nil
@@ -274,11 +274,7 @@ func exportText(it exportItem, set exportSettings) ([]byte, error) {
 	if set.balance {
 		weights = "class-balancing weights 1/(C*M_k)"
 	}
-	rows := make([]string, len(it.TrainRows))
-	for i, r := range it.TrainRows {
-		rows[i] = strconv.Itoa(r)
-	}
-	fmt.Fprintf(&b, "// %d training vectors (%s), dataset rows %s\n", len(it.TrainRows), weights, strings.Join(rows, " "))
+	fmt.Fprintf(&b, "// %d training vectors (%s), dataset rows %s\n", len(it.TrainRows), weights, joinRows(it.TrainRows))
 	var cls []string
 	for k, c := range it.Classes {
 		cls = append(cls, fmt.Sprintf("%s = %s", modelkit.FormatBits(k, nc), input.OneLine(c)))
@@ -318,9 +314,20 @@ func checkExportDir(dir string) error {
 	if err == nil {
 		defer f.Close()
 		line, _ := bufio.NewReader(f).ReadString('\n')
-		if strings.TrimSpace(line) == strings.Join(IndexColumns, ",") {
+		// An export of this or an earlier version (which had fewer
+		// columns after these).
+		if strings.HasPrefix(strings.TrimSpace(line), "file,dataset,pipeline,repeat,fold,row") {
 			return nil
 		}
 	}
 	return &input.Error{File: dir, Err: fmt.Errorf("folder exists and is not a circuit export of fringe (no index.csv); choose a new folder")}
+}
+
+// joinRows writes dataset rows separated by spaces, ascending as given.
+func joinRows(rows []int) string {
+	s := make([]string, len(rows))
+	for i, r := range rows {
+		s[i] = strconv.Itoa(r)
+	}
+	return strings.Join(s, " ")
 }

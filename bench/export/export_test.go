@@ -117,7 +117,7 @@ func TestExportCircuits(t *testing.T) {
 					rec := index[line]
 					line++
 					wantRec := []string{it.Dataset, it.Pipeline, strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold), strconv.Itoa(it.Row),
-						strconv.Itoa(it.Circuit.NQubits), strconv.Itoa(len(it.Circuit.Regs.Class))}
+						strconv.Itoa(it.Circuit.NQubits), strconv.Itoa(len(it.Circuit.Regs.Class)), joinRows(it.TrainRows)}
 					if strings.Join(rec[1:], ",") != strings.Join(wantRec, ",") {
 						t.Fatalf("index line %d: %v, want %v", line, rec, wantRec)
 					}

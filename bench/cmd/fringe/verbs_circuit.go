@@ -61,13 +61,14 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 		}
 		fmt.Fprintf(stdout, "// fringe: interference circuit, dataset %s, pipeline %s, test row %d, %d training rows (%s weights)\n",
 			*ds, *pipeline, res.TestRow, len(res.TrainRows), map[bool]string{false: "uniform", true: "class-balancing"}[*balance])
+		fmt.Fprintf(stdout, "// training rows (dataset rows, 0-based): %s\n", joinInts(res.TrainRows))
 		_, err = io.WriteString(stdout, text)
 		return err
 	}
 	r := res.Circuit.Resources()
 	tw := tabwriter.NewWriter(stdout, 0, 0, 2, ' ', 0)
 	fmt.Fprintf(tw, "dataset\t%s (%d classes, %d features after %s)\n", *ds, len(res.Dataset.Classes), res.Features, *pipeline)
-	fmt.Fprintf(tw, "training rows\t%d\n", len(res.TrainRows))
+	fmt.Fprintf(tw, "training rows\t%d: %s\n", len(res.TrainRows), joinInts(res.TrainRows))
 	fmt.Fprintf(tw, "qubits\t%d = ancilla %d + index %d + data %d + class %d\n", r.Qubits, r.Ancilla, r.Index, r.Data, r.Class)
 	fmt.Fprintf(tw, "CNOT gates\t%d\n", r.CNOT)
 	fmt.Fprintf(tw, "single-qubit gates\t%d\n", r.SingleQubit)
