@@ -57,6 +57,10 @@ type TunedSVM struct {
 	Gammas  []float64 // values of gamma (0 = "scale"); empty means {0}
 	Folds   int       // inner folds; 0 means 5
 	NoReuse bool      // fit every grid point and fold independently
+	// FoldTests, if set, are the inner folds' test rows (positions into
+	// the rows given to Fit, each row in exactly one fold) instead of
+	// StratifiedFolds(y, Folds); Folds is then len(FoldTests).
+	FoldTests [][]int
 
 	fit *tunedFit
 }
@@ -99,9 +103,26 @@ func (m *TunedSVM) Fit(X *mat.Dense, y []int, nClass int) error {
 			return fmt.Errorf("baselines: tuned svm: row %d: label %d outside [0, %d): %w", i, c, nClass, ErrData)
 		}
 	}
-	tests, err := StratifiedFolds(y, folds)
-	if err != nil {
-		return fmt.Errorf("baselines: tuned svm: %w", err)
+	var tests [][]int
+	if m.FoldTests != nil {
+		tests, folds = m.FoldTests, len(m.FoldTests)
+		seen := make([]bool, n)
+		for f, test := range tests {
+			if len(test) == 0 {
+				return fmt.Errorf("baselines: tuned svm: inner fold %d has no test rows: %w", f, ErrParam)
+			}
+			for _, i := range test {
+				if i < 0 || i >= n || seen[i] {
+					return fmt.Errorf("baselines: tuned svm: inner fold %d: row %d out of range or in two folds: %w", f, i, ErrParam)
+				}
+				seen[i] = true
+			}
+		}
+	} else {
+		var err error
+		if tests, err = StratifiedFolds(y, folds); err != nil {
+			return fmt.Errorf("baselines: tuned svm: %w", err)
+		}
 	}
 	base := m.SVM
 	base.C, base.Gamma = 1, 0

@@ -169,6 +169,21 @@ func ReportTeX(r *Report) (*TeXReport, error) {
 	if v.opt.Layout == LayoutLandscape {
 		body.WriteString("\\end{landscape}\n")
 	}
+	if groups := choiceGroups(r.Choices); len(groups) > 0 {
+		// One line per tuned model and cell: what it chose and how often.
+		body.WriteString("\n\\paragraph{Tuned models.} The grid point each tuned model chose by inner cross-validation, and on how many outer folds.\n\\begin{itemize}\n")
+		for _, g := range groups {
+			c := g[0]
+			parts := []string{c.Model, c.Dataset, c.Pipeline, choiceText(g)}
+			for i, p := range parts {
+				txt, ws := TeXText(p)
+				parts[i] = txt
+				warn = append(warn, ws...)
+			}
+			fmt.Fprintf(&body, "\\item %s, %s, %s: %s\n", parts[0], parts[1], parts[2], parts[3])
+		}
+		body.WriteString("\\end{itemize}\n")
+	}
 	out.Text = body.String()
 	seen := map[string]bool{}
 	for _, w := range warn {

@@ -260,6 +260,14 @@ func WriteReportMarkdown(w io.Writer, r *Report) error {
 		}
 		b.WriteString("\n")
 	}
+	if groups := choiceGroups(r.Choices); len(groups) > 0 {
+		b.WriteString("## Tuned models\n\nThe grid point each tuned model chose by inner cross-validation, and on how many outer folds:\n\n")
+		for _, g := range groups {
+			c := g[0]
+			fmt.Fprintf(&b, "- %s, %s, %s: %s\n", MDEscape(c.Model), MDEscape(c.Dataset), MDEscape(c.Pipeline), MDEscape(choiceText(g)))
+		}
+		b.WriteString("\n")
+	}
 	if len(r.Warnings) > 0 {
 		b.WriteString("## Warnings\n\n")
 		for _, wn := range r.Warnings {

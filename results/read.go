@@ -218,6 +218,7 @@ func ReadFolds(r io.Reader, file string) ([]Fold, error) {
 		if f.MeanPAcc, err = rw.number("mean_p_acc"); err != nil {
 			return f, err
 		}
+		f.Chosen = rw.text("chosen")
 		return f, nil
 	})
 }

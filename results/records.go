@@ -39,6 +39,10 @@ type Fold struct {
 	MeanPAcc                 float64 // NaN when the model has none
 	MeanShots                float64 // mean accepted shots per prediction; NaN without finite shots
 	ExactDisagreement        float64 // share of decisions that differ from exact mode; NaN unless the model runs in another mode
+	// Chosen is the grid point a tuned model chose on this fold's
+	// training part ("C=1 gamma=scale"); "" for an untuned model. The
+	// column is written only when some row has one.
+	Chosen string
 }
 
 // MetricSummary is a metric's mean, standard deviation and confidence
@@ -112,6 +116,13 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 	head := []string{"dataset", "pipeline", "model", "repeat", "fold", "n_train", "n_test"}
 	head = append(head, MetricNames...)
 	head = append(head, "mean_p_acc", "mean_shots", "exact_disagreement")
+	tuned := false
+	for _, r := range rows {
+		tuned = tuned || r.Chosen != ""
+	}
+	if tuned {
+		head = append(head, "chosen")
+	}
 	cw.Write(head)
 	for _, r := range rows {
 		rec := append(csvTexts(r.Dataset, r.Pipeline, r.Model), strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
@@ -120,6 +131,9 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 			rec = append(rec, Fmt(v))
 		}
 		rec = append(rec, Fmt(r.MeanPAcc), Fmt(r.MeanShots), Fmt(r.ExactDisagreement))
+		if tuned {
+			rec = append(rec, EscapeCSVCell(r.Chosen))
+		}
 		cw.Write(rec)
 	}
 	cw.Flush()

@@ -272,6 +272,10 @@ type Report struct {
 	Figures     []FigureRef
 	// Warnings of the statistics, grouped, in a fixed order.
 	Warnings []string
+	// Choices says, for every tuned model and (dataset, pipeline), how
+	// often each grid point was chosen over the outer folds, in run order
+	// and then grid order.
+	Choices []ChoiceCount
 }
 
 // variant returns the variant of a model name, and false when unknown.

@@ -141,7 +141,7 @@ func TestReportMarkdown(t *testing.T) {
 	s := b.String()
 	for _, want := range []string{
 		"# Run synth\\_1", "## Summary", "## Interference classifier across modes", "## Against the reference", "## Across datasets",
-		"## Figures", "## Warnings of the statistics",
+		"## Figures", "## Warnings",
 		"in italics: not significantly worse than the best",
 		"| iris\\_2 | std+l2 | knn | **0.950** ± 0.050 |",
 		"| iris\\_2 | std+l2 | svm & co | _0.940_ ± 0.050 |",

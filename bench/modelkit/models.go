@@ -30,6 +30,16 @@ type Spec struct {
 	// other kinds); its Seed is set per task by New.
 	Interference *qkernel.Classifier
 
+	// Pipeline holds steps applied after the run's pipeline, fitted on the
+	// model's training part ("" for none): the model's own `pipelines`
+	// key with one value.
+	Pipeline string
+	// Grid is non-nil for a tuned model: a key given a list of values (or
+	// `pipelines` with several), searched by inner cross-validation on
+	// every outer training part (see Grid). The Spec's other fields are
+	// those of the grid's first point.
+	Grid *Grid
+
 	build builder
 }
 
@@ -82,11 +92,8 @@ func Infos() []Info {
 	}
 }
 
-// Parse validates one [[model]] table (as decoded from TOML: strings,
-// int64, float64, bool, []any and map[string]any values) and returns its
-// Spec. Errors about one key are a *KeyError naming the key (for a noise
-// key, "noise.<key>"); the spec parser adds the file, line and table.
-func Parse(m map[string]any) (Spec, error) {
+// parseOne validates one [[model]] table with a single value per key.
+func parseOne(m map[string]any) (Spec, error) {
 	p := newParams(m)
 	kind := p.str("kind", "")
 	if p.err != nil {

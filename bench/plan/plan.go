@@ -213,40 +213,105 @@ func (p *Plan) checkModels() error {
 	if err := p.checkKernels(); err != nil {
 		return err
 	}
-	for mi, m := range p.Spec.Models {
-		var key string
-		var k int
-		switch m.Kind {
-		case "knn":
-			key, k = "k", m.Params["k"].(int)
-		case "interference", "counts":
-			key, k = "train_subset", modelkit.ParamInt(m.Params["train_subset"])
-		default:
-			continue
+	if err := p.checkInnerFolds(); err != nil {
+		return err
+	}
+	for mi, mm := range p.Spec.Models {
+		for _, m := range mm.Configs() {
+			if err := p.checkSizes(mi, mm, m); err != nil {
+				return err
+			}
 		}
-		if k == 0 {
-			continue
+	}
+	return nil
+}
+
+// checkSizes checks k of k-NN and train_subset of one configuration m of
+// model mi against the training parts it is fitted on: the outer ones, or
+// for a tuned model the smallest inner ones.
+func (p *Plan) checkSizes(mi int, mm, m modelkit.Spec) error {
+	var key string
+	var k int
+	switch m.Kind {
+	case "knn":
+		key, k = "k", m.Params["k"].(int)
+	case "interference", "counts":
+		key, k = "train_subset", modelkit.ParamInt(m.Params["train_subset"])
+	default:
+		return nil
+	}
+	if k == 0 {
+		return nil
+	}
+	full := fmt.Sprintf("model[%d].%s", mi+1, key)
+	bad := func(err error) error {
+		return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(full), Key: full, Err: err}
+	}
+	for _, d := range p.Datasets {
+		for _, sp := range d.Splits {
+			n, what := len(sp.Train), "training instances"
+			if mm.Grid != nil {
+				n, what = p.innerTrainSize(d, sp.Train), "instances of the smallest inner training part"
+			}
+			if k > n {
+				return bad(fmt.Errorf("%s = %d exceeds the %d %s of dataset %s (repeat %d fold %d): %w",
+					key, k, n, what, d.Name, sp.Repeat, sp.Fold, baselines.ErrParam))
+			}
+			if m.Kind == "knn" {
+				continue
+			}
+			seen := map[int]bool{}
+			for _, i := range sp.Train {
+				seen[d.Data.Y[i]] = true
+			}
+			if k < len(seen) {
+				return bad(fmt.Errorf("train_subset = %d is smaller than the %d classes in the training instances of dataset %s (repeat %d fold %d); a class-balanced subset needs one per class",
+					k, len(seen), d.Name, sp.Repeat, sp.Fold))
+			}
 		}
-		full := fmt.Sprintf("model[%d].%s", mi+1, key)
-		bad := func(err error) error {
-			return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(full), Key: full, Err: err}
-		}
-		for _, d := range p.Datasets {
-			for _, sp := range d.Splits {
-				if k > len(sp.Train) {
-					return bad(fmt.Errorf("%s = %d exceeds the %d training instances of dataset %s (repeat %d fold %d): %w",
-						key, k, len(sp.Train), d.Name, sp.Repeat, sp.Fold, baselines.ErrParam))
-				}
-				if m.Kind == "knn" {
-					continue
-				}
-				seen := map[int]bool{}
-				for _, i := range sp.Train {
-					seen[d.Data.Y[i]] = true
-				}
-				if k < len(seen) {
-					return bad(fmt.Errorf("train_subset = %d is smaller than the %d classes in the training instances of dataset %s (repeat %d fold %d); a class-balanced subset needs one per class",
-						k, len(seen), d.Name, sp.Repeat, sp.Fold))
+	}
+	return nil
+}
+
+// innerTrainSize is a lower bound of the training part of every inner
+// fold of a stratified k-fold split (Tune.Folds) of the rows train: each
+// class of n_c rows gives at most ceil(n_c/k) of them to one inner test
+// part.
+func (p *Plan) innerTrainSize(d *Dataset, train []int) int {
+	count := make([]int, len(d.Data.Classes))
+	for _, i := range train {
+		count[d.Data.Y[i]]++
+	}
+	k := p.Spec.Tune.Folds
+	if k < 2 {
+		k = 5
+	}
+	test := 0
+	for _, c := range count {
+		test += (c + k - 1) / k
+	}
+	return len(train) - test
+}
+
+// checkInnerFolds refuses an inner fold count above the smallest class of
+// an outer training part, for the tuned models' stratified inner
+// cross-validation.
+func (p *Plan) checkInnerFolds() error {
+	if !p.Spec.Tuned() {
+		return nil
+	}
+	k := p.Spec.Tune.Folds
+	for _, d := range p.Datasets {
+		for _, sp := range d.Splits {
+			count := make([]int, len(d.Data.Classes))
+			for _, i := range sp.Train {
+				count[d.Data.Y[i]]++
+			}
+			for c, n := range count {
+				if n > 0 && n < k {
+					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("tune.folds"), Key: "tune.folds",
+						Err: fmt.Errorf("%d inner folds, but class %q has %d members in the training part of dataset %s, repeat %d fold %d: lower tune.folds (default 5)",
+							k, d.Data.Classes[c], n, d.Name, sp.Repeat, sp.Fold)}
 				}
 			}
 		}
@@ -283,32 +348,34 @@ func (p *Plan) checkPipelines() error {
 // see): a kernel that overflows gives a model that predicts one class on
 // every fold without any error.
 func (p *Plan) checkKernels() error {
-	for mi, m := range p.Spec.Models {
-		if m.Kind != "svm" {
-			continue
-		}
-		for _, ps := range p.Spec.Pipelines {
-			pipe, err := datasets.ParsePipeline(ps)
-			if err != nil {
-				return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines", Err: err}
+	for mi, mm := range p.Spec.Models {
+		for _, m := range mm.Configs() {
+			if m.Kind != "svm" {
+				continue
 			}
-			for _, d := range p.Datasets {
-				Z, err := pipe.FitTransformLabeled(d.Data.X, d.Data.Y, d.Data.Rows)
+			for _, ps := range p.Spec.Pipelines {
+				pipe, err := datasets.ParsePipeline(ps)
 				if err != nil {
-					continue // reported, located, when the split is prepared
+					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines", Err: err}
 				}
-				svm, ok := m.New(0).(*baselines.SVM)
-				if !ok {
-					continue
-				}
-				if err := svm.CheckData(Z); err != nil {
-					key := fmt.Sprintf("model[%d]", mi+1)
-					var pe *baselines.ParamError
-					if errors.As(err, &pe) {
-						key += "." + pe.Param
+				for _, d := range p.Datasets {
+					Z, err := pipe.FitTransformLabeled(d.Data.X, d.Data.Y, d.Data.Rows)
+					if err != nil {
+						continue // reported, located, when the split is prepared
 					}
-					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
-						Err: fmt.Errorf("model %s on dataset %s, pipeline %s: %w", m.Name, d.Name, ps, err)}
+					svm, ok := m.New(0).(*baselines.SVM)
+					if !ok {
+						continue
+					}
+					if err := svm.CheckData(Z); err != nil {
+						key := fmt.Sprintf("model[%d]", mi+1)
+						var pe *baselines.ParamError
+						if errors.As(err, &pe) {
+							key += "." + pe.Param
+						}
+						return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
+							Err: fmt.Errorf("model %s on dataset %s, pipeline %s: %w", m.Name, d.Name, ps, err)}
+					}
 				}
 			}
 		}
@@ -320,31 +387,32 @@ func (p *Plan) checkKernels() error {
 // plan's largest training part after each pipeline (0 for models without
 // an estimate), and says for which dataset and pipeline.
 func (p *Plan) MemoryBytes(mi int) (bytes int64, where string, err error) {
-	m := p.Spec.Models[mi]
-	svm, ok := m.New(0).(*baselines.SVM)
-	if !ok {
-		return 0, "", nil
-	}
-	for _, ps := range p.Spec.Pipelines {
-		pipe, err := datasets.ParsePipeline(ps)
-		if err != nil {
-			return 0, "", err
+	for _, m := range p.Spec.Models[mi].Configs() {
+		svm, ok := m.New(0).(*baselines.SVM)
+		if !ok {
+			continue
 		}
-		for _, d := range p.Datasets {
-			nTrain := 0
-			for _, sp := range d.Splits {
-				nTrain = max(nTrain, len(sp.Train))
-			}
-			width, err := pipe.CheckDims(nTrain, d.Data.Dim())
+		for _, ps := range p.Spec.Pipelines {
+			pipe, err := datasets.ParsePipeline(ps)
 			if err != nil {
 				return 0, "", err
 			}
-			b, err := svm.MemoryBytes(nTrain, width, len(d.Data.Classes))
-			if err != nil {
-				return 0, "", err
-			}
-			if b > bytes {
-				bytes, where = b, fmt.Sprintf("dataset %s, pipeline %s (%d training rows, %d features)", d.Name, ps, nTrain, width)
+			for _, d := range p.Datasets {
+				nTrain := 0
+				for _, sp := range d.Splits {
+					nTrain = max(nTrain, len(sp.Train))
+				}
+				width, err := pipe.CheckDims(nTrain, d.Data.Dim())
+				if err != nil {
+					return 0, "", err
+				}
+				b, err := svm.MemoryBytes(nTrain, width, len(d.Data.Classes))
+				if err != nil {
+					return 0, "", err
+				}
+				if b > bytes {
+					bytes, where = b, fmt.Sprintf("dataset %s, pipeline %s (%d training rows, %d features)", d.Name, ps, nTrain, width)
+				}
 			}
 		}
 	}
@@ -377,46 +445,68 @@ func (p *Plan) CheckMemory(workers int, limit int64) error {
 // trajectories (sim.MaxStateQubits) otherwise. Checking here makes the error
 // immediate and the same on every run.
 func (p *Plan) checkQubits() error {
-	for mi, m := range p.Spec.Models {
-		q := m.Interference
-		if q == nil || q.Mode == qkernel.ModeExact || q.Mode == qkernel.ModeShots {
-			continue
-		}
-		gate := q.Mode == qkernel.ModeCircuit || !q.Noise.IsZero() || q.Method != sim.Auto
-		if !gate {
-			continue // closed-form channels only
-		}
-		limit, simName, alt := sim.MaxStateQubits, "state-vector and trajectory simulators hold", "set train_subset"
-		if q.Method == sim.DensityMatrix {
-			limit, simName, alt = sim.MaxDensityQubits, "density-matrix simulator holds", "set train_subset or method = \"trajectories\""
-		}
-		for _, d := range p.Datasets {
-			for _, ps := range p.Spec.Pipelines {
-				pipe, err := datasets.ParsePipeline(ps)
-				if err != nil {
-					return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
-				}
-				mTrain := 0
-				for _, sp := range d.Splits {
-					mTrain = max(mTrain, len(sp.Train))
-				}
-				// Features after the pipeline: an upper bound after pca(f).
-				dim, err := pipe.CheckDims(mTrain, d.Data.Dim())
-				if err != nil {
-					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines", Err: err}
-				}
-				if q.TrainSubset > 0 {
-					mTrain = min(mTrain, q.TrainSubset)
-				}
-				ni, nd, nc := circuit.RegisterSizes(mTrain, dim, len(d.Data.Classes))
-				if n := 1 + ni + nd + nc; n > limit {
-					key := fmt.Sprintf("model[%d]", mi+1)
-					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
-						Err: fmt.Errorf("model %s on dataset %s, pipeline %s: the circuit needs %d qubits (%d training vectors, %d features); the %s at most %d; %s: %w",
-							m.Name, d.Name, ps, n, mTrain, dim, simName, limit, alt, qkernel.ErrTooLarge)}
+	for mi, mm := range p.Spec.Models {
+		for _, m := range mm.Configs() {
+			q := m.Interference
+			if q == nil || q.Mode == qkernel.ModeExact || q.Mode == qkernel.ModeShots {
+				continue
+			}
+			gate := q.Mode == qkernel.ModeCircuit || !q.Noise.IsZero() || q.Method != sim.Auto
+			if !gate {
+				continue // closed-form channels only
+			}
+			limit, simName, alt := sim.MaxStateQubits, "state-vector and trajectory simulators hold", "set train_subset"
+			if q.Method == sim.DensityMatrix {
+				limit, simName, alt = sim.MaxDensityQubits, "density-matrix simulator holds", "set train_subset or method = \"trajectories\""
+			}
+			for _, d := range p.Datasets {
+				for _, ps := range p.Spec.Pipelines {
+					pipe, err := datasets.ParsePipeline(ps)
+					if err != nil {
+						return &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
+					}
+					mTrain := 0
+					for _, sp := range d.Splits {
+						mTrain = max(mTrain, len(sp.Train))
+					}
+					// Features after the pipeline: an upper bound after pca(f).
+					dim, err := pipe.CheckDims(mTrain, d.Data.Dim())
+					if err != nil {
+						return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("pipelines"), Key: "pipelines", Err: err}
+					}
+					if q.TrainSubset > 0 {
+						mTrain = min(mTrain, q.TrainSubset)
+					}
+					ni, nd, nc := circuit.RegisterSizes(mTrain, dim, len(d.Data.Classes))
+					if n := 1 + ni + nd + nc; n > limit {
+						key := fmt.Sprintf("model[%d]", mi+1)
+						return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
+							Err: fmt.Errorf("model %s on dataset %s, pipeline %s: the circuit needs %d qubits (%d training vectors, %d features); the %s at most %d; %s: %w",
+								m.Name, d.Name, ps, n, mTrain, dim, simName, limit, alt, qkernel.ErrTooLarge)}
+					}
 				}
 			}
 		}
 	}
 	return nil
+}
+
+// Fits is the number of model fits task t runs: 1, or for a tuned model
+// one per grid point and inner fold, plus the refit on the whole outer
+// training part. Progress and cost estimates count fits, not tasks.
+func (p *Plan) Fits(t Task) int {
+	m := p.Spec.Models[t.Model]
+	if m.Grid == nil {
+		return 1
+	}
+	return 1 + len(m.Grid.Points)*p.Spec.Tune.Folds
+}
+
+// FitsOf is the number of model fits of the tasks (indices into Tasks).
+func (p *Plan) FitsOf(tasks []int) int {
+	n := 0
+	for _, i := range tasks {
+		n += p.Fits(p.Tasks[i])
+	}
+	return n
 }

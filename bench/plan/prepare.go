@@ -101,3 +101,47 @@ func (p *Plan) Prepare(di, pi, si int) (*Prepared, error) {
 	pr.Ztr, pr.Ytr, pr.RowsTr, pr.Zte, pr.RowsTe = Ztr, ytr, rowsTr, Zte, rowsTe
 	return pr, nil
 }
+
+// Sub is the part of a prepared split that an inner fold sees: training
+// rows at the positions train of pr's training part, test rows at the
+// positions test of it (an inner fold never sees the outer test part).
+func (pr *Prepared) Sub(train, test []int, where string) *Prepared {
+	pick := func(idx []int) (*mat.Dense, []int, []int) {
+		_, c := pr.Ztr.Dims()
+		Z := mat.NewDense(len(idx), c, nil)
+		y := make([]int, len(idx))
+		rows := make([]int, len(idx))
+		for i, j := range idx {
+			copy(Z.RawRowView(i), pr.Ztr.RawRowView(j))
+			y[i], rows[i] = pr.Ytr[j], pr.RowsTr[j]
+		}
+		return Z, y, rows
+	}
+	out := &Prepared{Where: where, Features: pr.Features}
+	out.Ztr, out.Ytr, out.RowsTr = pick(train)
+	out.Zte, _, out.RowsTe = pick(test)
+	return out
+}
+
+// Then applies the steps pipe (a model's own pipeline) after pr's, fitted
+// on pr's training part; errors are classified as Prepare's.
+func (p *Plan) Then(pr *Prepared, di int, pipe string) (*Prepared, error) {
+	if pipe == "" {
+		return pr, nil
+	}
+	pl, err := datasets.ParsePipeline(pipe)
+	if err != nil {
+		return nil, &input.Error{File: p.Spec.File, Err: err}
+	}
+	d := p.Datasets[di]
+	where := pr.Where + ", then " + pipe
+	Ztr, err := pl.FitTransformLabeled(pr.Ztr, pr.Ytr, pr.RowsTr)
+	if err != nil {
+		return nil, p.classify(d.Data, err, where)
+	}
+	Zte, err := pl.Transform(pr.Zte, pr.RowsTe)
+	if err != nil {
+		return nil, p.classify(d.Data, err, where)
+	}
+	return &Prepared{Where: where, Features: pl.FeatureNames(pr.Features), Ztr: Ztr, Ytr: pr.Ytr, RowsTr: pr.RowsTr, Zte: Zte, RowsTe: pr.RowsTe}, nil
+}

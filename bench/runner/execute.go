@@ -24,8 +24,12 @@ import (
 
 // Options configure the execution of a plan.
 type Options struct {
-	Workers  int                   // concurrent tasks; 0 means runtime.NumCPU()
-	Progress func(done, total int) // called after each finished task (serialised; done counts this call's tasks); may be nil
+	Workers int // concurrent tasks; 0 means runtime.NumCPU()
+	// Progress is called after each finished task (serialised) with the
+	// model fits done so far by this call and the fits of all its tasks
+	// (a tuned model's task counts one fit per grid point and inner fold,
+	// plus its refit: plan.Plan.Fits); may be nil.
+	Progress func(done, total int)
 
 	// Tasks lists the task indices to run, in task order (e.g. one shard's
 	// tasks, or those a resumed run still lacks); nil runs every task.
@@ -98,6 +102,8 @@ type TaskResult struct {
 	Details []qkernel.Detail // per test instance, for models that report them; else nil
 	Scores  results.Scores
 	Elapsed time.Duration
+	// Tuning is the grid search of a tuned model (nil otherwise).
+	Tuning *Tuning
 	// ConstantDecision: the model predicted one class on every test
 	// instance of the task and its decision values (baselines.Decisions)
 	// were equal on all of them, i.e. it does not discriminate at all.
@@ -161,6 +167,7 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	sv := newSaver(opt.Save, opt.SaveEvery, cancelStop)
 	var mu sync.Mutex
 	done, running := 0, 0
+	totalFits := p.FitsOf(tasks)
 	gaveUp := false
 	abandoned := 0 // tasks in flight when they were abandoned
 	abandon := func() {
@@ -183,9 +190,9 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 		running--
 		out[slot[i]] = r
 		sv.add(r)
-		done++
+		done += p.Fits(p.Tasks[i])
 		if opt.Progress != nil {
-			opt.Progress(done, len(tasks))
+			opt.Progress(done, totalFits)
 		}
 	}
 	failed := func() {
@@ -383,38 +390,35 @@ type contextDetailer interface {
 }
 
 // runModel fits one task's model on the prepared (transformed) training
-// part of its split and predicts the prepared test part.
+// part of its split and predicts the prepared test part. A tuned model is
+// first tuned by inner cross-validation on the training part (tune), and
+// the chosen configuration is fitted on the whole training part.
 func runModel(ctx context.Context, p *plan.Plan, t plan.Task, pr *plan.Prepared) (TaskResult, error) {
 	start := time.Now()
 	d := p.Datasets[t.Dataset]
 	sp := d.Splits[t.Split]
 	ms := p.Spec.Models[t.Model]
-	m := ms.New(p.ModelSeed(t))
-	if ta, ok := m.(modelkit.TaskAware); ok {
-		ta.SetTask(p.TaskContext(ctx, t, pr))
+	var tuning *Tuning
+	if ms.Grid != nil {
+		var err error
+		if tuning, err = tune(ctx, p, t, pr); err != nil {
+			return TaskResult{}, err
+		}
+		ms = ms.Grid.Points[tuning.Chosen].Spec
+		ms.Name = p.Spec.Models[t.Model].Name
 	}
-	if err := m.Fit(pr.Ztr, pr.Ytr, len(d.Data.Classes)); err != nil {
-		return TaskResult{}, p.ClassifyModel(err, pr.Where, ms.Name, pr.RowsTr)
-	}
-	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test)}
-	var err error
-	if cm, ok := m.(contextDetailer); ok {
-		r.Pred, r.Details, err = cm.PredictDetailContext(ctx, pr.Zte)
-	} else if dm, ok := m.(modelkit.Detailer); ok {
-		r.Pred, r.Details, err = dm.PredictDetail(pr.Zte)
-	} else {
-		r.Pred, err = m.Predict(pr.Zte)
-	}
+	fp, err := fitPredict(ctx, p, t, ms, p.ModelSeed(t), pr)
 	if err != nil {
-		return TaskResult{}, p.ClassifyModel(err, pr.Where, ms.Name, pr.RowsTe)
+		return TaskResult{}, err
 	}
-	if len(r.Pred) != len(sp.Test) {
-		return TaskResult{}, fmt.Errorf("model %s returned %d predictions for %d test instances", ms.Name, len(r.Pred), len(sp.Test))
+	if len(fp.pred) != len(sp.Test) {
+		return TaskResult{}, fmt.Errorf("model %s returned %d predictions for %d test instances", ms.Name, len(fp.pred), len(sp.Test))
 	}
+	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test), Pred: fp.pred, Details: fp.details, Tuning: tuning}
 	if singleClass(r.Pred) && len(r.Pred) > 1 {
 		// Only then are the decision values looked at (another pass of
 		// the model over the test part).
-		if dv, err := baselines.Decisions(m, pr.Zte); err == nil && dv != nil {
+		if dv, err := baselines.Decisions(fp.model, fp.zte); err == nil && dv != nil {
 			r.ConstantDecision = constantRows(dv)
 		}
 	}
@@ -425,6 +429,45 @@ func runModel(ctx context.Context, p *plan.Plan, t plan.Task, pr *plan.Prepared)
 	r.Scores = results.Score(truth, r.Pred, len(d.Data.Classes))
 	r.Elapsed = time.Since(start)
 	return r, nil
+}
+
+// fitted is one configuration fitted and applied: its predictions and
+// details, the model and the test matrix it saw.
+type fitted struct {
+	pred    []int
+	details []qkernel.Detail
+	model   baselines.Model
+	zte     *mat.Dense
+}
+
+// fitPredict fits the configuration ms (its own pipeline steps applied
+// after pr's, fitted on pr's training part) with the model seed seed on
+// pr's training part and predicts pr's test part.
+func fitPredict(ctx context.Context, p *plan.Plan, t plan.Task, ms modelkit.Spec, seed uint64, pr *plan.Prepared) (fitted, error) {
+	d := p.Datasets[t.Dataset]
+	pr, err := p.Then(pr, t.Dataset, ms.Pipeline)
+	if err != nil {
+		return fitted{}, err
+	}
+	m := ms.New(seed)
+	if ta, ok := m.(modelkit.TaskAware); ok {
+		ta.SetTask(p.TaskContext(ctx, t, pr))
+	}
+	if err := m.Fit(pr.Ztr, pr.Ytr, len(d.Data.Classes)); err != nil {
+		return fitted{}, p.ClassifyModel(err, pr.Where, ms.Name, pr.RowsTr)
+	}
+	f := fitted{model: m, zte: pr.Zte}
+	if cm, ok := m.(contextDetailer); ok {
+		f.pred, f.details, err = cm.PredictDetailContext(ctx, pr.Zte)
+	} else if dm, ok := m.(modelkit.Detailer); ok {
+		f.pred, f.details, err = dm.PredictDetail(pr.Zte)
+	} else {
+		f.pred, err = m.Predict(pr.Zte)
+	}
+	if err != nil {
+		return fitted{}, p.ClassifyModel(err, pr.Where, ms.Name, pr.RowsTe)
+	}
+	return f, nil
 }
 
 // meanPAcc is the mean post-selection probability of a task's predictions,

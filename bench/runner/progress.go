@@ -16,6 +16,9 @@ import (
 type Progress struct {
 	w     io.Writer
 	tty   bool
+	// Unit names what is counted ("tasks"; "model fits" when tuned models
+	// make a task more than one fit).
+	Unit  string
 	prior int // tasks finished before this session (a resumed run)
 	total int // tasks of the run or shard, prior ones included
 
@@ -35,7 +38,7 @@ type Progress struct {
 // NewProgress returns a progress reporter for a run of total tasks of
 // which prior were finished earlier; tty selects the redrawn bar.
 func NewProgress(w io.Writer, tty bool, prior, total int) *Progress {
-	p := &Progress{w: w, tty: tty, prior: prior, total: total, TTYEvery: 200 * time.Millisecond, LogEvery: 10 * time.Second, now: time.Now}
+	p := &Progress{Unit: "tasks", w: w, tty: tty, prior: prior, total: total, TTYEvery: 200 * time.Millisecond, LogEvery: 10 * time.Second, now: time.Now}
 	p.start = p.now()
 	p.last = p.start
 	return p
@@ -81,7 +84,7 @@ func (p *Progress) Finish() {
 		return
 	}
 	if p.lines > 0 {
-		fmt.Fprintf(p.w, "fringe: %d/%d tasks finished in %s\n", p.prior+p.done, p.total, formatDuration(p.now().Sub(p.start)))
+		fmt.Fprintf(p.w, "fringe: %d/%d %s finished in %s\n", p.prior+p.done, p.total, p.Unit, formatDuration(p.now().Sub(p.start)))
 		p.lines = 0
 	}
 }
@@ -109,7 +112,7 @@ func (p *Progress) line(now time.Time, bar bool) string {
 		full := int(frac * width)
 		b.WriteString("[" + strings.Repeat("#", full) + strings.Repeat("-", width-full) + "] ")
 	}
-	fmt.Fprintf(&b, "%d/%d tasks (%.0f%%)", fin, p.total, 100*frac)
+	fmt.Fprintf(&b, "%d/%d %s (%.0f%%)", fin, p.total, p.Unit, 100*frac)
 	el := now.Sub(p.start).Seconds()
 	if p.done > 0 && el > 0 {
 		rate := float64(p.done) / el

@@ -60,6 +60,9 @@ func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fo
 			Scores: r.Scores, MeanPAcc: meanPAcc(r.Details),
 			MeanShots: math.NaN(), ExactDisagreement: math.NaN(),
 		}
+		if g := p.Spec.Models[t.Model].Grid; g != nil && r.Tuning != nil {
+			fold.Chosen = g.Label(r.Tuning.Chosen)
+		}
 		if len(r.Details) > 0 {
 			var shots, differ float64
 			for i, det := range r.Details {
@@ -272,6 +275,65 @@ func Write(p *plan.Plan, dir string, res []TaskResult, info RunInfo, warnings []
 	return outdir.WriteRendered(dir, files)
 }
 
+// TuningRecords are the rows of tuning.csv: every grid point of every
+// tuned model's task, in task order and grid order.
+func TuningRecords(p *plan.Plan, res []TaskResult) []results.TuningRow {
+	var out []results.TuningRow
+	for _, r := range res {
+		t := r.Task
+		g := p.Spec.Models[t.Model].Grid
+		if g == nil || r.Tuning == nil {
+			continue
+		}
+		d := p.Datasets[t.Dataset]
+		sp := d.Splits[t.Split]
+		for i, s := range r.Tuning.Scores {
+			out = append(out, results.TuningRow{
+				Dataset: d.Name, Pipeline: p.Spec.Pipelines[t.Pipeline], Model: p.Spec.Models[t.Model].Name,
+				Repeat: sp.Repeat, Fold: sp.Fold, Point: i, Params: g.Label(i),
+				Metric: p.Spec.Tune.MetricName(), Score: s, Chosen: i == r.Tuning.Chosen,
+			})
+		}
+	}
+	return out
+}
+
+// choices counts, per tuned model and (dataset, pipeline), how often each
+// grid point was chosen, in run order, grid order within a cell.
+func choices(p *plan.Plan, res []TaskResult) []results.ChoiceCount {
+	type cell struct{ d, p, m int }
+	var order []cell
+	counts := map[cell][]int{}
+	for _, r := range res {
+		t := r.Task
+		g := p.Spec.Models[t.Model].Grid
+		if g == nil || r.Tuning == nil {
+			continue
+		}
+		k := cell{t.Dataset, t.Pipeline, t.Model}
+		if counts[k] == nil {
+			counts[k] = make([]int, len(g.Points))
+			order = append(order, k)
+		}
+		counts[k][r.Tuning.Chosen]++
+	}
+	var out []results.ChoiceCount
+	for _, k := range order {
+		g := p.Spec.Models[k.m].Grid
+		of := 0
+		for _, n := range counts[k] {
+			of += n
+		}
+		for i, n := range counts[k] {
+			if n > 0 {
+				out = append(out, results.ChoiceCount{Dataset: p.Datasets[k.d].Name, Pipeline: p.Spec.Pipelines[k.p],
+					Model: p.Spec.Models[k.m].Name, Params: g.Label(i), Count: n, Of: of})
+			}
+		}
+	}
+	return out
+}
+
 // renderedRun is what a run directory holds but its manifest, timings and
 // digest list: the files that are byte-identical for the same spec and
 // seed, rendered, with the timing records and the warnings of the
@@ -291,6 +353,7 @@ func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, er
 	if err != nil {
 		return nil, err
 	}
+	rep.Choices = choices(p, res)
 	var figs []results.Figure
 	if !noFigures {
 		figs, err = report.Figures(rep, preds)
@@ -321,6 +384,10 @@ func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, er
 		}},
 		{Name: "summary.md", Render: func(b *bytes.Buffer) error { return results.WriteReportMarkdown(b, rep) }},
 		{Name: "comparisons.csv", Render: func(b *bytes.Buffer) error { return results.WriteComparisons(b, rep.Comparisons) }},
+	}
+	if p.Spec.Tuned() {
+		tuning := TuningRecords(p, res)
+		files = append(files, outdir.File{Name: "tuning.csv", Render: func(b *bytes.Buffer) error { return results.WriteTuning(b, tuning) }})
 	}
 	files = append(files, outdir.FigureFiles(figs)...)
 	out, err := outdir.Render(files)

@@ -66,6 +66,12 @@ type taskJSON struct {
 	Pred      []int        `json:"pred"`
 	Details   []detailJSON `json:"details"` // null for models without details
 	Constant  bool         `json:"constant_decision,omitempty"`
+	Tuning    *tuningJSON  `json:"tuning,omitempty"`
+}
+
+type tuningJSON struct {
+	Scores []jsonFloat `json:"scores"`
+	Chosen int         `json:"chosen"`
 }
 
 type detailJSON struct {
@@ -118,6 +124,12 @@ func encodeTasks(p *plan.Plan, run string, batch []TaskResult) ([]byte, error) {
 	tasks := make([]taskJSON, len(batch))
 	for k, r := range batch {
 		tj := taskJSON{Index: r.Task.Index, Key: p.Key(r.Task), NTrain: r.NTrain, NTest: r.NTest, ElapsedNS: int64(r.Elapsed), Pred: r.Pred, Constant: r.ConstantDecision}
+		if r.Tuning != nil {
+			tj.Tuning = &tuningJSON{Chosen: r.Tuning.Chosen, Scores: make([]jsonFloat, len(r.Tuning.Scores))}
+			for i, s := range r.Tuning.Scores {
+				tj.Tuning.Scores[i] = jsonFloat(s)
+			}
+		}
 		if r.Details != nil {
 			tj.Details = make([]detailJSON, len(r.Details))
 			for i, d := range r.Details {
@@ -220,6 +232,17 @@ func decodeTask(p *plan.Plan, member []bool, tj taskJSON) (*TaskResult, error) {
 		return bad("negative elapsed time")
 	}
 	r := &TaskResult{Task: t, NTrain: tj.NTrain, NTest: tj.NTest, Pred: tj.Pred, Elapsed: time.Duration(tj.ElapsedNS), ConstantDecision: tj.Constant}
+	if g := p.Spec.Models[t.Model].Grid; g != nil {
+		if tj.Tuning == nil || len(tj.Tuning.Scores) != len(g.Points) || tj.Tuning.Chosen < 0 || tj.Tuning.Chosen >= len(g.Points) {
+			return bad("a tuned model's task without its grid search (%d grid points)", len(g.Points))
+		}
+		r.Tuning = &Tuning{Chosen: tj.Tuning.Chosen, Scores: make([]float64, len(g.Points))}
+		for i, s := range tj.Tuning.Scores {
+			r.Tuning.Scores[i] = float64(s)
+		}
+	} else if tj.Tuning != nil {
+		return bad("grid search results for a model that is not tuned")
+	}
 	if tj.Details != nil {
 		if len(tj.Details) != len(sp.Test) {
 			return bad("%d details for %d test instances", len(tj.Details), len(sp.Test))

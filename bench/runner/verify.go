@@ -47,7 +47,7 @@ type Verified struct {
 
 // recomputed are the files Verify recomputes from predictions.csv and the
 // spec and compares with the run directory's.
-var recomputed = []string{"predictions.csv", "folds.csv", "summary.csv", "comparisons.csv"}
+var recomputed = []string{"predictions.csv", "folds.csv", "summary.csv", "comparisons.csv", "tuning.csv"}
 
 // roundedColumns are the columns computed from values predictions.csv
 // holds rounded to results.FloatDigits decimals (the post-selection
@@ -186,6 +186,25 @@ func (v *Verified) recompute(dir string, m *results.Manifest, opt VerifyOptions,
 		add("predictions.csv", "%v", err)
 		return
 	}
+	if p.Spec.Tuned() {
+		// The grid searches cannot be recomputed from predictions.csv:
+		// they are read from tuning.csv, which folds.csv must agree with.
+		f, err := os.Open(filepath.Join(dir, "tuning.csv"))
+		if err != nil {
+			add("tuning.csv", "missing: the run has tuned models")
+			return
+		}
+		rows, err := results.ReadTuning(f, "tuning.csv")
+		f.Close()
+		if err != nil {
+			add("tuning.csv", "%v", err)
+			return
+		}
+		if err := applyTuning(p, res, rows); err != nil {
+			add("tuning.csv", "%v", err)
+			return
+		}
+	}
 	c, err := renderRun(p, res, true)
 	if err != nil {
 		add("predictions.csv", "the records do not give a report: %v", err)
@@ -243,6 +262,42 @@ func sameDatasets(p *plan.Plan, m *results.Manifest, add func(file, format strin
 		}
 	}
 	return ok
+}
+
+// applyTuning gives the tuned models' task results their grid searches
+// as tuning.csv records them.
+func applyTuning(p *plan.Plan, res []TaskResult, rows []results.TuningRow) error {
+	byKey := map[string][]results.TuningRow{}
+	for _, r := range rows {
+		key := fmt.Sprintf("%s/%s/%s/%d/%d", r.Dataset, r.Pipeline, r.Model, r.Repeat, r.Fold)
+		byKey[key] = append(byKey[key], r)
+	}
+	for i := range res {
+		t := res[i].Task
+		g := p.Spec.Models[t.Model].Grid
+		if g == nil {
+			continue
+		}
+		rs := byKey[p.Key(t)]
+		if len(rs) != len(g.Points) {
+			return fmt.Errorf("task %s has %d grid points, its model %d", p.Key(t), len(rs), len(g.Points))
+		}
+		tu := &Tuning{Scores: make([]float64, len(rs)), Chosen: -1}
+		for k, r := range rs {
+			if r.Point != k || r.Params != g.Label(k) {
+				return fmt.Errorf("task %s: point %d is %q, the grid's is %q", p.Key(t), r.Point, r.Params, g.Label(k))
+			}
+			tu.Scores[k] = r.Score
+			if r.Chosen {
+				tu.Chosen = k
+			}
+		}
+		if tu.Chosen < 0 {
+			return fmt.Errorf("task %s: no grid point is marked chosen", p.Key(t))
+		}
+		res[i].Tuning = tu
+	}
+	return nil
 }
 
 // resultsFromPredictions turns the rows of predictions.csv back into the

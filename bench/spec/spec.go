@@ -24,6 +24,7 @@ type Spec struct {
 	Pipelines []string
 	CV        CV
 	Models    []modelkit.Spec
+	Tune      Tune // the inner protocol of tuned models
 
 	File   string // path the spec was read from, or a description of a built-in spec
 	Dir    string // directory relative CSV paths are resolved against ("" = working directory)
@@ -91,7 +92,13 @@ type rawSpec struct {
 	Dataset   []rawDataset     `toml:"dataset"`
 	Pipelines []string         `toml:"pipelines"`
 	CV        *rawCV           `toml:"cv"`
+	Tune      *rawTune         `toml:"tune"`
 	Model     []map[string]any `toml:"model"`
+}
+
+type rawTune struct {
+	Folds  *int    `toml:"folds"`
+	Metric *string `toml:"metric"`
 }
 
 type rawDataset struct {
@@ -150,7 +157,7 @@ func Parse(file string, data []byte) (*Spec, error) {
 			if strings.HasPrefix(ks, "model.") || ks == "model" {
 				continue // model keys are checked per kind below
 			}
-			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, model; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference; in [[dataset]]: name, classes, features, as, label, drop_invalid, format, index_base)")
+			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, tune, model; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference, train_sizes; in [tune]: folds, metric; in [[dataset]]: name, classes, features, as, label, drop_invalid, format, index_base)")
 		}
 	}
 	if err := checkText(data, bad); err != nil {
@@ -185,6 +192,9 @@ func Parse(file string, data []byte) (*Spec, error) {
 		return nil, err
 	}
 	if s.Models, err = parseModels(raw.Model, s.CV.Reference, file, lines, bad); err != nil {
+		return nil, err
+	}
+	if s.Tune, err = parseTune(raw.Tune, s.Models, bad); err != nil {
 		return nil, err
 	}
 	return s, nil

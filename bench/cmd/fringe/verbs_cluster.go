@@ -91,7 +91,15 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		opt := runner.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery, Grace: grace, Abandon: abandonOf(ctx)}
 		var prog *runner.Progress
 		if !rf.quiet {
-			prog = runner.NewProgress(stderr, isTerminal(stderr), pr.Loaded(), pr.Total())
+			all, err := pl.ShardTasks(shard)
+			if err != nil {
+				return err
+			}
+			total, left := pl.FitsOf(all), pl.FitsOf(todo)
+			prog = runner.NewProgress(stderr, isTerminal(stderr), total-left, total)
+			if total != len(all) {
+				prog.Unit = "model fits"
+			}
 			opt.Progress = prog.Update
 		}
 		stopWatch := watchInterrupt(ctx, stderr, prog, rf.quiet)
