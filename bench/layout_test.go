@@ -40,7 +40,7 @@ var allowed = map[string][]string{
 		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/sim"},
 	"bench/report": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/outdir", "bench/stats",
 		"datasets", "results"},
-	"bench/runner": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/report", "bench/outdir", "bench/stats",
+	"bench/runner": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/report", "bench/outdir", "bench/stats", "bench/cv",
 		"baselines", "datasets", "qkernel", "results"},
 	"bench/export": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/outdir",
 		"datasets", "qkernel", "qkernel/circuit", "results"},

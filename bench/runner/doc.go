@@ -20,6 +20,7 @@
 //   - Progress draws the progress bar or log lines (progress.go).
 //
 // Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
-// bench/report, bench/outdir, bench/stats and results. It must never
+// bench/report, bench/outdir, bench/stats, bench/cv (inner folds of tuned
+// models) and results. It must never
 // import export, assess or cluster.
 package runner

@@ -14,8 +14,8 @@ import (
 // file, a cluster job's output) it writes a plain line at most every
 // LogEvery, so logs stay short. Its methods are safe for concurrent use.
 type Progress struct {
-	w     io.Writer
-	tty   bool
+	w   io.Writer
+	tty bool
 	// Unit names what is counted ("tasks"; "model fits" when tuned models
 	// make a task more than one fit).
 	Unit  string
