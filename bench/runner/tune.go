@@ -85,6 +85,13 @@ func best(scores []float64) int {
 	return b
 }
 
+// svmReuse lets tuned SVMs share kernel rows and warm starts across inner
+// folds and values of C (baselines.TunedSVM); without it every grid point
+// is fitted on every inner fold on its own, exactly as GridSearchCV does
+// (the check against scikit-learn turns it off: a test row whose decision
+// value is within the solver's tolerance of 0 may fall either way).
+var svmReuse = true
+
 // tunedSVM returns the TunedSVM of task t's model when it can run the
 // grid: an SVM, accuracy as the metric, no pipeline steps of its own, and
 // only C and gamma tuned.
@@ -107,7 +114,7 @@ func tunedSVM(p *plan.Plan, t plan.Task, keys []string) (*baselines.TunedSVM, bo
 	if !ok {
 		return nil, false
 	}
-	ts := &baselines.TunedSVM{SVM: *base}
+	ts := &baselines.TunedSVM{SVM: *base, NoReuse: !svmReuse}
 	for _, pt := range ms.Grid.Points {
 		s := pt.Spec.New(0).(*baselines.SVM)
 		if !slices.Contains(ts.Cs, s.C) {

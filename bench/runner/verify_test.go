@@ -3,6 +3,7 @@ package runner
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -11,6 +12,7 @@ import (
 	"testing"
 
 	"fringe/bench/internal/benchtest"
+	"fringe/bench/plan"
 	"fringe/results"
 )
 
@@ -214,5 +216,99 @@ kind = "centroid"
 		if bytes.Contains(data, []byte("iris/std/centroid")) {
 			t.Errorf("%s warns about the centroid model, which discriminates", f)
 		}
+	}
+}
+
+const tunedSpec = `
+name = "tuned"
+seed = 6
+datasets = ["iris", "wine"]
+pipelines = ["std"]
+[cv]
+folds = 3
+repeats = 2
+[tune]
+folds = 4
+metric = "balanced_accuracy"
+[[model]]
+kind = "svm"
+C = [0.5, 5]
+gamma = ["scale", 0.1]
+[[model]]
+kind = "knn"
+k = [1, 7]
+pipelines = ["raw", "l2"]
+[[model]]
+kind = "centroid"
+`
+
+// TestTunedRun: a run with tuned models gives the same files for 1 and 3
+// workers, keeps its grid searches through task files (a resumed run
+// loads them exactly), writes tuning.csv with one chosen point per task
+// (the first best inner score), and verifies.
+func TestTunedRun(t *testing.T) {
+	p := benchtest.Plan(t, "tuned.toml", tunedSpec)
+	var dirs []string
+	var first []TaskResult
+	for _, w := range []int{1, 3} {
+		res, err := Execute(context.Background(), p, Options{Workers: w})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if first == nil {
+			first = res
+		}
+		dir := filepath.Join(t.TempDir(), "run")
+		if err := Write(p, dir, res, RunInfo{Workers: w, NoFigures: true}, nil); err != nil {
+			t.Fatal(err)
+		}
+		dirs = append(dirs, dir)
+	}
+	for _, name := range []string{"predictions.csv", "folds.csv", "summary.csv", "tuning.csv", "summary.md", "summary.tex"} {
+		a, _ := os.ReadFile(filepath.Join(dirs[0], name))
+		b, _ := os.ReadFile(filepath.Join(dirs[1], name))
+		if !bytes.Equal(a, b) || len(a) == 0 {
+			t.Errorf("%s differs between 1 and 3 workers (or is empty)", name)
+		}
+	}
+	for _, r := range first {
+		g := p.Spec.Models[r.Task.Model].Grid
+		if (g == nil) != (r.Tuning == nil) {
+			t.Fatalf("task %s: tuning %v for grid %v", p.Key(r.Task), r.Tuning, g)
+		}
+		if g == nil {
+			continue
+		}
+		if len(r.Tuning.Scores) != len(g.Points) || r.Tuning.Chosen != best(r.Tuning.Scores) {
+			t.Errorf("task %s: scores %v, chosen %d", p.Key(r.Task), r.Tuning.Scores, r.Tuning.Chosen)
+		}
+	}
+	// Through a partial directory and back.
+	pdir := filepath.Join(t.TempDir(), "run.partial")
+	pr, _ := OpenPartial(pdir, p, plan.Shard{}, PartialOptions{})
+	runPartial(t, p, pr)
+	back, err := OpenPartial(pdir, p, plan.Shard{}, PartialOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := back.Results()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range first {
+		if fmt.Sprint(first[i].Tuning) != fmt.Sprint(got[i].Tuning) {
+			t.Fatalf("task %d: tuning %v after the round trip, %v before", i, got[i].Tuning, first[i].Tuning)
+		}
+	}
+	tuning, _ := os.ReadFile(filepath.Join(dirs[0], "tuning.csv"))
+	if n := bytes.Count(tuning, []byte(",1\n")); n != 2*3*2*2 {
+		t.Errorf("tuning.csv marks %d points chosen, want one per tuned task (24)", n)
+	}
+	if !bytes.Contains(tuning, []byte("pipeline=l2 k=7")) || !bytes.Contains(tuning, []byte(",balanced_accuracy,")) {
+		t.Errorf("tuning.csv lacks the pipeline dimension or the metric:\n%s", tuning[:300])
+	}
+	v, err := Verify(dirs[0], VerifyOptions{})
+	if err != nil || len(v.Problems) != 0 {
+		t.Fatalf("verify: %v %v", err, v.Problems)
 	}
 }

@@ -423,6 +423,9 @@ func (kl keyLines) find(path string) int {
 			if cur == table && index == 0 {
 				headerLine = n + 1
 			}
+			if table == "" && cur == key && headerLine == 0 {
+				headerLine = n + 1 // a table named alone ("tune")
+			}
 			continue
 		}
 		eq := strings.Index(t, "=")

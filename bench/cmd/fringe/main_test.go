@@ -73,6 +73,11 @@ func TestBadInput(t *testing.T) {
 		{"overflow.toml", []string{"overflow.csv:32", "overflows"}},
 		{"pca_too_many.toml", []string{"pca_too_many.toml:4", "key pipelines", "pca(9)", "4 features"}},
 		{"pca_fraction.toml", []string{"pca_fraction.toml:4", "pca(1.5)"}},
+		{"grid_type.toml", []string{"grid_type.toml:6", "model[1].C", "value 2", "big"}},
+		{"grid_empty.toml", []string{"grid_empty.toml:6", "model[1].k", "empty list"}},
+		{"grid_value.toml", []string{"grid_value.toml:6", "model[1].C", "value 2 (-1)", "positive"}},
+		{"tune_folds_class.toml", []string{"tune_folds_class.toml:8", "tune.folds", "9 inner folds", "members"}},
+		{"tune_untuned.toml", []string{"tune_untuned.toml:4", "key tune", "no model is tuned"}},
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {
