@@ -17,6 +17,7 @@ import (
 	"fringe/bench/spec"
 	"fringe/bench/stats"
 	"fringe/datasets"
+	"fringe/qkernel"
 	"fringe/qkernel/circuit"
 	"fringe/results"
 )
@@ -410,7 +411,7 @@ func postSelection(row *results.AssessRow, ad *assessDataset, pi int, assessed s
 			slices.SortFunc(q, func(x, y float64) int { return cmp.Compare(y, x) })
 			pacc = append(pacc, det.PAcc)
 			margin = append(margin, q[0]-q[1])
-			shots = append(shots, ShotsForConfidence(det.PAcc, q[0], q[1], Confidence))
+			shots = append(shots, qkernel.ShotsForConfidence(det.PAcc, q[0], q[1], Confidence))
 		}
 	}
 	row.PAcc = pacc

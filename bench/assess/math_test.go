@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"testing"
 
+	"fringe/qkernel"
+
 	"gonum.org/v1/gonum/floats/scalar"
 	"gonum.org/v1/gonum/mat"
 )
@@ -119,19 +121,19 @@ func TestCenteredAlignmentNumpy(t *testing.T) {
 
 // TestShotsForConfidence checks the normal-approximation budget against
 // scipy (the same formula, z = scipy.stats.norm.ppf(0.95)) and the exact
-// trinomial probability ShotsExactTwoClass against scipy.stats.binom sums;
+// trinomial probability qkernel.ShotsExactTwoClass against scipy.stats.binom sums;
 // it then records how close the approximation is to the exact budget.
 func TestShotsForConfidence(t *testing.T) {
 	ref := readAssessRef(t)
 	for _, c := range ref.Shots {
-		got := ShotsForConfidence(c.PAcc, c.Q1, c.Q2, c.Conf)
+		got := qkernel.ShotsForConfidence(c.PAcc, c.Q1, c.Q2, c.Conf)
 		// Same closed form; the normal quantile of gonum and scipy agree
 		// to about 1e-15 relative.
 		if !scalar.EqualWithinAbsOrRel(got, c.NFormula, 1e-12, 1e-12) {
 			t.Errorf("p_acc %v q %v/%v: N = %.12g, scipy %.12g", c.PAcc, c.Q1, c.Q2, got, c.NFormula)
 		}
 		for _, e := range c.Exact {
-			p := ShotsExactTwoClass(e.N, c.PAcc, c.Q1, c.Q2)
+			p := qkernel.ShotsExactTwoClass(e.N, c.PAcc, c.Q1, c.Q2)
 			// Log-space sums of up to N terms against scipy's boost pmf:
 			// agreement to 1e-10 absolute.
 			if !scalar.EqualWithinAbs(p, e.P, 1e-10) {
@@ -148,10 +150,10 @@ func TestShotsForConfidence(t *testing.T) {
 			t.Errorf("p_acc %v q %v/%v: formula %.1f against the exact minimum %d", c.PAcc, c.Q1, c.Q2, got, c.NExactMin)
 		}
 	}
-	if !math.IsInf(ShotsForConfidence(0.7, 0.5, 0.5, 0.95), 1) || !math.IsInf(ShotsForConfidence(0, 0.6, 0.4, 0.95), 1) {
+	if !math.IsInf(qkernel.ShotsForConfidence(0.7, 0.5, 0.5, 0.95), 1) || !math.IsInf(qkernel.ShotsForConfidence(0, 0.6, 0.4, 0.95), 1) {
 		t.Error("a tie or zero acceptance must need infinitely many shots")
 	}
-	if !math.IsNaN(ShotsForConfidence(0.7, 0.6, 0.4, 0.4)) || !math.IsNaN(ShotsForConfidence(1.2, 0.6, 0.4, 0.95)) {
+	if !math.IsNaN(qkernel.ShotsForConfidence(0.7, 0.6, 0.4, 0.4)) || !math.IsNaN(qkernel.ShotsForConfidence(1.2, 0.6, 0.4, 0.95)) {
 		t.Error("bad arguments must give NaN")
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"strconv"
 
 	"fringe/baselines"
 	"fringe/bench/cv"
@@ -34,6 +35,8 @@ type Dataset struct {
 	Name   string // display name
 	Data   *datasets.Dataset
 	Splits []cv.Split // in (repeat, fold) order
+
+	subsamples [][][]int // [split][size]: the learning curve's training rows
 }
 
 // Task is one unit of work: fit one pipeline and one model on one split of
@@ -44,13 +47,21 @@ type Task struct {
 	Pipeline int // index into Spec.Pipelines
 	Model    int // index into Spec.Models
 	Split    int // index into Dataset.Splits
+	// Size is 0 for a task of the run itself; k >= 1 for a task of the
+	// learning curve, fitted on the nested class-stratified subsample of
+	// the training part of size Spec.CV.TrainSizes[k-1] (TrainRows).
+	Size int
 }
 
 // Key returns the task's stable key: dataset/pipeline/model/repeat/fold.
 func (p *Plan) Key(t Task) string {
 	d := p.Datasets[t.Dataset]
 	s := d.Splits[t.Split]
-	return fmt.Sprintf("%s/%s/%s/%d/%d", d.Name, p.Spec.Pipelines[t.Pipeline], p.Spec.Models[t.Model].Name, s.Repeat, s.Fold)
+	key := fmt.Sprintf("%s/%s/%s/%d/%d", d.Name, p.Spec.Pipelines[t.Pipeline], p.Spec.Models[t.Model].Name, s.Repeat, s.Fold)
+	if t.Size > 0 {
+		key += "@" + strconv.FormatFloat(p.Spec.CV.TrainSizes[t.Size-1], 'g', -1, 64)
+	}
+	return key
 }
 
 // New loads the spec's datasets, draws the splits and lists the tasks in
@@ -65,6 +76,9 @@ func New(s *spec.Spec) (*Plan, error) {
 		}
 		p.Datasets = append(p.Datasets, pd)
 	}
+	if err := p.drawSubsamples(); err != nil {
+		return nil, err
+	}
 	if err := p.checkModels(); err != nil {
 		return nil, err
 	}
@@ -77,8 +91,70 @@ func New(s *spec.Spec) (*Plan, error) {
 			}
 		}
 	}
+	// The learning curve's tasks come after the run's, so that a spec
+	// with train_sizes keeps the run's task order and keys.
+	for k := range s.CV.TrainSizes {
+		for di, d := range p.Datasets {
+			for pi := range s.Pipelines {
+				for mi := range s.Models {
+					for si := range d.Splits {
+						p.Tasks = append(p.Tasks, Task{Index: len(p.Tasks), Dataset: di, Pipeline: pi, Model: mi, Split: si, Size: k + 1})
+					}
+				}
+			}
+		}
+	}
 	p.layout = p.newLayout()
 	return p, nil
+}
+
+// drawSubsamples draws the learning curve's nested subsamples of every
+// training part: one Subsampler per (dataset, split), seeded from the run
+// seed, the dataset and the split, so that every pipeline and model sees
+// the same subsamples and a smaller size's rows are among a larger one's.
+func (p *Plan) drawSubsamples() error {
+	sizes := p.Spec.CV.TrainSizes
+	if len(sizes) == 0 {
+		return nil
+	}
+	for _, d := range p.Datasets {
+		d.subsamples = make([][][]int, len(d.Splits))
+		for si, sp := range d.Splits {
+			rng := NewRand(p.Spec.Seed, "learning", d.Name, strconv.Itoa(sp.Repeat), strconv.Itoa(sp.Fold))
+			sub, err := cv.NewSubsampler(sp.Train, d.Data.Y, len(d.Data.Classes), rng)
+			if err != nil {
+				return &input.Error{File: p.Spec.File, Key: "cv.train_sizes", Err: fmt.Errorf("dataset %s: %w", d.Name, err)}
+			}
+			for _, f := range sizes {
+				rows, err := sub.Take(cv.Size{Fraction: f})
+				if err != nil {
+					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("cv.train_sizes"), Key: "cv.train_sizes",
+						Err: fmt.Errorf("dataset %s, repeat %d fold %d: size %g: %w", d.Name, sp.Repeat, sp.Fold, f, err)}
+				}
+				d.subsamples[si] = append(d.subsamples[si], rows)
+			}
+		}
+	}
+	return nil
+}
+
+// TrainRows returns the training part task t is fitted on (indices into
+// its dataset): the split's, or for a learning-curve task its subsample.
+func (p *Plan) TrainRows(t Task) []int {
+	d := p.Datasets[t.Dataset]
+	if t.Size == 0 {
+		return d.Splits[t.Split].Train
+	}
+	return d.subsamples[t.Split][t.Size-1]
+}
+
+// TrainSize is the fraction of the training part task t is fitted on (1
+// for a task of the run itself).
+func (p *Plan) TrainSize(t Task) float64 {
+	if t.Size == 0 {
+		return 1
+	}
+	return p.Spec.CV.TrainSizes[t.Size-1]
 }
 
 func planDataset(s *spec.Spec, ds spec.Dataset) (*Dataset, error) {
@@ -248,10 +324,17 @@ func (p *Plan) checkSizes(mi int, mm, m modelkit.Spec) error {
 		return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(full), Key: full, Err: err}
 	}
 	for _, d := range p.Datasets {
-		for _, sp := range d.Splits {
-			n, what := len(sp.Train), "training instances"
+		for si, sp := range d.Splits {
+			train := sp.Train
+			if len(d.subsamples) > 0 {
+				train = d.subsamples[si][0] // the learning curve's smallest
+			}
+			n, what := len(train), "training instances"
+			if len(d.subsamples) > 0 {
+				what = "training instances of the smallest learning-curve subsample"
+			}
 			if mm.Grid != nil {
-				n, what = p.innerTrainSize(d, sp.Train), "instances of the smallest inner training part"
+				n, what = p.innerTrainSize(d, train), "instances of the smallest inner training part"
 			}
 			if k > n {
 				return bad(fmt.Errorf("%s = %d exceeds the %d %s of dataset %s (repeat %d fold %d): %w",
@@ -261,7 +344,7 @@ func (p *Plan) checkSizes(mi int, mm, m modelkit.Spec) error {
 				continue
 			}
 			seen := map[int]bool{}
-			for _, i := range sp.Train {
+			for _, i := range train {
 				seen[d.Data.Y[i]] = true
 			}
 			if k < len(seen) {
@@ -302,16 +385,24 @@ func (p *Plan) checkInnerFolds() error {
 	}
 	k := p.Spec.Tune.Folds
 	for _, d := range p.Datasets {
-		for _, sp := range d.Splits {
+		for si, sp := range d.Splits {
+			train := sp.Train
+			if len(d.subsamples) > 0 {
+				train = d.subsamples[si][0] // the learning curve's smallest
+			}
 			count := make([]int, len(d.Data.Classes))
-			for _, i := range sp.Train {
+			for _, i := range train {
 				count[d.Data.Y[i]]++
 			}
 			for c, n := range count {
 				if n > 0 && n < k {
+					part := "the training part"
+					if len(d.subsamples) > 0 {
+						part = "the smallest learning-curve subsample of the training part"
+					}
 					return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf("tune.folds"), Key: "tune.folds",
-						Err: fmt.Errorf("%d inner folds, but class %q has %d members in the training part of dataset %s, repeat %d fold %d: lower tune.folds (default 5)",
-							k, d.Data.Classes[c], n, d.Name, sp.Repeat, sp.Fold)}
+						Err: fmt.Errorf("%d inner folds, but class %q has %d members in %s of dataset %s, repeat %d fold %d: lower tune.folds (default 5)",
+							k, d.Data.Classes[c], n, part, d.Name, sp.Repeat, sp.Fold)}
 				}
 			}
 		}

@@ -79,15 +79,26 @@ type Prepared struct {
 // to normalise, a non-finite value after a step, a step that does not fit
 // the data) are input errors naming the dataset, pipeline and split.
 func (p *Plan) Prepare(di, pi, si int) (*Prepared, error) {
-	d := p.Datasets[di]
-	sp := d.Splits[si]
-	ps := p.Spec.Pipelines[pi]
+	return p.prepare(Task{Dataset: di, Pipeline: pi, Split: si})
+}
+
+// PrepareTask is Prepare for the split and training part of task t: a
+// learning-curve task's pipeline is fitted on its subsample only.
+func (p *Plan) PrepareTask(t Task) (*Prepared, error) { return p.prepare(t) }
+
+func (p *Plan) prepare(t Task) (*Prepared, error) {
+	d := p.Datasets[t.Dataset]
+	sp := d.Splits[t.Split]
+	ps := p.Spec.Pipelines[t.Pipeline]
 	pipe, err := datasets.ParsePipeline(ps)
 	if err != nil {
 		return nil, &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
 	}
 	pr := &Prepared{Where: fmt.Sprintf("dataset %s, pipeline %s, repeat %d fold %d", d.Name, ps, sp.Repeat, sp.Fold)}
-	Xtr, ytr, rowsTr := Gather(d.Data, sp.Train)
+	if t.Size > 0 {
+		pr.Where += fmt.Sprintf(", training size %g", p.TrainSize(t))
+	}
+	Xtr, ytr, rowsTr := Gather(d.Data, p.TrainRows(t))
 	Xte, _, rowsTe := Gather(d.Data, sp.Test)
 	Ztr, err := pipe.FitTransformLabeled(Xtr, ytr, rowsTr)
 	if err != nil {

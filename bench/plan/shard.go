@@ -85,12 +85,12 @@ func (p *Plan) Units() [][]int {
 // UnitsOf groups the given task indices by (dataset, pipeline, split), in
 // order of first appearance.
 func (p *Plan) UnitsOf(tasks []int) [][]int {
-	type key struct{ d, p, s int }
+	type key struct{ d, p, s, size int }
 	pos := map[key]int{}
 	var units [][]int
 	for _, i := range tasks {
 		t := p.Tasks[i]
-		k := key{t.Dataset, t.Pipeline, t.Split}
+		k := key{t.Dataset, t.Pipeline, t.Split, t.Size}
 		j, ok := pos[k]
 		if !ok {
 			j = len(units)

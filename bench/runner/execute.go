@@ -359,7 +359,7 @@ func (s *saver) close() error {
 func runUnit(stop, inFlight context.Context, p *plan.Plan, unit []int, started func(), finished func(int, TaskResult), failed func()) error {
 	start := time.Now()
 	t0 := p.Tasks[unit[0]]
-	pr, err := p.Prepare(t0.Dataset, t0.Pipeline, t0.Split)
+	pr, err := p.PrepareTask(t0)
 	if err != nil {
 		return err
 	}
@@ -414,7 +414,7 @@ func runModel(ctx context.Context, p *plan.Plan, t plan.Task, pr *plan.Prepared)
 	if len(fp.pred) != len(sp.Test) {
 		return TaskResult{}, fmt.Errorf("model %s returned %d predictions for %d test instances", ms.Name, len(fp.pred), len(sp.Test))
 	}
-	r := TaskResult{Task: t, NTrain: len(sp.Train), NTest: len(sp.Test), Pred: fp.pred, Details: fp.details, Tuning: tuning}
+	r := TaskResult{Task: t, NTrain: len(p.TrainRows(t)), NTest: len(sp.Test), Pred: fp.pred, Details: fp.details, Tuning: tuning}
 	if singleClass(r.Pred) && len(r.Pred) > 1 {
 		// Only then are the decision values looked at (another pass of
 		// the model over the test part).

@@ -26,6 +26,7 @@ const Version = "0.1.0-dev"
 // Records turns task results into the rows of predictions.csv, folds.csv and
 // timings.csv, in task order.
 func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fold, []results.Timing) {
+	res = runOnly(res)
 	var preds []results.Prediction
 	var folds []results.Fold
 	var times []results.Timing
@@ -97,6 +98,11 @@ func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fo
 // predictions and accuracy gets a Wilson score interval (the other metrics
 // get none). Interval bounds are clipped to [0, 1], the range of every metric.
 func Summarise(p *plan.Plan, res []TaskResult) []results.Summary {
+	return summarise(p, runOnly(res))
+}
+
+// summarise is Summarise of the given results, whatever their Size.
+func summarise(p *plan.Plan, res []TaskResult) []results.Summary {
 	type cellKey struct{ d, p, m int }
 	var order []cellKey
 	cells := map[cellKey][]TaskResult{}
@@ -278,6 +284,7 @@ func Write(p *plan.Plan, dir string, res []TaskResult, info RunInfo, warnings []
 // TuningRecords are the rows of tuning.csv: every grid point of every
 // tuned model's task, in task order and grid order.
 func TuningRecords(p *plan.Plan, res []TaskResult) []results.TuningRow {
+	res = runOnly(res)
 	var out []results.TuningRow
 	for _, r := range res {
 		t := r.Task
@@ -301,6 +308,7 @@ func TuningRecords(p *plan.Plan, res []TaskResult) []results.TuningRow {
 // choices counts, per tuned model and (dataset, pipeline), how often each
 // grid point was chosen, in run order, grid order within a cell.
 func choices(p *plan.Plan, res []TaskResult) []results.ChoiceCount {
+	res = runOnly(res)
 	type cell struct{ d, p, m int }
 	var order []cell
 	counts := map[cell][]int{}
@@ -385,6 +393,19 @@ func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, er
 		{Name: "summary.md", Render: func(b *bytes.Buffer) error { return results.WriteReportMarkdown(b, rep) }},
 		{Name: "comparisons.csv", Render: func(b *bytes.Buffer) error { return results.WriteComparisons(b, rep.Comparisons) }},
 	}
+	if learning := LearningRecords(p, res); learning != nil {
+		files = append(files, outdir.File{Name: "learning.csv", Render: func(b *bytes.Buffer) error { return results.WriteLearning(b, learning) }})
+		if !noFigures {
+			lf, err := results.LearningFigures(learning, 1-report.Alpha, outdir.SafeName)
+			if err != nil {
+				return nil, err
+			}
+			for _, f := range lf {
+				rep.Figures = append(rep.Figures, results.FigureRef{Path: f.Name, Caption: f.Caption})
+			}
+			files = append(files, outdir.FigureFiles(lf)...)
+		}
+	}
 	if p.Spec.Tuned() {
 		tuning := TuningRecords(p, res)
 		files = append(files, outdir.File{Name: "tuning.csv", Render: func(b *bytes.Buffer) error { return results.WriteTuning(b, tuning) }})
@@ -423,6 +444,7 @@ func reportInput(p *plan.Plan, res []TaskResult, preds []results.Prediction, fol
 // model then does not look at the data at all, and its scores are those of
 // a constant, whatever exit status the run has.
 func degenerate(p *plan.Plan, res []TaskResult) [][2]string {
+	res = runOnly(res)
 	type cell struct{ d, p, m int }
 	type state struct {
 		class            int
@@ -476,4 +498,22 @@ func absDir(dir string) string {
 		return abs
 	}
 	return dir
+}
+
+// runOnly keeps the results of the run itself, without the learning
+// curve's tasks (plan.Task.Size > 0), which only learning.csv and its
+// figures show.
+func runOnly(res []TaskResult) []TaskResult {
+	for i, r := range res {
+		if r.Task.Size > 0 {
+			out := append([]TaskResult(nil), res[:i]...)
+			for _, r := range res[i+1:] {
+				if r.Task.Size == 0 {
+					out = append(out, r)
+				}
+			}
+			return out
+		}
+	}
+	return res
 }

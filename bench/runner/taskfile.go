@@ -217,8 +217,8 @@ func decodeTask(p *plan.Plan, member []bool, tj taskJSON) (*TaskResult, error) {
 	d := p.Datasets[t.Dataset]
 	sp := d.Splits[t.Split]
 	nClass := len(d.Data.Classes)
-	if tj.NTrain != len(sp.Train) || tj.NTest != len(sp.Test) {
-		return bad("split sizes %d/%d, the plan has %d/%d", tj.NTrain, tj.NTest, len(sp.Train), len(sp.Test))
+	if tj.NTrain != len(p.TrainRows(t)) || tj.NTest != len(sp.Test) {
+		return bad("split sizes %d/%d, the plan has %d/%d", tj.NTrain, tj.NTest, len(p.TrainRows(t)), len(sp.Test))
 	}
 	if len(tj.Pred) != len(sp.Test) {
 		return bad("%d predictions for %d test instances", len(tj.Pred), len(sp.Test))

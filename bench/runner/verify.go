@@ -64,8 +64,11 @@ var roundedColumns = map[string]bool{"mean_p_acc": true}
 // from the spec the manifest records (datasets reloaded and checked
 // against the manifest's records), turns predictions.csv back into task
 // results and recomputes predictions.csv, folds.csv, summary.csv and
-// comparisons.csv, which must agree with the directory's (byte for byte,
-// but for the columns in roundedColumns). Every finding is a Problem
+// comparisons.csv (and tuning.csv, read back into the grid searches it
+// records), which must agree with the directory's (byte for byte, but for
+// the columns in roundedColumns). learning.csv is checked by its digest
+// only: predictions.csv holds the run's own tasks, not the learning
+// curve's. Every finding is a Problem
 // naming its file. The error is for a directory that cannot be checked at
 // all (no such directory, no readable manifest); it is an input error.
 func Verify(dir string, opt VerifyOptions) (*Verified, error) {
@@ -320,8 +323,11 @@ func resultsFromPredictions(p *plan.Plan, preds []results.Prediction) ([]TaskRes
 		}
 		byTask[i] = append(byTask[i], r)
 	}
-	out := make([]TaskResult, len(p.Tasks))
+	var out []TaskResult
 	for i, t := range p.Tasks {
+		if t.Size > 0 {
+			continue // the learning curve's tasks are in learning.csv only
+		}
 		rows := byTask[i]
 		d := p.Datasets[t.Dataset]
 		sp := d.Splits[t.Split]
@@ -367,7 +373,7 @@ func resultsFromPredictions(p *plan.Plan, preds []results.Prediction) ([]TaskRes
 			}
 		}
 		r.Scores = results.Score(truth, r.Pred, len(d.Data.Classes))
-		out[i] = r
+		out = append(out, r)
 	}
 	return out, nil
 }

@@ -312,3 +312,80 @@ func TestTunedRun(t *testing.T) {
 		t.Fatalf("verify: %v %v", err, v.Problems)
 	}
 }
+
+// TestLearningCurve: learning.csv has one row per cell and size, sizes
+// ascending with the run itself last, whose metrics are summary.csv's; the
+// subsample rows train on the subsample's size; the interference
+// classifier's rows have p_acc and shots; a figure per dataset; and the
+// run's own files are those of the same spec without train_sizes.
+func TestLearningCurve(t *testing.T) {
+	const base = `
+name = "lc"
+seed = 9
+datasets = ["iris", "wine"]
+pipelines = ["std+l2"]
+[cv]
+folds = 4
+%s
+[[model]]
+kind = "interference"
+[[model]]
+kind = "knn"
+k = 3
+`
+	write := func(extra string) string {
+		p := benchtest.Plan(t, "lc.toml", fmt.Sprintf(base, extra))
+		res, err := Execute(context.Background(), p, Options{Workers: 2})
+		if err != nil {
+			t.Fatal(err)
+		}
+		dir := filepath.Join(t.TempDir(), "run")
+		if err := Write(p, dir, res, RunInfo{Workers: 2}, nil); err != nil {
+			t.Fatal(err)
+		}
+		return dir
+	}
+	plain, lc := write(""), write("train_sizes = [0.25, 0.5]")
+	for _, f := range []string{"predictions.csv", "folds.csv", "summary.csv", "comparisons.csv"} {
+		a, _ := os.ReadFile(filepath.Join(plain, f))
+		b, _ := os.ReadFile(filepath.Join(lc, f))
+		if !bytes.Equal(a, b) {
+			t.Errorf("%s differs with train_sizes", f)
+		}
+	}
+	recs := benchtest.ReadCSV(t, filepath.Join(lc, "learning.csv"))
+	sum := benchtest.ReadCSV(t, filepath.Join(lc, "summary.csv"))
+	if len(recs) != 1+2*2*3 {
+		t.Fatalf("%d rows in learning.csv, want 12 and a header", len(recs))
+	}
+	col := func(head []string, name string) int {
+		for i, h := range head {
+			if h == name {
+				return i
+			}
+		}
+		t.Fatalf("no column %s", name)
+		return -1
+	}
+	size, acc, pacc, shots, ntr := col(recs[0], "train_size"), col(recs[0], "accuracy_mean"), col(recs[0], "mean_p_acc"), col(recs[0], "shots_median"), col(recs[0], "n_train")
+	for c := 0; c < 4; c++ {
+		rows := recs[1+3*c : 4+3*c]
+		if rows[0][size] != "0.25" || rows[1][size] != "0.5" || rows[2][size] != "1" {
+			t.Errorf("cell %d: sizes %s %s %s", c, rows[0][size], rows[1][size], rows[2][size])
+		}
+		if rows[2][acc] != sum[1+c][col(sum[0], "accuracy_mean")] {
+			t.Errorf("cell %d: size 1 accuracy %s, summary %s", c, rows[2][acc], sum[1+c][col(sum[0], "accuracy_mean")])
+		}
+		if interference := c%2 == 0; interference != (rows[0][pacc] != "" && rows[0][shots] != "") {
+			t.Errorf("cell %d: p_acc %q shots %q", c, rows[0][pacc], rows[0][shots])
+		}
+		if rows[0][ntr] >= rows[1][ntr] && len(rows[0][ntr]) >= len(rows[1][ntr]) {
+			t.Errorf("cell %d: training rows %s then %s, want growing", c, rows[0][ntr], rows[1][ntr])
+		}
+	}
+	for _, ds := range []string{"iris", "wine"} {
+		if _, err := os.Stat(filepath.Join(lc, "figures", "learning-"+ds+".svg")); err != nil {
+			t.Errorf("no learning figure for %s", ds)
+		}
+	}
+}

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -83,6 +84,10 @@ type CV struct {
 	Test         TestKind // paired test of two models on a dataset (report.go)
 	Alpha        float64  // significance level of the tests; 0 means DefaultTestAlpha
 	Reference    string   // model the others are tested against; "" = best classical baseline per dataset
+	// TrainSizes are the learning curve's training-set sizes, fractions of
+	// each outer training part in (0, 1), ascending; a size of 1 is the
+	// run itself. nil: no learning curve.
+	TrainSizes []float64
 }
 
 type rawSpec struct {
@@ -120,6 +125,7 @@ type rawCV struct {
 	Test         *string  `toml:"test"`
 	Alpha        *float64 `toml:"alpha"`
 	Reference    *string  `toml:"reference"`
+	TrainSizes   []any    `toml:"train_sizes"`
 }
 
 // Load reads and validates a spec file.
@@ -329,6 +335,13 @@ func parseCV(raw *rawCV, bad func(key, format string, args ...any) error) (CV, e
 		if err := parseCVTests(&cv, raw, bad); err != nil {
 			return CV{}, err
 		}
+		if raw.TrainSizes != nil {
+			sizes, err := parseTrainSizes(raw.TrainSizes, bad)
+			if err != nil {
+				return CV{}, err
+			}
+			cv.TrainSizes = sizes
+		}
 	}
 	return cv, nil
 }
@@ -461,3 +474,32 @@ func IsPath(name string) bool {
 // IsFile reports whether the dataset is read from a file: its name is a
 // path (IsPath) or it gives a format.
 func (d Dataset) IsFile() bool { return IsPath(d.Name) || d.Format != "" }
+
+// parseTrainSizes reads cv.train_sizes: fractions in (0, 1] of each outer
+// training part (1 is the run itself and adds nothing), kept ascending and
+// without repeats.
+func parseTrainSizes(raw []any, bad func(key, format string, args ...any) error) ([]float64, error) {
+	if len(raw) == 0 {
+		return nil, bad("cv.train_sizes", "an empty list (give fractions of the training part, e.g. [0.1, 0.25, 0.5, 1.0])")
+	}
+	var out []float64
+	for i, v := range raw {
+		var f float64
+		switch x := v.(type) {
+		case float64:
+			f = x
+		case int64:
+			f = float64(x)
+		default:
+			return nil, bad("cv.train_sizes", "value %d: want a fraction of the training part, got %v", i+1, v)
+		}
+		if !(f > 0 && f <= 1) {
+			return nil, bad("cv.train_sizes", "value %d: %v is not a fraction in (0, 1]", i+1, v)
+		}
+		if f < 1 && !slices.Contains(out, f) {
+			out = append(out, f)
+		}
+	}
+	slices.Sort(out)
+	return out, nil
+}

@@ -78,6 +78,7 @@ func TestBadInput(t *testing.T) {
 		{"grid_value.toml", []string{"grid_value.toml:6", "model[1].C", "value 2 (-1)", "positive"}},
 		{"tune_folds_class.toml", []string{"tune_folds_class.toml:8", "tune.folds", "9 inner folds", "members"}},
 		{"tune_untuned.toml", []string{"tune_untuned.toml:4", "key tune", "no model is tuned"}},
+		{"train_sizes.toml", []string{"train_sizes.toml:5", "cv.train_sizes", "value 1"}},
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {
