@@ -26,6 +26,17 @@ import (
 // none are given.
 var DefaultPipelines = []string{"std+l2", "l2", "std+lift"}
 
+// ReductionPipelines are added to DefaultPipelines for a dataset with more
+// than ReduceAbove features when no pipelines are given: principal
+// components fitted on each training part (pca, datasets), so that the
+// report shows what reducing to 8 and 4 features buys in qubits, gates and
+// accuracy.
+var ReductionPipelines = []string{"std+pca(8)+l2", "std+pca(4)+l2"}
+
+// ReduceAbove is the feature count above which ReductionPipelines are
+// assessed by default.
+const ReduceAbove = 8
+
 // DefaultSubsets are the train_subset sizes of the resource table.
 var DefaultSubsets = []int{8, 16, 32}
 
@@ -39,7 +50,7 @@ const ClassicalPipeline = "std"
 // the class-balanced form of the classifier, p1 = p2/10 and 95% confidence.
 type Options struct {
 	Datasets  []spec.Dataset // nil: every name of datasets.Names()
-	Pipelines []string       // nil: DefaultPipelines
+	Pipelines []string       // nil: DefaultPipelines, with ReductionPipelines for datasets of more than ReduceAbove features
 	Subsets   []int          // nil: DefaultSubsets; sizes below the class count or at least the training size are skipped
 	Seed      uint64
 	Folds     int     // 0: 10; capped per dataset at its smallest class
@@ -47,6 +58,8 @@ type Options struct {
 	Uniform   bool    // assess the published uniform-weight form instead of the class-balanced one
 	Ratio     float64 // p2/p1 of the noise budget; 0: 10
 	Workers   int     // concurrent tasks; 0: all CPUs
+	reduce    bool    // Pipelines were defaulted: add ReductionPipelines where they apply
+
 	// File and Dir locate a spec the datasets came from: File names it in
 	// errors, Dir resolves relative CSV paths ("" = working directory).
 	File, Dir string
@@ -67,6 +80,7 @@ func (o Options) withDefaults() (Options, error) {
 	}
 	if o.Pipelines == nil {
 		o.Pipelines = slices.Clone(DefaultPipelines)
+		o.reduce = true
 	}
 	if o.Subsets == nil {
 		o.Subsets = slices.Clone(DefaultSubsets)
@@ -182,6 +196,7 @@ func mustModel(m map[string]any) modelkit.Spec {
 type assessDataset struct {
 	spec                 spec.Dataset
 	data                 *datasets.Dataset
+	pipelines            []string // assessed for this dataset
 	folds                int
 	quantum, norm, class *plan.Plan
 	qres, nres, cres     []runner.TaskResult
@@ -225,7 +240,7 @@ func Run(ctx context.Context, opt Options) (*results.Assessment, error) {
 			Licence: src.Licence, File: src.File, SHA256: src.SHA256, Synthetic: src.Synthetic, Note: src.Note,
 			Rows: ad.data.Len(), Features: ad.data.Features, Classes: ad.data.Classes, Counts: ad.data.ClassCounts(),
 		})
-		for pi, pipe := range o.Pipelines {
+		for pi, pipe := range ad.pipelines {
 			row, res, w, err := assessRow(o, ad, pi, pipe)
 			if err != nil {
 				return nil, err
@@ -277,9 +292,13 @@ func assessRun(ctx context.Context, o Options, ds spec.Dataset) (*assessDataset,
 		}
 		return &s
 	}
+	pipes := o.Pipelines
+	if o.reduce && data.Dim() > ReduceAbove {
+		pipes = append(slices.Clone(pipes), ReductionPipelines...)
+	}
 	var normPipes []string
 	seen := map[string]bool{}
-	for _, p := range o.Pipelines {
+	for _, p := range pipes {
 		before, lift, err := beforeNorm(p)
 		if err != nil {
 			return nil, &input.Error{Key: "pipelines", Err: err}
@@ -291,14 +310,14 @@ func assessRun(ctx context.Context, o Options, ds spec.Dataset) (*assessDataset,
 			}
 		}
 	}
-	ad := &assessDataset{spec: ds, data: data, folds: folds}
+	ad := &assessDataset{spec: ds, data: data, folds: folds, pipelines: pipes}
 	knn := map[string]any{"kind": "knn", "k": int64(5), "name": assessKNN}
 	plans := []struct {
 		s   *spec.Spec
 		dst **plan.Plan
 		res *[]runner.TaskResult
 	}{
-		{mkSpec(o.Pipelines,
+		{mkSpec(pipes,
 			map[string]any{"kind": "interference", "name": assessUniform},
 			map[string]any{"kind": "interference", "balance": true, "name": assessBalanced}), &ad.quantum, &ad.qres},
 		{mkSpec(normPipes, knn), &ad.norm, &ad.nres},

@@ -314,3 +314,28 @@ func TestBeforeNorm(t *testing.T) {
 		t.Error("then")
 	}
 }
+
+// TestAssessReduction: with the default pipelines, a dataset of more than
+// ReduceAbove features is also assessed after principal components
+// (ReductionPipelines), whose circuits have fewer data qubits; a dataset
+// of at most that many features is not.
+func TestAssessReduction(t *testing.T) {
+	a, err := Run(context.Background(), Options{Datasets: []spec.Dataset{{Name: "wine"}, {Name: "iris"}}, Folds: 3, Repeats: 1, Subsets: []int{}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	data := map[string]int{}
+	for _, r := range a.Rows {
+		data[r.Dataset+"/"+r.Pipeline] = r.Data
+	}
+	// wine: 13 features, padded to 16 amplitudes (4 data qubits); 8 and
+	// 4 components need 3 and 2 (derived by hand: ceil(log2 d)).
+	for key, want := range map[string]int{"wine/std+l2": 4, "wine/std+pca(8)+l2": 3, "wine/std+pca(4)+l2": 2} {
+		if got, ok := data[key]; !ok || got != want {
+			t.Errorf("%s: %d data qubits (row present %v), want %d", key, got, ok, want)
+		}
+	}
+	if _, ok := data["iris/std+pca(4)+l2"]; ok {
+		t.Error("iris (4 features) assessed with a reduction")
+	}
+}
