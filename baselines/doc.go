@@ -25,7 +25,7 @@
 // Options are plain struct fields whose zero values are sensible defaults
 // (KNN: k = 5, Euclidean, uniform; LogReg: C = 1, 10000 iterations, gradient
 // tolerance 1e-4, scikit-learn's default; SVM: C = 1, RBF with gamma
-// "scale", tolerance 1e-3, a 200 MiB kernel cache per two-class task and
+// "inverse-variance" 1/(d·Var(X)), tolerance 1e-3, a 200 MiB kernel cache per two-class task and
 // shrinking on; TunedSVM: 5 inner folds). They are validated at Fit.
 //
 // Conventions shared by all models:

@@ -16,15 +16,16 @@ const (
 	KernelRBF KernelKind = iota
 	// KernelLinear is the inner product <x, x'>.
 	KernelLinear
-	// KernelPoly is (gamma <x, x'> + coef0)^degree. With coef0 < 0 it need
-	// not be positive semidefinite; the solver copes (see SVM).
+	// KernelPoly is (gamma <x, x'> + c)^degree with the offset c (SVM.Coef0,
+	// spec key offset). With c < 0 it need not be positive semidefinite;
+	// the solver copes (see SVM).
 	KernelPoly
 	// KernelInterference is (1 + <x, x'>)/2, the kernel of the interference
 	// classifier (Schuld, Fingerhuth & Petruccione, EPL 119, 60002, 2017).
 	// On unit vectors it equals 1 - ||x - x'||^2/4. On inputs that are not
 	// L2-normalised it is still (1 + <x, x'>)/2: a constant plus half the
 	// linear kernel, hence always positive semidefinite. Gamma, degree and
-	// coef0 do not enter it.
+	// the offset do not enter it.
 	KernelInterference
 )
 
@@ -157,7 +158,8 @@ func powi(x float64, n int) float64 {
 	return r
 }
 
-// scaleGamma returns the "scale" rule 1 / (d * Var(X)), where Var is the
+// scaleGamma returns the "inverse-variance" rule 1 / (d * Var(X)) (called
+// "scale" in scikit-learn's SVC), where Var is the
 // population variance over all entries of the n×d matrix whose rows are
 // pts (scikit-learn's X.var()). A zero variance gives 1.
 func scaleGamma(pts [][]float64) float64 {

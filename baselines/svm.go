@@ -99,9 +99,9 @@ const tau = 1e-12
 type SVM struct {
 	Kernel  KernelKind // zero value: RBF
 	C       float64    // box constraint; 0 means 1
-	Gamma   float64    // RBF and poly; > 0 explicit, 0 means "scale" = 1/(d·Var(X)), population variance over all entries (1 if that is 0)
+	Gamma   float64    // RBF and poly; > 0 explicit, 0 means "inverse-variance" = 1/(d·Var(X)), population variance over all entries (1 if that is 0)
 	Degree  int        // poly; 0 means 3
-	Coef0   float64    // poly
+	Coef0   float64    // poly: the offset c of (gamma <x, x'> + c)^degree (spec key offset)
 	Tol     float64    // stopping tolerance on m(a) − M(a); 0 means 1e-3
 	MaxIter int        // iteration limit per two-class task; 0 means max(10^7, 100·n)
 
@@ -154,11 +154,11 @@ func (s *SVM) resolved(n int) (SVM, error) {
 	case o.C < 0 || math.IsNaN(o.C) || math.IsInf(o.C, 0):
 		return bad("C = %g, want a finite value > 0", o.C)
 	case o.Gamma < 0 || math.IsNaN(o.Gamma) || math.IsInf(o.Gamma, 0):
-		return bad("gamma = %g, want a finite value > 0 (or 0 for scale)", o.Gamma)
+		return bad("gamma = %g, want a finite value > 0 (or 0 for inverse-variance)", o.Gamma)
 	case o.Degree < 0:
 		return bad("degree = %d, want >= 1", o.Degree)
 	case math.IsNaN(o.Coef0) || math.IsInf(o.Coef0, 0):
-		return bad("coef0 = %g, want a finite value", o.Coef0)
+		return bad("offset = %g, want a finite value", o.Coef0)
 	case o.Tol < 0 || math.IsNaN(o.Tol) || math.IsInf(o.Tol, 0):
 		return bad("tol = %g, want a finite value > 0", o.Tol)
 	case o.MaxIter < 0:
@@ -627,7 +627,7 @@ func (s *SVM) SupportIndices() []int {
 }
 
 // GammaUsed returns the kernel width of the last successful Fit: Gamma when
-// it is set, otherwise the "scale" value 1/(d·Var(X_train)). The linear and
+// it is set, otherwise the "inverse-variance" value 1/(d·Var(X_train)). The linear and
 // interference kernels do not use it; it is still reported. It returns 0
 // before a successful Fit.
 func (s *SVM) GammaUsed() float64 {

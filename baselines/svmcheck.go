@@ -34,14 +34,14 @@ import (
 //     scaled to unit spread have squared distances of order d: gamma = 1e10
 //     makes every RBF value between distinct rows underflow to 0 and 1e-10
 //     makes them equal 1 to ten digits. CheckData tests the data at hand.
-//   - degree at most 20 (SVMMaxDegree). (gamma <x, x'> + coef0)^degree
+//   - degree at most 20 (SVMMaxDegree). (gamma <x, x'> + offset)^degree
 //     spreads the kernel values over degree * log10(max|b|/min|b|) decades
 //     for bases b; at degree 20 a factor 3 between bases already spans
 //     nearly ten decades, so the Gram matrix is dominated by a few entries
 //     and, for |b| above 10^15 or below 10^-15, overflows or underflows.
-//   - |coef0| at most 1e6 (SVMMaxAbsCoef0): with inputs of unit scale the
-//     offset then swamps gamma <x, x'> by six decades, and the kernel is a
-//     constant to within a relative 1e-6 per unit of degree.
+//   - |offset| (Coef0) at most 1e6 (SVMMaxAbsCoef0): with inputs of unit
+//     scale the offset then swamps gamma <x, x'> by six decades, and the
+//     kernel is a constant to within a relative 1e-6 per unit of degree.
 //   - tol in [1e-10, 0.5] (SVMMinTol, SVMMaxTol). At the starting point
 //     a = 0 the maximal violation m(a) - M(a) is exactly 2 (all gradients
 //     are -1), so tol >= 2 stops before the first step with a = 0 and a
@@ -70,7 +70,7 @@ const svmCheckRows = 200
 const svmCollapse = 1e-9
 
 // ParamError is an option value a plan-time check rejects. Param is the
-// option's name as a spec writes it ("C", "gamma", "degree", "coef0",
+// option's name as a spec writes it ("C", "gamma", "degree", "offset",
 // "tol"); the error wraps ErrParam.
 type ParamError struct {
 	Model, Param string
@@ -88,8 +88,9 @@ func svmParamErr(param, format string, args ...any) error {
 
 // CheckParams reports an option of s outside the bounds above (see
 // SVMMinC), or invalid as SVM.Fit would report it, as a *ParamError naming
-// the option. Zero values stand for the defaults (C = 1, gamma "scale",
-// degree 3, tol 1e-3) and pass. Degree and coef0 are checked for the
+// the option. Zero values stand for the defaults (C = 1, gamma
+// "inverse-variance", degree 3, tol 1e-3) and pass. Degree and offset
+// (Coef0) are checked for the
 // polynomial kernel only, gamma for the RBF and polynomial kernels.
 func (s *SVM) CheckParams() error {
 	if !s.Kernel.valid() {
@@ -109,7 +110,7 @@ func (s *SVM) CheckParams() error {
 			return svmParamErr("degree", "degree = %d is outside [1, %d]: the kernel values overflow, underflow or are dominated by a few entries", s.Degree, SVMMaxDegree)
 		}
 		if !finite(s.Coef0) || math.Abs(s.Coef0) > SVMMaxAbsCoef0 {
-			return svmParamErr("coef0", "coef0 = %g is outside [-%g, %g]: the offset swamps the inner products and the kernel is a constant", s.Coef0, float64(SVMMaxAbsCoef0), float64(SVMMaxAbsCoef0))
+			return svmParamErr("offset", "offset = %g is outside [-%g, %g]: the offset swamps the inner products and the kernel is a constant", s.Coef0, float64(SVMMaxAbsCoef0), float64(SVMMaxAbsCoef0))
 		}
 	}
 	if t := s.Tol; t != 0 && (!finite(t) || t < SVMMinTol || t > SVMMaxTol) {
@@ -124,7 +125,8 @@ func (s *SVM) CheckParams() error {
 // CheckData runs CheckParams and then evaluates the kernel of s on up to
 // 200 evenly spaced rows of X (rows i*n/200; all rows when n <= 200), which
 // should be the data as the model will see them (after the pipeline; gamma
-// "scale" is computed on all of X, as Fit computes it on a training part).
+// "inverse-variance" is computed on all of X, as Fit computes it on a
+// training part).
 // It returns an error wrapping ErrData when X is empty, has a non-finite
 // entry or has all rows equal, and a *ParamError when
 //
@@ -135,7 +137,7 @@ func (s *SVM) CheckParams() error {
 //     rows lie within a spread s although the quantity it is a function of
 //     does not (the squared distance for RBF, Param "gamma"; the inner
 //     product for the polynomial kernel, Param "degree" when the values
-//     are 0, else "coef0" when |coef0| dominates, else "gamma"), where s is
+//     are 0, else "offset" when |offset| dominates, else "gamma"), where s is
 //     the larger of 1e-9 times the largest kernel value (nine significant
 //     digits) and tol / (C n). The second term is the solver's resolution:
 //     a kernel K = c + E with |E_ij| <= s moves every gradient
@@ -190,7 +192,7 @@ func (s *SVM) CheckData(X *mat.Dense) error {
 			v := k.eval(pts[i], pts[j])
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				if s.Kernel == KernelPoly {
-					return svmParamErr("degree", "the polynomial kernel (gamma = %g, coef0 = %g, degree = %d) is %v on rows %d and %d of the data", k.gamma, k.coef0, k.degree, v, i, j)
+					return svmParamErr("degree", "the polynomial kernel (gamma = %g, offset = %g, degree = %d) is %v on rows %d and %d of the data", k.gamma, k.coef0, k.degree, v, i, j)
 				}
 				return fmt.Errorf("baselines: svm: the %v kernel is %v on rows %d and %d of the data (inner product overflows): %w", s.Kernel, v, i, j, ErrData)
 			}
@@ -232,9 +234,9 @@ func (s *SVM) CheckData(X *mat.Dense) error {
 	case kScale == 0 || kMax == 0:
 		param = "degree"
 	case math.Abs(k.coef0) > k.gamma*max(math.Abs(qMin), math.Abs(qMax)):
-		param = "coef0"
+		param = "offset"
 	}
-	return svmParamErr(param, "the polynomial kernel (gamma = %g, coef0 = %g, degree = %d) takes values in [%.9g, %.9g] on all %d pairs of distinct sampled rows, whose inner products range over [%.3g, %.3g]: the solver (C = %g, tol = %g) cannot tell it from a constant", k.gamma, k.coef0, k.degree, kMin, kMax, pairs, qMin, qMax, c, tol)
+	return svmParamErr(param, "the polynomial kernel (gamma = %g, offset = %g, degree = %d) takes values in [%.9g, %.9g] on all %d pairs of distinct sampled rows, whose inner products range over [%.3g, %.3g]: the solver (C = %g, tol = %g) cannot tell it from a constant", k.gamma, k.coef0, k.degree, kMin, kMax, pairs, qMin, qMax, c, tol)
 }
 
 // sampleRows returns up to m row indices of X, evenly spaced (i*n/m), with

@@ -58,8 +58,8 @@ func TestSVMCheckParams(t *testing.T) {
 	}{
 		{SVM{Kernel: KernelPoly, Degree: 1000000}, "degree"}, // the configuration of issue 15
 		{SVM{Kernel: KernelPoly, Degree: SVMMaxDegree + 1}, "degree"},
-		{SVM{Kernel: KernelPoly, Coef0: 2e6}, "coef0"},
-		{SVM{Kernel: KernelPoly, Coef0: math.NaN()}, "coef0"},
+		{SVM{Kernel: KernelPoly, Coef0: 2e6}, "offset"},
+		{SVM{Kernel: KernelPoly, Coef0: math.NaN()}, "offset"},
 		{SVM{C: 1e9}, "C"},
 		{SVM{C: 1e-9}, "C"},
 		{SVM{C: math.Inf(1)}, "C"},
@@ -96,7 +96,7 @@ func TestSVMCheckData(t *testing.T) {
 	if err := (&SVM{Gamma: 1e-3}).CheckData(X); err != nil {
 		t.Errorf("gamma = 1e-3: %v", err)
 	}
-	checkParamErr(t, (&SVM{Kernel: KernelPoly, Gamma: 1e-6, Coef0: 1e6, Degree: 20}).CheckData(X), "coef0")
+	checkParamErr(t, (&SVM{Kernel: KernelPoly, Gamma: 1e-6, Coef0: 1e6, Degree: 20}).CheckData(X), "offset")
 	// (1e-10 <x, x'>)^20 <= 1e-180 (|<x, x'>| < 20): all near 0, tiny
 	// against each other but not equal; and gamma 1e-10 with degree 20
 	// on rows of size 1e-10 underflows to exactly 0.

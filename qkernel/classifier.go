@@ -317,7 +317,7 @@ func (c *Classifier) makePlan() (*plan, error) {
 	}
 	switch {
 	case p.method == sim.DensityMatrix && p.qubits > sim.MaxDensityQubits:
-		return nil, fmt.Errorf("circuit needs %d qubits; the density-matrix simulator holds at most %d; set train_subset or method = %q: %w",
+		return nil, fmt.Errorf("circuit needs %d qubits; the density-matrix simulator holds at most %d; set train_subset or simulator = %q: %w",
 			p.qubits, sim.MaxDensityQubits, sim.Trajectories.String(), ErrTooLarge)
 	case p.qubits > sim.MaxStateQubits:
 		name := "state-vector"

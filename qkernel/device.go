@@ -31,7 +31,7 @@ func (c *Classifier) validateDevice() error {
 	case !c.Channels.IsZero():
 		return optErr("device", "set together with closed-form channels (global_depolarizing, ancilla_dephasing or readout); the device's calibration is the noise model, set one of them")
 	case c.Method == sim.StateVector:
-		return optErr("method", "the state-vector simulator is noiseless; a device's noise needs \"density\" or \"trajectories\" (or \"auto\")")
+		return optErr("simulator", "the state-vector simulator is noiseless; a device's noise needs \"density-matrix\" or \"trajectories\" (or \"auto\")")
 	case !c.Mitigate.IsZero():
 		return optErr("mitigate", "readout mitigation on a device is not available yet (the readout errors sit on the physical qubits that routing chose for each row)")
 	}

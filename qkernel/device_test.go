@@ -106,7 +106,7 @@ func TestDeviceValidate(t *testing.T) {
 		{"with noise", Classifier{Mode: ModeNoisy, Device: dev, Noise: sim.NoiseModel{Depolarizing: [2]float64{0.01, 0}}}, "device", ErrOption},
 		{"with readout", Classifier{Mode: ModeNoisy, Device: dev, Noise: sim.NoiseModel{Readout: [2]float64{0.01, 0}}}, "device", ErrOption},
 		{"with channels", Classifier{Mode: ModeNoisy, Device: dev, Channels: Channels{GlobalDepolarizing: 0.1}}, "device", ErrOption},
-		{"state vector", Classifier{Mode: ModeNoisy, Device: dev, Method: sim.StateVector}, "method", ErrOption},
+		{"state vector", Classifier{Mode: ModeNoisy, Device: dev, Method: sim.StateVector}, "simulator", ErrOption},
 	} {
 		err := tc.c.Validate()
 		var oe *OptionError

@@ -139,16 +139,17 @@
 // The circuit of M training vectors of d features and C classes has
 // 1 + ceil(log2 M) + max(1, ceil(log2 d)) + ceil(log2 C) qubits (M is the
 // subset size with TrainSubset). ModeCircuit needs at most
-// sim.MaxStateQubits (26). A gate-level ModeNoisy run uses Classifier.Method:
-// sim.Auto picks the density matrix (exact) up to sim.MaxDensityQubits (12)
-// qubits and Monte Carlo trajectories (Classifier.Trajectories, default
+// sim.MaxStateQubits (26). A gate-level ModeNoisy run uses
+// Classifier.Method (spec key simulator): sim.Auto picks the density
+// matrix (exact) up to sim.MaxDensityQubits (12) qubits and Monte Carlo
+// trajectories (Classifier.Trajectories, default
 // sim.DefaultTrajectories) up to 26; sim.DensityMatrix, sim.Trajectories and
 // sim.StateVector (noiseless only) force a simulator. Fit rejects a circuit
 // beyond the chosen simulator's limit with an error wrapping ErrTooLarge
 // that names the qubit count, the limit and the way out, e.g.
 //
 //	circuit needs 16 qubits; the density-matrix simulator holds at most 12;
-//	set train_subset or method = "trajectories"
+//	set train_subset or simulator = "trajectories"
 //
 // The density matrix costs O(4^n) per gate, so TrainSubset is the practical
 // way to run gate-level noise on real data.

@@ -663,11 +663,11 @@ func TestValidate(t *testing.T) {
 		{"channel in exact", Classifier{Channels: Channels{GlobalDepolarizing: 0.1}}, "global_depolarizing", ErrOption},
 		{"dephasing in circuit", Classifier{Mode: ModeCircuit, Channels: Channels{AncillaDephasing: 0.1}}, "ancilla_dephasing", ErrOption},
 		{"channel readout in shots", Classifier{Mode: ModeShots, Shots: 1, Channels: Channels{Readout: [2]float64{0, 0.1}}}, "readout", ErrOption},
-		{"method in exact", Classifier{Method: sim.DensityMatrix}, "method", ErrOption},
+		{"method in exact", Classifier{Method: sim.DensityMatrix}, "simulator", ErrOption},
 		{"trajectories in shots", Classifier{Mode: ModeShots, Shots: 1, Trajectories: 5}, "trajectories", ErrOption},
-		{"unknown method", noisy(Classifier{Method: sim.Method(9)}), "method", ErrOption},
+		{"unknown method", noisy(Classifier{Method: sim.Method(9)}), "simulator", ErrOption},
 		{"negative trajectories", noisy(Classifier{Trajectories: -1}), "trajectories", ErrOption},
-		{"state vector with gate noise", noisy(Classifier{Method: sim.StateVector, Noise: sim.NoiseModel{PhaseDamping: 0.1}}), "method", ErrOption},
+		{"state vector with gate noise", noisy(Classifier{Method: sim.StateVector, Noise: sim.NoiseModel{PhaseDamping: 0.1}}), "simulator", ErrOption},
 		{"trajectories with density", noisy(Classifier{Method: sim.DensityMatrix, Trajectories: 10}), "trajectories", ErrOption},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -714,7 +714,7 @@ func TestDataLimits(t *testing.T) {
 		{"subset too large", Classifier{TrainSubset: 5}, X3, y3, 3, ErrSubset, "train_subset 5 exceeds the 4 training rows"},
 		{"subset below classes", Classifier{TrainSubset: 2}, X3, y3, 3, ErrSubset, "train_subset 2 is below the 3 classes present"},
 		{"density 16 qubits", Classifier{Mode: ModeNoisy, Noise: depol, Method: sim.DensityMatrix}, f.Xtr, f.ytr, 2, ErrTooLarge,
-			`needs 16 qubits; the density-matrix simulator holds at most 12; set train_subset or method = "trajectories"`},
+			`needs 16 qubits; the density-matrix simulator holds at most 12; set train_subset or simulator = "trajectories"`},
 		// 2^20 class labels with two present: 1 + 2 + 1 + 20 = 24 qubits
 		// fits a state vector; 2^23 gives 27.
 		{"state vector 27 qubits", Classifier{Mode: ModeCircuit}, X3, []int{0, 1, 1, 0}, 1 << 23, ErrTooLarge,

@@ -74,7 +74,7 @@ func (ch Channels) IsZero() bool { return ch == Channels{} }
 // by Fit). Key is the option's name as written in experiment specs: "mode",
 // "shots", "train_subset", "depolarizing", "amplitude_damping",
 // "phase_damping", "readout", "global_depolarizing", "ancilla_dephasing",
-// "method", "trajectories" or "device". It unwraps to ErrOption, or to
+// "simulator" (Method), "trajectories" or "device". It unwraps to ErrOption, or to
 // ErrMode for an unknown mode.
 type OptionError struct {
 	Key    string
@@ -121,7 +121,7 @@ func (c *Classifier) gateLevel() bool {
 //   - Method StateVector with gate noise (a state vector is noiseless);
 //   - Trajectories > 0 with Method DensityMatrix or StateVector;
 //   - Device outside ModeNoisy, or with Noise, Channels or Method
-//     StateVector (key "device", or "method");
+//     StateVector (key "device", or "simulator");
 //   - an option set in a mode that ignores it: Shots > 0 in ModeExact or
 //     ModeCircuit; Noise, Channels, Method or Trajectories outside
 //     ModeNoisy;
@@ -149,7 +149,7 @@ func (c *Classifier) Validate() error {
 	case c.Trajectories < 0:
 		return optErr("trajectories", "%d, want a positive number (or 0 for %d)", c.Trajectories, sim.DefaultTrajectories)
 	case c.Method > sim.Trajectories:
-		return optErr("method", "unknown simulator %v", c.Method)
+		return optErr("simulator", "unknown simulator %v", c.Method)
 	}
 	for _, p := range []struct {
 		key string
@@ -186,7 +186,7 @@ func (c *Classifier) Validate() error {
 			{"readout", c.Noise.Readout != [2]float64{} || c.Channels.Readout != [2]float64{}},
 			{"global_depolarizing", c.Channels.GlobalDepolarizing != 0},
 			{"ancilla_dephasing", c.Channels.AncillaDephasing != 0},
-			{"method", c.Method != sim.Auto},
+			{"simulator", c.Method != sim.Auto},
 			{"trajectories", c.Trajectories != 0},
 		} {
 			if o.set {
@@ -197,10 +197,10 @@ func (c *Classifier) Validate() error {
 	}
 	// ModeNoisy.
 	if c.Method == sim.StateVector && hasGateNoise(c.Noise) {
-		return optErr("method", "the state-vector simulator is noiseless; use \"density\" or \"trajectories\" (or \"auto\") with gate noise")
+		return optErr("simulator", "the state-vector simulator is noiseless; use \"density-matrix\" or \"trajectories\" (or \"auto\") with gate noise")
 	}
 	if c.Trajectories > 0 && (c.Method == sim.DensityMatrix || c.Method == sim.StateVector) {
-		return optErr("trajectories", "set with method %q, which ignores it", c.Method)
+		return optErr("trajectories", "set with simulator %q, which ignores it", c.Method)
 	}
 	return nil
 }

@@ -294,7 +294,7 @@ func kernelCases() []layoutCase {
 		var curves []KernelCurve
 		c := layoutCase{want: []string{"Kernel profile on unit vectors", "interference κ = 1 − d²/4"}}
 		for i, ds := range datasetNames(n, true) {
-			curves = append(curves, KernelCurve{Label: fmt.Sprintf("RBF γ = scale on %s (%.3g)", ds, 0.5+0.1*float64(i)), Gamma: 0.5 + 0.1*float64(i)})
+			curves = append(curves, KernelCurve{Label: fmt.Sprintf("RBF γ = 1/(d·Var) on %s (%.3g)", ds, 0.5+0.1*float64(i)), Gamma: 0.5 + 0.1*float64(i)})
 			c.want = append(c.want, curves[i].Label)
 		}
 		p, err := KernelProfile(curves)

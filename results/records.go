@@ -40,7 +40,7 @@ type Fold struct {
 	MeanShots                float64 // mean accepted shots per prediction; NaN without finite shots
 	ExactDisagreement        float64 // share of decisions that differ from exact mode; NaN unless the model runs in another mode
 	// Chosen is the grid point a tuned model chose on this fold's
-	// training part ("C=1 gamma=scale"); "" for an untuned model. The
+	// training part ("C=1 gamma=0.1"); "" for an untuned model. The
 	// column is written only when some row has one.
 	Chosen string
 }

@@ -13,7 +13,7 @@ type TuningRow struct {
 	Dataset, Pipeline, Model string
 	Repeat, Fold             int
 	Point                    int    // 0-based index in grid order
-	Params                   string // the point's tuned values, "C=1 gamma=scale"
+	Params                   string // the point's tuned values, "C=1 gamma=0.1"
 	Metric                   string // the tuning metric
 	Score                    float64
 	Chosen                   bool
@@ -80,8 +80,8 @@ type ChoiceCount struct {
 	Count, Of                int
 }
 
-// choiceText writes the choices of one cell: "C=1 gamma=scale 7/10,
-// C=10 gamma=scale 3/10".
+// choiceText writes the choices of one cell: "C=1 gamma=0.1 7/10,
+// C=10 gamma=0.1 3/10".
 func choiceText(cs []ChoiceCount) string {
 	out := ""
 	for i, c := range cs {

@@ -18,6 +18,17 @@
 // that a counts model can check its file against every test instance.
 // Models that report per-prediction details implement Detailer.
 //
+// Keys and values say what they do (vocab.go): an SVM's gamma =
+// "inverse-variance" is 1/(d·Var(X)) of the training part and offset is
+// the constant c of the polynomial kernel (gamma <x, x'> + c)^degree; a
+// k-NN's vote is "equal" (one vote per neighbour) or "inverse-distance"
+// (1/d); an interference model's simulator is "auto", "density-matrix",
+// "trajectories" or "state-vector". The old spellings (gamma "scale",
+// coef0, weights "uniform" | "distance", method "statevector" |
+// "density") are read for this release: Parse maps them to the new ones
+// (Respellings), lists each in Spec.Deprecated, and Respell gives a
+// table's current spelling for the spec's canonical form.
+//
 // Imports: bench/input (errors), bench/cv, and the model packages
 // (baselines, qkernel and its sub-packages, datasets). It must never
 // import the other bench packages (spec, plan, runner, report, export,

@@ -15,13 +15,19 @@ import (
 func FuzzModelParams(f *testing.F) {
 	for _, kind := range []string{"knn", "svm", "logreg", "centroid", "interference", "forest", ""} {
 		for _, key := range []string{"k", "metric", "weights", "kernel", "C", "gamma", "degree", "coef0", "tol", "max_iter",
-			"mode", "balance", "shots", "train_subset", "noise", "method", "trajectories", "name", "kind", "bogus"} {
+			"mode", "balance", "shots", "train_subset", "noise", "method", "trajectories", "name", "kind", "bogus",
+			"vote", "offset", "simulator"} {
 			f.Add(kind, key, int64(3), 0.5, "rbf", true, uint8(0))
 		}
 	}
 	f.Add("interference", "noise", int64(1), 0.01, "depolarizing", false, uint8(4))
 	f.Add("interference", "noise", int64(1), 0.01, "readout", false, uint8(5))
 	f.Add("svm", "gamma", int64(1), math.Inf(1), "scale", false, uint8(1))
+	f.Add("svm", "gamma", int64(1), 0.5, "inverse-variance", false, uint8(2))
+	f.Add("knn", "weights", int64(1), 0.5, "distance", false, uint8(2))
+	f.Add("knn", "vote", int64(1), 0.5, "inverse-distance", false, uint8(6))
+	f.Add("interference", "method", int64(1), 0.5, "density", false, uint8(2))
+	f.Add("interference", "simulator", int64(1), 0.5, "statevector", false, uint8(2))
 	f.Add("knn", "k", int64(-1<<40), math.NaN(), "", false, uint8(2))
 	f.Fuzz(func(t *testing.T, kind, key string, i int64, x float64, s string, b bool, which uint8) {
 		defer benchtest.Watchdog("modelkit.Parse")()

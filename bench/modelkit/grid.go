@@ -15,6 +15,10 @@ import (
 // first (outermost), then the keys in sorted order (Go's sort.Strings,
 // which puts "C" before "gamma" as scikit-learn's ParameterGrid does), the
 // first dimension varying slowest, each dimension's values as written.
+// Keys sort in their current spelling (offset, vote, simulator: see
+// Respellings), whichever spelling the spec used; where a name differs
+// from scikit-learn's (offset, its coef0) the order can differ from
+// ParameterGrid's.
 // Ties of the inner score go to the first point in this order.
 type Grid struct {
 	Keys   []string // tuned dimensions in grid order ("pipeline" for the model's pipelines)
@@ -61,7 +65,28 @@ var listKeys = map[string]map[string]bool{"command": {"run": true}}
 // strings) adds the pipeline dimension; with one entry it only adds steps.
 // Errors about one key are a *KeyError naming the key (for a noise key,
 // "noise.<key>"); the spec parser adds the file, line and table.
+//
+// Old spellings of renamed keys and values (Respellings) are read as the
+// new ones and listed in Spec.Deprecated; an error about such a key names
+// it as written. Both spellings of one key in a table are an error.
 func Parse(m map[string]any) (Spec, error) {
+	m, written, deprecated, err := respell(m)
+	if err != nil {
+		return Spec{}, err
+	}
+	ms, err := parseTable(m)
+	if ke, ok := err.(*KeyError); ok && written[ke.Key] != "" {
+		err = &KeyError{Key: written[ke.Key], Err: ke.Err}
+	}
+	if err != nil {
+		return ms, err
+	}
+	ms.Deprecated = deprecated
+	return ms, nil
+}
+
+// parseTable is Parse of a table in the current spellings.
+func parseTable(m map[string]any) (Spec, error) {
 	kind, _ := m["kind"].(string)
 	base := map[string]any{}
 	var keys []string

@@ -29,7 +29,7 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 	q.Balance = p.boolean("balance", false)
 	q.Shots = p.integer("shots", 0)
 	q.TrainSubset = p.integer("train_subset", 0)
-	methodS := p.str("method", "auto")
+	simS := p.str("simulator", sim.Auto.String())
 	q.Trajectories = p.integer("trajectories", 0)
 	noise := p.table("noise")
 	if p.err != nil {
@@ -41,9 +41,9 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 		return q, "", noise
 	}
 	q.Mode = mode
-	q.Method, err = sim.ParseMethod(methodS)
+	q.Method, err = sim.ParseMethod(simS)
 	if err != nil {
-		p.fail("method", "unknown method %q (want auto, statevector, density or trajectories)", methodS)
+		p.fail("simulator", "unknown simulator %q (want auto, density-matrix, trajectories or state-vector)", simS)
 		return q, "", noise
 	}
 	if p.has("shots") && q.Shots <= 0 {

@@ -11,6 +11,7 @@ import (
 
 	"fringe/baselines"
 	"fringe/qkernel"
+	"fringe/qkernel/sim"
 )
 
 // builder makes a fresh, unfitted model for one task. seed is the task's
@@ -34,6 +35,11 @@ type Spec struct {
 	// model's training part ("" for none): the model's own `pipelines`
 	// key with one value.
 	Pipeline string
+	// Deprecated lists the old spellings the table used (see Respellings),
+	// in the order of Respellings; the spec parser turns them into located
+	// warnings.
+	Deprecated []Deprecation
+
 	// Grid is non-nil for a tuned model: a key given a list of values (or
 	// `pipelines` with several), searched by inner cross-validation on
 	// every outer training part (see Grid). The Spec's other fields are
@@ -82,9 +88,9 @@ type Info struct {
 // Infos lists the model kinds a spec may use.
 func Infos() []Info {
 	return []Info{
-		{"interference", "mode, balance, shots, train_subset, noise, method, trajectories", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise); balance = true weights the index register by 1/(C*M_k)"},
-		{"knn", "k, metric, weights, search", "k-nearest neighbours; metric euclidean|manhattan|cosine; weights uniform|distance; search auto|brute|tree (the exact k-d tree gives brute force's neighbours and ties); ties: nearer then lower index, vote ties to the first class"},
-		{"svm", "kernel, C, gamma, degree, coef0, tol, cache_mib, shrinking", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005) and shrinking (LIBSVM); kernel linear|rbf|poly|interference; gamma a number or \"scale\"; kernel rows cached in cache_mib MiB per class pair (default 200); one-vs-one; absurd parameters are refused"},
+		{"interference", "mode, balance, shots, train_subset, noise, simulator, trajectories", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise); balance = true weights the index register by 1/(C*M_k); simulator of gate-level noise auto | density-matrix | trajectories | state-vector: auto takes the exact density matrix up to " + strconv.Itoa(sim.MaxDensityQubits) + " qubits and trajectories above, trajectories averages `trajectories` Monte Carlo state vectors with random noise jumps (default " + strconv.Itoa(sim.DefaultTrajectories) + "), state-vector is noiseless"},
+		{"knn", "k, metric, vote, search", "k-nearest neighbours; metric euclidean|manhattan|cosine; vote equal (one vote per neighbour) | inverse-distance (a neighbour at distance d votes 1/d; neighbours at distance 0, if any, alone vote); search auto|brute|tree (the exact k-d tree gives brute force's neighbours and ties); ties: nearer then lower index, vote ties to the first class"},
+		{"svm", "kernel, C, gamma, degree, offset, tol, cache_mib, shrinking", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005) and shrinking (LIBSVM); kernel linear <x,x'> | rbf exp(-gamma*|x-x'|^2) | poly (gamma*<x,x'> + offset)^degree | interference (1 + <x,x'>)/2; gamma a number or \"inverse-variance\" (the default) = 1/(d*Var(X)), d features and Var the population variance of all entries of the training part (1 when that is 0); degree default 3, offset default 0; kernel rows cached in cache_mib MiB per class pair (default 200); one-vs-one; absurd parameters are refused"},
 		{"logreg", "C, max_iter", "logistic regression in scikit-learn's default forms: binary (one weight vector) for two classes, multinomial for three or more; L2 penalty 1/C (intercept unpenalised); L-BFGS"},
 		{"centroid", "", "nearest centroid (Euclidean), a sanity baseline"},
 		{"command", "run, timeout", "your own classifier as a program, run once per task: run = [\"python3\", \"mine.py\"] gets the paths of TRAIN (row,label,<features>), TEST (row,<features>) and OUT, and writes OUT as row,predicted[,prob_<class>...]; FRINGE_SEED holds the task's seed; timeout in seconds"},
@@ -158,12 +164,13 @@ func parseInterferenceModel(p *params, ms *Spec) string {
 	return label
 }
 
-// parseKNN reads the keys of a k-NN model: k, metric and weights.
+// parseKNN reads the keys of a k-NN model: k, metric, vote (VoteEqual or
+// VoteInverseDistance) and search.
 func parseKNN(p *params, ms *Spec) string {
 	var label string
 	k := p.integer("k", 5)
 	metricS := p.str("metric", "euclidean")
-	weightsS := p.str("weights", "uniform")
+	voteS := p.str("vote", VoteEqual)
 	searchS := p.str("search", "auto")
 	search, err := baselines.ParseKNNMethod(searchS)
 	if err != nil {
@@ -176,18 +183,18 @@ func parseKNN(p *params, ms *Spec) string {
 	if err != nil {
 		p.fail("metric", "%v", err)
 	}
-	weights, err := baselines.ParseWeighting(weightsS)
+	weights, voteS, err := parseVote(voteS)
 	if err != nil {
-		p.fail("weights", "%v", err)
+		p.fail("vote", "%v", err)
 	}
 	label = fmt.Sprintf("knn-k%d", k)
 	if metricS != "euclidean" {
 		label += "-" + metricS
 	}
-	if weightsS != "uniform" {
-		label += "-" + weightsS
+	if voteS != VoteEqual {
+		label += "-" + voteS
 	}
-	ms.Params["k"], ms.Params["metric"], ms.Params["weights"], ms.Params["search"] = k, metricS, weightsS, searchS
+	ms.Params["k"], ms.Params["metric"], ms.Params["vote"], ms.Params["search"] = k, metricS, voteS, searchS
 	ms.build = func(uint64) baselines.Model {
 		return &baselines.KNN{K: k, Metric: metric, Weights: weights, Method: search}
 	}
@@ -195,19 +202,20 @@ func parseKNN(p *params, ms *Spec) string {
 }
 
 // parseSVM reads the keys of an SVM: kernel, C, gamma (a positive number
-// or "scale"), degree, coef0 and tol.
+// or GammaInverseVariance), degree, offset (the constant c of the
+// polynomial kernel (gamma <x, x'> + c)^degree) and tol.
 func parseSVM(p *params, ms *Spec) string {
 	var label string
 	kernelS := p.str("kernel", "rbf")
 	c := p.number("C", 1)
 	gamma := 0.0
-	gammaS := "scale"
+	gammaS := GammaInverseVariance
 	if p.has("gamma") {
 		switch v := p.m["gamma"].(type) {
 		case string:
 			p.used["gamma"] = true
-			if v != "scale" {
-				p.fail("gamma", "gamma is a positive number or \"scale\", got %q", v)
+			if v != GammaInverseVariance {
+				p.fail("gamma", "gamma is a positive number or %q (1/(d*Var(X)) on the training part), got %q", GammaInverseVariance, v)
 			}
 		default:
 			gamma = p.number("gamma", 0)
@@ -218,7 +226,7 @@ func parseSVM(p *params, ms *Spec) string {
 		}
 	}
 	degree := p.integer("degree", 3)
-	coef0 := p.number("coef0", 0)
+	offset := p.number("offset", 0)
 	tol := p.number("tol", 1e-3)
 	kernel, err := baselines.ParseKernel(kernelS)
 	if err != nil {
@@ -235,7 +243,7 @@ func parseSVM(p *params, ms *Spec) string {
 	}
 	label = fmt.Sprintf("svm-%s-C%s", kernelS, fmtNum(c))
 	if kernelS == "rbf" || kernelS == "poly" {
-		if gammaS != "scale" {
+		if gammaS != GammaInverseVariance {
 			label += "-g" + gammaS
 		}
 	}
@@ -251,9 +259,9 @@ func parseSVM(p *params, ms *Spec) string {
 		label += "-noshrink"
 	}
 	ms.Params["kernel"], ms.Params["C"], ms.Params["gamma"] = kernelS, c, gammaS
-	ms.Params["degree"], ms.Params["coef0"], ms.Params["tol"] = degree, coef0, tol
+	ms.Params["degree"], ms.Params["offset"], ms.Params["tol"] = degree, offset, tol
 	ms.Params["cache_mib"], ms.Params["shrinking"] = cacheMiB, shrinking
-	proto := baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: coef0, Tol: tol, CacheMiB: cacheMiB, NoShrinking: !shrinking}
+	proto := baselines.SVM{Kernel: kernel, C: c, Gamma: gamma, Degree: degree, Coef0: offset, Tol: tol, CacheMiB: cacheMiB, NoShrinking: !shrinking}
 	if p.err == nil {
 		// Absurd parameters (poly degree 10^6, gamma 10^12, ...) are
 		// refused here, with the bound and its reason (baselines).

@@ -462,7 +462,7 @@ func (p *Plan) checkKernels() error {
 						key := fmt.Sprintf("model[%d]", mi+1)
 						var pe *baselines.ParamError
 						if errors.As(err, &pe) {
-							key += "." + pe.Param
+							key += "." + mm.WrittenKey(pe.Param)
 						}
 						return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
 							Err: fmt.Errorf("model %s on dataset %s, pipeline %s: %w", m.Name, d.Name, ps, err)}

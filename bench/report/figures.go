@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"fringe/bench/input"
+	"fringe/bench/modelkit"
 	"fringe/bench/outdir"
 	"fringe/bench/plan"
 	"fringe/datasets"
@@ -348,7 +349,7 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 			continue
 		}
 		g, _ := m.Params["gamma"].(string)
-		if g != "scale" {
+		if g != modelkit.GammaInverseVariance {
 			v, err := strconv.ParseFloat(g, 64)
 			if err != nil {
 				continue // not a gamma this figure can draw
@@ -360,10 +361,10 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 			}
 			continue
 		}
-		if seen["scale"] {
+		if seen[modelkit.GammaInverseVariance] {
 			continue
 		}
-		seen["scale"] = true
+		seen[modelkit.GammaInverseVariance] = true
 		pl, err := datasets.ParsePipeline(pipe)
 		if err != nil {
 			return results.Figure{}, &input.Error{File: p.Spec.File, Key: "pipelines", Err: err}
@@ -374,7 +375,7 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 				return results.Figure{}, fmt.Errorf("report: kernel figure: dataset %s: %w", d.Name, err)
 			}
 			gamma := ScaleGamma(Z)
-			curves = append(curves, results.KernelCurve{Label: fmt.Sprintf("RBF γ = scale on %s (%.3g)", d.Name, gamma), Gamma: gamma})
+			curves = append(curves, results.KernelCurve{Label: fmt.Sprintf("RBF γ = 1/(d·Var) on %s (%.3g)", d.Name, gamma), Gamma: gamma})
 		}
 	}
 	pl, err := results.KernelProfile(curves)
@@ -383,11 +384,11 @@ func KernelFigure(p *plan.Plan) (results.Figure, error) {
 	}
 	return results.Figure{
 		Name: "figures/kernel-profile", Plot: pl, Width: 6 * vg.Inch, Height: 4 * vg.Inch,
-		Caption: "Interference kernel 1 − d²/4 against the Euclidean distance d of normalised vectors, beside the RBF kernels of the spec (gamma = scale on pipeline " + pipe + ")",
+		Caption: "Interference kernel 1 − d²/4 against the Euclidean distance d of normalised vectors, beside the RBF kernels of the spec (gamma = inverse-variance, 1/(d·Var(X)), on pipeline " + pipe + ")",
 	}, nil
 }
 
-// ScaleGamma is the "scale" rule 1/(d·Var(X)) of baselines.SVM:
+// ScaleGamma is the "inverse-variance" rule 1/(d·Var(X)) of baselines.SVM:
 // population variance over all entries of X, 1 when it is 0.
 func ScaleGamma(X *mat.Dense) float64 {
 	n, d := X.Dims()

@@ -493,7 +493,7 @@ folds = 3
 kind = "interference"
 mode = "noisy"
 train_subset = 16
-method = "density"
+simulator = "density-matrix"
 noise = { depolarizing = [0.001, 0.01] }
 `)
 	for _, c := range []struct {

@@ -39,7 +39,7 @@ name = "knn-k5"
 kind = "svm"
 kernel = "rbf"
 C = 1.0
-gamma = "scale"
+gamma = "inverse-variance"
 name = "svm-rbf"
 [[model]]
 kind = "svm"

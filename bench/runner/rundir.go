@@ -208,7 +208,8 @@ type RunInfo struct {
 	NoFigures bool
 }
 
-// Manifest builds the run's manifest.
+// Manifest builds the run's manifest. Its warnings are the spec's own
+// (p.Spec.Warnings: old spellings, located) followed by warnings.
 func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 	m := &results.Manifest{
 		Tool: "fringe", Version: Version, GoVersion: runtime.Version(),
@@ -220,7 +221,7 @@ func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 		End:     info.End.UTC().Format(time.RFC3339Nano),
 		Seconds: info.End.Sub(info.Start).Seconds(),
 		GOOS:    runtime.GOOS, GOARCH: runtime.GOARCH, CPUs: runtime.NumCPU(),
-		Warnings: warnings,
+		Warnings: append(append([]string(nil), p.Spec.Warnings...), warnings...),
 	}
 	if m.Warnings == nil {
 		m.Warnings = []string{}

@@ -33,7 +33,7 @@ folds = 5
 [[model]]
 kind = "svm"
 C = [0.1, 1, 10, 100]
-gamma = ["scale", 0.01, 0.1, 1]
+gamma = ["inverse-variance", 0.01, 0.1, 1]
 [[model]]
 kind = "knn"
 k = [1, 3, 5, 9, 15]

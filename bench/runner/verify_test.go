@@ -233,7 +233,7 @@ metric = "balanced_accuracy"
 [[model]]
 kind = "svm"
 C = [0.5, 5]
-gamma = ["scale", 0.1]
+gamma = ["inverse-variance", 0.1]
 [[model]]
 kind = "knn"
 k = [1, 7]

@@ -9,12 +9,17 @@ import (
 	"strconv"
 
 	"github.com/BurntSushi/toml"
+
+	"fringe/bench/modelkit"
 )
 
 // CanonicalSHA returns the hex SHA-256 of a spec's canonical form: the
 // decoded TOML document written with sorted keys and exact numbers, so
 // that comments, blank lines, key order and quoting do not change it while
-// any value does. Text that does not decode is hashed as it is.
+// any value does. Model tables are written in the current spellings of
+// their keys and values (modelkit.Respell), so that a spec that still uses
+// an old spelling has the same identity as one that uses the new. Text
+// that does not decode is hashed as it is.
 func CanonicalSHA(src []byte) string { return canonicalSpecSHA(src, false) }
 
 // CanonicalSHAWithoutSeed is CanonicalSHA of the spec without its
@@ -33,6 +38,18 @@ func canonicalSpecSHA(src []byte, dropSeed bool) string {
 	} else {
 		if dropSeed {
 			delete(doc, "seed")
+		}
+		switch models := doc["model"].(type) {
+		case []map[string]any:
+			for i, m := range models {
+				models[i] = modelkit.Respell(m)
+			}
+		case []any: // model = [{...}, ...]
+			for i, m := range models {
+				if t, ok := m.(map[string]any); ok {
+					models[i] = modelkit.Respell(t)
+				}
+			}
 		}
 		b.WriteString("toml\x00")
 		canonical(&b, doc)

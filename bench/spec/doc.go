@@ -4,12 +4,15 @@
 // validated without loading data: unknown keys, types, ranges, names that
 // appear twice, pipeline syntax, and every [[model]] table through package
 // modelkit. Errors are *input.Error values naming the file, the 1-based
-// line and the key at fault.
+// line and the key at fault. Old spellings of renamed model keys and
+// values (modelkit.Respellings) are read as the new ones, with one located
+// warning per key in Spec.Warnings.
 //
 // It also holds the spec's canonical form (CanonicalSHA: the decoded
-// document written with sorted keys and exact numbers, so that comments,
-// blank lines and key order do not change a run's identity while any value
-// does) and the built-in demo spec.
+// document written with sorted keys and exact numbers, and model tables in
+// the current spellings, so that comments, blank lines, key order and old
+// spellings do not change a run's identity while any value does) and the
+// built-in demo spec.
 //
 // Names: no string of a spec may hold invalid UTF-8 or control characters,
 // and the names the user chooses (spec, dataset display names, model

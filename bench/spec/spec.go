@@ -27,6 +27,12 @@ type Spec struct {
 	Models    []modelkit.Spec
 	Tune      Tune // the inner protocol of tuned models
 
+	// Warnings are located, one-line notes about the spec that do not
+	// stop it ("file:line: key model[2].weights: ... is deprecated ...;
+	// write vote = ..."), in the order of the spec's tables. The command
+	// prints them on standard error and the run's manifest records them.
+	Warnings []string
+
 	File   string // path the spec was read from, or a description of a built-in spec
 	Dir    string // directory relative CSV paths are resolved against ("" = working directory)
 	Source []byte // the spec text as read
@@ -197,7 +203,7 @@ func Parse(file string, data []byte) (*Spec, error) {
 	if s.CV, err = parseCV(raw.CV, bad); err != nil {
 		return nil, err
 	}
-	if s.Models, err = parseModels(raw.Model, s.CV.Reference, file, lines, bad); err != nil {
+	if s.Models, err = parseModels(raw.Model, s.CV.Reference, file, lines, bad, &s.Warnings); err != nil {
 		return nil, err
 	}
 	if s.Tune, err = parseTune(raw.Tune, s.Models, bad); err != nil {
@@ -347,9 +353,10 @@ func parseCV(raw *rawCV, bad func(key, format string, args ...any) error) (CV, e
 }
 
 // parseModels validates every [[model]] table through modelkit.Parse,
-// locating its errors, refuses repeated model names and checks the
+// locating its errors and adding a located warning to warns for every old
+// spelling a table used, refuses repeated model names and checks the
 // reference model of the tests (ref, "" for none) against the names.
-func parseModels(tables []map[string]any, ref, file string, lines keyLines, bad func(key, format string, args ...any) error) ([]modelkit.Spec, error) {
+func parseModels(tables []map[string]any, ref, file string, lines keyLines, bad func(key, format string, args ...any) error, warns *[]string) ([]modelkit.Spec, error) {
 	var out []modelkit.Spec
 	if len(tables) == 0 {
 		return nil, bad("model", "no models (add [[model]] tables)")
@@ -367,6 +374,15 @@ func parseModels(tables []map[string]any, ref, file string, lines keyLines, bad 
 			return nil, &input.Error{File: file, Line: lines.find(key), Key: key, Err: err}
 		}
 		ms.Line = lines.find(key)
+		var deps []*input.Error
+		for _, d := range ms.Deprecated {
+			k := key + "." + d.Key
+			deps = append(deps, &input.Error{File: file, Line: lines.find(k), Key: k, Err: errors.New(d.Message)})
+		}
+		slices.SortStableFunc(deps, func(a, b *input.Error) int { return a.Line - b.Line })
+		for _, d := range deps {
+			*warns = append(*warns, d.Error())
+		}
 		if msg := checkName("model name", ms.Name); msg != "" {
 			return nil, bad(key+".name", "%s", msg)
 		}

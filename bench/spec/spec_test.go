@@ -36,7 +36,7 @@ balance = true
 kind = "knn"
 k = 3
 metric = "cosine"
-weights = "distance"
+vote = "inverse-distance"
 [[model]]
 kind = "svm"
 kernel = "poly"
@@ -67,7 +67,7 @@ kind = "centroid"
 	for _, m := range s.Models {
 		names = append(names, m.Name)
 	}
-	want := "interference-balanced,knn-k3-cosine-distance,svm-poly-C0.5-g0.25-d2,lr-strong,centroid"
+	want := "interference-balanced,knn-k3-cosine-inverse-distance,svm-poly-C0.5-g0.25-d2,lr-strong,centroid"
 	if strings.Join(names, ",") != want {
 		t.Errorf("model names = %s, want %s", strings.Join(names, ","), want)
 	}

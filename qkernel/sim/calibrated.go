@@ -180,7 +180,7 @@ func SimulateNoisy(ctx context.Context, nc *NoisyCircuit, opt Options) (Result, 
 			return Result{}, err
 		}
 	case StateVector:
-		return Result{}, fmt.Errorf("sim: a noisy circuit needs the density or trajectories method, not the state vector")
+		return Result{}, fmt.Errorf("sim: a noisy circuit needs the density-matrix or trajectories simulator, not the state vector")
 	default:
 		return Result{}, fmt.Errorf("sim: unknown method %d", int(m))
 	}

@@ -431,7 +431,7 @@ func TestSimulateNoisyErrors(t *testing.T) {
 		{"readout len", &NoisyCircuit{NQubits: 2, Readout: [][2]float64{{0, 0}}}, Options{}, "1 readout pairs"},
 		{"final len", &NoisyCircuit{NQubits: 2, Final: []*Channel{a}}, Options{}, "1 final channels"},
 		{"model", ok, Options{Noise: NoiseModel{PhaseDamping: 0.1}}, "Options.Noise must be zero"},
-		{"state vector", ok, Options{Method: StateVector}, "density or trajectories"},
+		{"state vector", ok, Options{Method: StateVector}, "density-matrix or trajectories"},
 		{"no rng", ok, Options{Method: Trajectories}, "needs Options.Rng"},
 		{"bad qubit", &NoisyCircuit{NQubits: 1, Ops: []TimedOp{{Op: circuit.Op{Gate: circuit.H, Target: 4}}}}, Options{}, "outside"},
 	} {

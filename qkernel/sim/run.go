@@ -28,9 +28,10 @@ const (
 	Trajectories
 )
 
-var methodNames = [...]string{Auto: "auto", StateVector: "statevector", DensityMatrix: "density", Trajectories: "trajectories"}
+var methodNames = [...]string{Auto: "auto", StateVector: "state-vector", DensityMatrix: "density-matrix", Trajectories: "trajectories"}
 
-// String returns "auto", "statevector", "density" or "trajectories".
+// String returns "auto", "state-vector", "density-matrix" or
+// "trajectories": the values of an interference model's simulator key.
 func (m Method) String() string {
 	if int(m) < len(methodNames) {
 		return methodNames[m]
@@ -45,7 +46,7 @@ func ParseMethod(s string) (Method, error) {
 			return Method(m), nil
 		}
 	}
-	return 0, fmt.Errorf("sim: unknown method %q (want auto, statevector, density or trajectories)", s)
+	return 0, fmt.Errorf("sim: unknown simulator %q (want auto, state-vector, density-matrix or trajectories)", s)
 }
 
 // DefaultTrajectories is the number of trajectories when
@@ -107,7 +108,7 @@ func chooseMethod(n int, opt Options) (Method, error) {
 	switch m {
 	case StateVector:
 		if noisy {
-			return 0, fmt.Errorf("sim: the state-vector method is noiseless; use the density or trajectories method for gate noise")
+			return 0, fmt.Errorf("sim: the state-vector simulator is noiseless; use the density-matrix or trajectories simulator for gate noise")
 		}
 		if n > MaxStateQubits {
 			return 0, fmt.Errorf("sim: %d qubits exceed the state-vector limit of %d qubits; no method simulates this circuit (use fewer training vectors or features)", n, MaxStateQubits)

@@ -102,7 +102,7 @@ func TestMethodLimits(t *testing.T) {
 		{MaxDensityQubits + 1, Options{Noise: noisy, Trajectories: 2, Rng: rng}, nil, Trajectories},
 		{MaxDensityQubits + 1, Options{Noise: noisy, Method: DensityMatrix}, []string{"density-matrix limit of 12", "trajectories"}, 0},
 		{MaxDensityQubits + 1, Options{Noise: noisy}, []string{"needs Options.Rng"}, 0},
-		{5, Options{Noise: noisy, Method: StateVector}, []string{"noiseless", "density or trajectories"}, 0},
+		{5, Options{Noise: noisy, Method: StateVector}, []string{"noiseless", "density-matrix or trajectories"}, 0},
 		{MaxStateQubits + 1, Options{}, []string{"state-vector limit of 26"}, 0},
 		{MaxStateQubits + 1, Options{Noise: noisy, Rng: rng}, []string{"limit of 26"}, 0},
 		{5, Options{Method: Method(9)}, []string{"unknown method"}, 0},
@@ -129,7 +129,7 @@ func TestMethodLimits(t *testing.T) {
 	if _, err := Simulate(ctx, smallCircuit(4), Options{}); err == nil {
 		t.Error("cancelled context: no error")
 	}
-	for _, s := range []string{"auto", "statevector", "density", "trajectories"} {
+	for _, s := range []string{"auto", "state-vector", "density-matrix", "trajectories"} {
 		m, err := ParseMethod(s)
 		if err != nil || m.String() != s {
 			t.Errorf("ParseMethod(%q) = %v, %v", s, m, err)

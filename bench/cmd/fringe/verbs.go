@@ -113,11 +113,24 @@ func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) != 1 {
 		return usagef("run takes exactly one spec file (see 'fringe run -h')")
 	}
-	s, err := spec.Load(pos[0])
+	s, err := loadSpec(pos[0], stderr)
 	if err != nil {
 		return err
 	}
 	return execute(ctx, s, rf, append([]string{"fringe", "run"}, args...), stdout, stderr)
+}
+
+// loadSpec reads and validates a spec file and prints its warnings (old
+// spellings of model keys, located) on stderr, one line each.
+func loadSpec(path string, stderr io.Writer) (*spec.Spec, error) {
+	s, err := spec.Load(path)
+	if err != nil {
+		return nil, err
+	}
+	for _, w := range s.Warnings {
+		fmt.Fprintln(stderr, "fringe: warning:", w)
+	}
+	return s, nil
 }
 
 func helpOK(err error) error {

@@ -63,7 +63,7 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	}
 	dir := filepath.Join("fringe-out", "assess")
 	if len(pos) == 1 {
-		s, err := spec.Load(pos[0])
+		s, err := loadSpec(pos[0], stderr)
 		if err != nil {
 			return err
 		}

@@ -35,7 +35,7 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 		return helpOK(err)
 	}
 	if *exportDir != "" {
-		return runExport(ctx, fs, pos, *exportDir, *model, *workers, stdout)
+		return runExport(ctx, fs, pos, *exportDir, *model, *workers, stdout, stderr)
 	}
 	if *model != "" {
 		return usagef("-model applies with -export only")
@@ -80,7 +80,7 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 // runExport is `fringe circuit -export DIR SPEC.toml`: the circuits of
 // every test instance of the spec, for a device or simulator of the
 // user's choice, whose counts a model of kind counts reads back.
-func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model string, workers int, stdout io.Writer) error {
+func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model string, workers int, stdout, stderr io.Writer) error {
 	var clash []string
 	fs.Visit(func(f *flag.Flag) {
 		switch f.Name {
@@ -98,7 +98,7 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 	if workers < 1 {
 		return usagef("-workers must be at least 1, got %d", workers)
 	}
-	s, err := spec.Load(pos[0])
+	s, err := loadSpec(pos[0], stderr)
 	if err != nil {
 		return err
 	}

@@ -277,7 +277,7 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if o.Shards == 0 {
 		return usagef("slurm needs -shards N (see 'fringe slurm -h')")
 	}
-	s, err := spec.Load(pos[0])
+	s, err := loadSpec(pos[0], stderr)
 	if err != nil {
 		return err
 	}
