@@ -38,6 +38,26 @@ func sentence(s string) string {
 	return s + "."
 }
 
+// upperFirst capitalises the first letter of s when it is a lower-case
+// ASCII letter: a generated caption fragment that follows an author's
+// caption (a sentence of its own) instead of "Run NAME: ".
+func upperFirst(s string) string {
+	if s != "" && s[0] >= 'a' && s[0] <= 'z' {
+		return string(s[0]-'a'+'A') + s[1:]
+	}
+	return s
+}
+
+// authorOpening returns the start of a caption of a table other than the
+// summary: the author's text and a space, or "Run NAME: "; the generated
+// text that follows is capitalised after the author's sentence.
+func (p Protocol) authorOpening(author, rest string) string {
+	if author != "" {
+		return TeXEscape(sentence(author)) + " " + upperFirst(rest)
+	}
+	return TeXEscape(fmt.Sprintf("Run %s: ", p.Run)) + rest
+}
+
 // opening returns the start of a caption: the author's text, or "Run
 // NAME (cross-validation; seed N)" and a colon; esc escapes plain text.
 func (p Protocol) opening(esc func(string) string, author string) string {
@@ -169,12 +189,12 @@ func ReportTeX(r *Report) (*TeXReport, error) {
 	if v.opt.Layout == LayoutLandscape {
 		body.WriteString("\\end{landscape}\n")
 	}
-	if groups := choiceGroups(r.Choices); len(groups) > 0 {
+	if groups := choiceGroups(v.choices()); len(groups) > 0 {
 		// One line per tuned model and cell: what it chose and how often.
 		body.WriteString("\n\\paragraph{Tuned models.} The grid point each tuned model chose by inner cross-validation, and on how many outer folds.\n\\begin{itemize}\n")
 		for _, g := range groups {
 			c := g[0]
-			parts := []string{c.Model, c.Dataset, c.Pipeline, choiceText(g)}
+			parts := []string{v.label(c.Model), c.Dataset, c.Pipeline, choiceText(g)}
 			for i, p := range parts {
 				txt, ws := TeXText(p)
 				parts[i] = txt
@@ -252,12 +272,26 @@ func StandaloneTeX(r *Report, input string) string {
 // alphaTeX is "$\alpha = 0.05$".
 func (p Protocol) alphaTeX() string { return fmt.Sprintf("$\\alpha = %s$", fmtAlpha(p.Alpha)) }
 
-// selectionNote says that marks compare with models not shown.
+// selectionNote says that marks compare with models and pipelines not
+// shown (the best cell of a dataset may be one of them).
 func (v *reportView) selectionNote() string {
-	if v.omitted == 0 {
-		return ""
+	plural := func(n int, w string) string {
+		if n == 1 {
+			return fmt.Sprintf("%d %s", n, w)
+		}
+		return fmt.Sprintf("%d %ss", n, w)
 	}
-	return fmt.Sprintf(" Marks compare with all %d models of the run; %d are shown.", len(v.r.runModels()), len(v.models))
+	nm, np := len(v.r.runModels()), len(pipelinesInOrder(v.r.Summary))
+	switch {
+	case v.omitted > 0 && v.omittedPipes > 0:
+		return fmt.Sprintf(" Marks compare with all %s and %s of the run; %s and %s are shown.",
+			plural(nm, "model"), plural(np, "pipeline"), plural(len(v.models), "model"), plural(len(v.pipelines), "pipeline"))
+	case v.omitted > 0:
+		return fmt.Sprintf(" Marks compare with all %d models of the run; %d are shown.", nm, len(v.models))
+	case v.omittedPipes > 0:
+		return fmt.Sprintf(" Marks compare with all %d pipelines of the run; %d are shown.", np, len(v.pipelines))
+	}
+	return ""
 }
 
 // key returns the label key of a kind of table.
@@ -448,15 +482,9 @@ func (v *reportView) modeTables(warn *[]string) []*ttable {
 			ref = "Table~\\ref{" + v.summaryRef + "}"
 		}
 		p := v.r.Protocol
-		open := v.opt.Modes.Caption
 		var b strings.Builder
-		if open != "" {
-			b.WriteString(TeXEscape(sentence(open)) + " ")
-		} else {
-			b.WriteString(TeXEscape(fmt.Sprintf("Run %s: ", p.Run)))
-		}
-		b.WriteString(TeXEscape(fmt.Sprintf("%s of the interference classifier in each mode beside the classical baselines, one column per dataset; mean with %s confidence interval; bold and ",
-			metricWordsMD[j], percent(p.Level))))
+		b.WriteString(p.authorOpening(v.opt.Modes.Caption, TeXEscape(fmt.Sprintf("%s of the interference classifier in each mode beside the classical baselines, one column per dataset; mean with %s confidence interval; bold and ",
+			metricWordsMD[j], percent(p.Level)))))
 		b.WriteString(daggerTeX + " as in " + ref + ".")
 		b.WriteString(part)
 		return b.String()
@@ -671,17 +699,12 @@ func (v *reportView) testTable1(cs []Comparison, j int, key, first string, level
 	if first != "" {
 		fmt.Fprintf(&cap, "%s; paired tests as in Table~\\ref{%s}.", metricHeadsTeX[j], first)
 	} else {
-		if v.opt.Tests.Caption != "" {
-			cap.WriteString(TeXEscape(sentence(v.opt.Tests.Caption)) + " ")
-		} else {
-			cap.WriteString(TeXEscape(fmt.Sprintf("Run %s: ", p.Run)))
-		}
 		what := metricWordsMD[j]
+		against := "its reference"
 		if sameRef {
-			cap.WriteString(TeXEscape(fmt.Sprintf("paired tests of each model against %s on the same pipeline, on %s. ", v.label(cs[0].RefModel), what)))
-		} else {
-			cap.WriteString(TeXEscape(fmt.Sprintf("paired tests of each model against its reference, on %s. ", what)))
+			against = v.label(cs[0].RefModel) + " on the same pipeline"
 		}
+		cap.WriteString(p.authorOpening(v.opt.Tests.Caption, TeXEscape(fmt.Sprintf("paired tests of each model against %s, on %s. ", against, what))))
 		cap.WriteString("$\\Delta$" + TeXEscape(": the model's mean minus the reference's"))
 		if level < 2 {
 			cap.WriteString(TeXEscape(", with its interval"))
@@ -857,13 +880,8 @@ func containsStr(list []string, s string) bool {
 func (v *reportView) rankTable1(ts []RankTable, key string, warn *[]string) *ttable {
 	p := v.r.Protocol
 	var cap strings.Builder
-	if v.opt.Ranks.Caption != "" {
-		cap.WriteString(TeXEscape(sentence(v.opt.Ranks.Caption)) + " ")
-	} else {
-		cap.WriteString(TeXEscape(fmt.Sprintf("Run %s: ", p.Run)))
-	}
-	cap.WriteString(TeXEscape(fmt.Sprintf("average ranks across datasets on the mean %s of each cell (1 = best; ties share the average rank), the Friedman test in Demšar's form and tie-corrected, the Iman–Davenport F from the tie-corrected statistic (the decision, at ",
-		strings.ReplaceAll(ts[0].Metric, "_", " "))))
+	cap.WriteString(p.authorOpening(v.opt.Ranks.Caption, TeXEscape(fmt.Sprintf("average ranks across datasets on the mean %s of each cell (1 = best; ties share the average rank), the Friedman test in Demšar's form and tie-corrected, the Iman–Davenport F from the tie-corrected statistic (the decision, at ",
+		strings.ReplaceAll(ts[0].Metric, "_", " ")))))
 	cap.WriteString(p.alphaTeX() + TeXEscape(") with its degrees of freedom k − 1 and (k − 1)(N − 1), and the Nemenyi critical difference (Demšar, JMLR 7:1, 2006)."))
 	caption := cap.String()
 	t := &ttable{key: key, caption: caption, captionEm: texTextWidth(stripTeX(caption)) / texPt}
@@ -950,12 +968,7 @@ func (v *reportView) wilcoxonTable1(level int, warn *[]string) *ttable {
 	p := v.r.Protocol
 	key := v.key(v.opt.Wilcoxon, "-wilcoxon")
 	var cap strings.Builder
-	if v.opt.Wilcoxon.Caption != "" {
-		cap.WriteString(TeXEscape(sentence(v.opt.Wilcoxon.Caption)) + " ")
-	} else {
-		cap.WriteString(TeXEscape(fmt.Sprintf("Run %s: ", p.Run)))
-	}
-	cap.WriteString(TeXEscape(fmt.Sprintf("Wilcoxon signed-ranks tests of the interference classifier against each baseline across datasets, on mean %s (Demšar, JMLR 7:1, 2006); N differences ranked", strings.ReplaceAll(ps[0].Metric, "_", " "))))
+	cap.WriteString(p.authorOpening(v.opt.Wilcoxon.Caption, TeXEscape(fmt.Sprintf("Wilcoxon signed-ranks tests of the interference classifier against each baseline across datasets, on mean %s (Demšar, JMLR 7:1, 2006); N differences ranked", strings.ReplaceAll(ps[0].Metric, "_", " ")))))
 	if level < 2 {
 		cap.WriteString(TeXEscape(", R+ and R− the rank sums where the first model is better and worse"))
 	}

@@ -272,7 +272,7 @@ func TestReportOptionsSelectOrderAndLabel(t *testing.T) {
 	tex := mustTeX(t, r)
 	s := tex.Text
 	for _, want := range []string{`\label{tab:main-1}`, `\caption{Main results. Mean with 95\%`, "QC, 1024 shots", "k-NN", "Macro $F_1$",
-		"Marks compare with all 6 models of the run; 2 are shown."} {
+		"Marks compare with all 6 models and 3 pipelines of the run; 2 models and 1 pipeline are shown."} {
 		if !strings.Contains(s, want) {
 			t.Errorf("summary.tex lacks %q", want)
 		}

@@ -17,8 +17,9 @@ type reportView struct {
 	metrics   []int    // indices into MetricNames
 	tests     []int    // metrics whose paired tests get a table
 	rows      []int    // indices into r.Summary, in display order
-	// omitted is the number of the run's models that are not shown.
-	omitted int
+	// omitted is the number of the run's models that are not shown,
+	// omittedPipes that of its pipelines.
+	omitted, omittedPipes int
 	// explicitModels: the author gave the model order.
 	explicitModels bool
 	// summaryRef is the label of the first summary table, once written.
@@ -67,6 +68,7 @@ func newView(r *Report) (*reportView, error) {
 	v.pipelines = orAll(o.Pipelines, allPipes)
 	v.models = orAll(o.Models, runModels)
 	v.omitted = len(runModels) - len(v.models)
+	v.omittedPipes = len(allPipes) - len(v.pipelines)
 	names := orAll(o.Metrics, MetricNames)
 	for _, n := range names {
 		v.metrics = append(v.metrics, slices.Index(MetricNames, n))
@@ -207,6 +209,18 @@ func (v *reportView) pairs() []PairAcross {
 	for _, p := range v.r.Pairs {
 		if (p.Pipeline == "" || v.hasPipeline(p.Pipeline)) && v.hasModel(p.A) && v.hasModel(p.B) {
 			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// choices returns the tuned models' choices of the selected cells, in
+// the report's order.
+func (v *reportView) choices() []ChoiceCount {
+	var out []ChoiceCount
+	for _, c := range v.r.Choices {
+		if v.hasDataset(c.Dataset) && v.hasPipeline(c.Pipeline) && v.hasModel(c.Model) {
+			out = append(out, c)
 		}
 	}
 	return out

@@ -663,7 +663,7 @@ func (t *ttable) emit(b *strings.Builder, opt ReportOptions, warn *[]string) TeX
 	l := t.fit(width, 0)
 	info := TeXTableInfo{Label: t.key, Width: l.total, Room: width, Rows: len(t.rows), Parts: 1, Wraps: l.wraps, Sep: l.sep}
 	if !l.fits {
-		*warn = append(*warn, fmt.Sprintf("table %s is about %.0f pt wide, wider than the %.0f pt available: shorten the model labels (report labels), show fewer columns, or choose the wide or landscape layout", t.key, l.total, width))
+		*warn = append(*warn, fmt.Sprintf("table %s is about %.0f pt wide, wider than the %.0f pt available: shorten the model labels (the `label` key of a [[model]]), show fewer metrics, datasets or models ([report] metrics, datasets, models), or choose the layout wide or landscape ([report] layout)", t.key, l.total, width))
 	}
 	capW := width
 	tooLong := t.height(l, capW) > 0.97*height || (opt.LongTable > 0 && len(t.rows) > opt.LongTable)

@@ -10,6 +10,10 @@
 // "counts", outcomes measured on a device for exported circuits, decided
 // by post-selection as shot mode does (counts.go).
 //
+// Every kind also takes `label`, the model's display label in summary.tex
+// and summary.md (Spec.Label; a tuned model keeps it); the CSV files, task
+// keys and figures keep Spec.Name.
+//
 // Parse validates one table and returns a Spec; errors about one key are a
 // *KeyError so that the spec parser can add file and line. Spec.New builds
 // the model of one task from the task's seed. Models that need to know

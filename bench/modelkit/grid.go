@@ -87,12 +87,34 @@ func Parse(m map[string]any) (Spec, error) {
 
 // parseTable is Parse of a table in the current spellings.
 func parseTable(m map[string]any) (Spec, error) {
+	ms, err := parse(m)
+	if err != nil {
+		return ms, err
+	}
+	if v, ok := m["label"]; ok {
+		l, isStr := v.(string)
+		if !isStr {
+			return Spec{}, keyErr("label", "want a string (the model's label in summary.tex and summary.md), got %v", v)
+		}
+		if strings.TrimSpace(l) == "" {
+			return Spec{}, keyErr("label", "an empty label (leave the key out to show the model's name)")
+		}
+		ms.Label = l
+	}
+	return ms, nil
+}
+
+// parse is Parse without the model's label.
+func parse(m map[string]any) (Spec, error) {
 	kind, _ := m["kind"].(string)
 	base := map[string]any{}
 	var keys []string
 	lists := map[string][]any{}
 	var pipes []string
 	for k, v := range m {
+		if k == "label" {
+			continue // read by Parse; not a parameter
+		}
 		if k == "pipelines" {
 			arr, ok := v.([]any)
 			if !ok {

@@ -27,6 +27,11 @@ type Spec struct {
 	Params map[string]any // the validated parameters, by key
 	Line   int            // line of the table in the spec file (0 if unknown); set by the spec parser
 
+	// Label is the table's optional `label`: what summary.tex and
+	// summary.md show for the model ("QC, 512 shots"); "" shows Name. The
+	// CSV files, task keys and figures keep Name.
+	Label string
+
 	// Interference is the configuration of an interference model (nil for
 	// other kinds); its Seed is set per task by New.
 	Interference *qkernel.Classifier

@@ -68,6 +68,11 @@ func (p *Plan) Key(t Task) string {
 // order (dataset, pipeline, model, repeat, fold). All errors are input
 // errors (errors.Is(err, input.ErrBad)).
 func New(s *spec.Spec) (*Plan, error) {
+	// The tables' options name models, pipelines and datasets: a spec
+	// built in code has not been through spec.Parse's check.
+	if err := s.CheckReport(); err != nil {
+		return nil, err
+	}
 	p := &Plan{Spec: s}
 	for _, ds := range s.Datasets {
 		pd, err := planDataset(s, ds)

@@ -362,6 +362,7 @@ func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, er
 	if err != nil {
 		return nil, err
 	}
+	rep.Options = p.Spec.ReportOptions()
 	rep.Choices = choices(p, res)
 	var figs []results.Figure
 	if !noFigures {
@@ -420,10 +421,16 @@ func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, er
 	return &renderedRun{files: out, times: times, warnings: warns}, nil
 }
 
-// Report analyses a finished run: report.Analyse on its records.
+// Report analyses a finished run: report.Analyse on its records, with
+// the spec's report options (spec.Spec.ReportOptions).
 func Report(p *plan.Plan, res []TaskResult) (*results.Report, error) {
 	preds, folds, _ := Records(p, res)
-	return report.Analyse(reportInput(p, res, preds, folds))
+	rep, err := report.Analyse(reportInput(p, res, preds, folds))
+	if err != nil {
+		return nil, err
+	}
+	rep.Options = p.Spec.ReportOptions()
+	return rep, nil
 }
 
 func reportInput(p *plan.Plan, res []TaskResult, preds []results.Prediction, folds []results.Fold) report.Input {

@@ -8,6 +8,18 @@
 // values (modelkit.Respellings) are read as the new ones, with one located
 // warning per key in Spec.Warnings.
 //
+// The [report] table (report.go) chooses what the tables of summary.tex
+// and summary.md show: models, pipelines, datasets and metrics and their
+// order, the layout (page, column, wide, landscape), the split rule, the
+// tables left out, the row count before a table runs over pages, the
+// decimals, the room of a table in pt, and a caption and \label key per
+// kind of table; a model's display label is the `label` key of its
+// [[model]] table. Spec.ReportOptions returns them as
+// results.ReportOptions (the zero value without [report] and labels: the
+// tables every run had before the table existed). Parse checks every
+// name [report] lists against the spec's own (CheckReport; plan.New
+// checks again), so a wrong name is a located error before anything runs.
+//
 // It also holds the spec's canonical form (CanonicalSHA: the decoded
 // document written with sorted keys and exact numbers, and model tables in
 // the current spellings, so that comments, blank lines, key order and old

@@ -28,6 +28,7 @@ func FuzzParseSpec(f *testing.F) {
 	f.Add([]byte("name = \"cluster-test\"\nseed = 3\ndatasets = [\"iris\", \"wine\"]\npipelines = [\"std+l2\", \"minmax\"]\n[cv]\nmethod = \"stratified\"\nfolds = 4\nrepeats = 2\n[[model]]\nkind = \"knn\"\nk = 3\n[[model]]\nkind = \"interference\"\nmode = \"shots\"\nshots = 1\nbalance = true\n"))
 	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"svm\"\ngamma = \"scale\"\n"))
 	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[cv]\nmethod = \"holdout\"\ntest_fraction = 0.5\n[[model]]\nkind = \"interference\"\nmode = \"noisy\"\nnoise = { readout = [0.1, 0.2] }\n"))
+	f.Add([]byte("name = \"x\"\nseed = 1\ndatasets = [\"iris\"]\n[[model]]\nkind = \"knn\"\nlabel = \"k-NN\"\n[report]\nmodels = [\"knn-k5\"]\nlayout = \"wide\"\ndigits = 2\n[report.summary]\ncaption = \"c\"\nlabel = \"tab:c\"\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		defer benchtest.Watchdog("spec.Parse/NewPlan")()
 		s, err := spec.Parse("fuzz.toml", data)
@@ -39,11 +40,22 @@ func FuzzParseSpec(f *testing.F) {
 			t.Fatalf("accepted an incomplete spec: %+v", s)
 		}
 		seen := map[string]bool{}
+		var names []string
 		for _, m := range s.Models {
 			if m.Name == "" || seen[m.Name] {
 				t.Fatalf("empty or repeated model name %q", m.Name)
 			}
 			seen[m.Name] = true
+			names = append(names, m.Name)
+		}
+		// The [report] options of an accepted spec pass results' own
+		// check, which the writers of summary.tex and summary.md apply.
+		var ds []string
+		for _, d := range s.Datasets {
+			ds = append(ds, d.Display())
+		}
+		if err := s.ReportOptions().Check(names, s.Pipelines, ds); err != nil {
+			t.Fatalf("accepted report options that results refuses: %v", err)
 		}
 		// Plan only small grids over embedded data: a spec may ask for
 		// any number of repeats, and files are not the fuzzer's to read.

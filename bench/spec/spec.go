@@ -15,6 +15,7 @@ import (
 	"fringe/bench/input"
 	"fringe/bench/modelkit"
 	"fringe/datasets"
+	"fringe/results"
 )
 
 // Spec is a parsed experiment specification (see DESIGN.md for the format).
@@ -26,6 +27,10 @@ type Spec struct {
 	CV        CV
 	Models    []modelkit.Spec
 	Tune      Tune // the inner protocol of tuned models
+	// Report is the [report] table: what the tables of summary.tex and
+	// summary.md show and how they are laid out (report.go); without
+	// model labels, which ReportOptions adds.
+	Report results.ReportOptions
 
 	// Warnings are located, one-line notes about the spec that do not
 	// stop it ("file:line: key model[2].weights: ... is deprecated ...;
@@ -105,6 +110,7 @@ type rawSpec struct {
 	CV        *rawCV           `toml:"cv"`
 	Tune      *rawTune         `toml:"tune"`
 	Model     []map[string]any `toml:"model"`
+	Report    map[string]any   `toml:"report"`
 }
 
 type rawTune struct {
@@ -166,10 +172,10 @@ func Parse(file string, data []byte) (*Spec, error) {
 	if und := md.Undecoded(); len(und) > 0 {
 		for _, k := range und {
 			ks := k.String()
-			if strings.HasPrefix(ks, "model.") || ks == "model" {
-				continue // model keys are checked per kind below
+			if strings.HasPrefix(ks, "model.") || ks == "model" || strings.HasPrefix(ks, "report.") {
+				continue // model keys are checked per kind below, report keys by parseReport
 			}
-			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, tune, model; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference, train_sizes; in [tune]: folds, metric; in [[dataset]]: name, classes, features, as, label, drop_invalid, format, index_base)")
+			return nil, bad(ks, "unknown key (allowed at top level: name, seed, datasets, dataset, pipelines, cv, tune, model, report; in [cv]: method, folds, repeats, test_fraction, test, alpha, reference, train_sizes; in [tune]: folds, metric; in [[dataset]]: name, classes, features, as, label, drop_invalid, format, index_base)")
 		}
 	}
 	if err := checkText(data, bad); err != nil {
@@ -207,6 +213,12 @@ func Parse(file string, data []byte) (*Spec, error) {
 		return nil, err
 	}
 	if s.Tune, err = parseTune(raw.Tune, s.Models, bad); err != nil {
+		return nil, err
+	}
+	if s.Report, err = parseReport(raw.Report, file, lines); err != nil {
+		return nil, err
+	}
+	if err := s.checkReport(reportParser{file: file, lines: lines}); err != nil {
 		return nil, err
 	}
 	return s, nil

@@ -79,6 +79,10 @@ func TestBadInput(t *testing.T) {
 		{"tune_folds_class.toml", []string{"tune_folds_class.toml:8", "tune.folds", "9 inner folds", "members"}},
 		{"tune_untuned.toml", []string{"tune_untuned.toml:4", "key tune", "no model is tuned"}},
 		{"train_sizes.toml", []string{"train_sizes.toml:5", "cv.train_sizes", "value 1"}},
+		{"report_model.toml", []string{"report_model.toml:8", "key report.models", `"svm-rbf-C1" is not a model`}},
+		{"report_key.toml", []string{"report_key.toml:8", "key report.summary.colour", "caption, label"}},
+		{"report_label.toml", []string{"report_label.toml:9", "key model[2].label", "also the label of model[1]"}},
+		{"report_dataset.toml", []string{"report_dataset.toml:10", "key report.datasets", `shown as "wine-all"`}},
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {
@@ -108,6 +112,21 @@ func TestBadInput(t *testing.T) {
 	}
 	if n := len(cases); n < 15 {
 		t.Fatalf("bad-input corpus has %d cases, want at least 15", n)
+	}
+	// Every spec of the corpus is a case: a fixture added without one
+	// would never be run.
+	specs, err := filepath.Glob(filepath.Join(bad, "*.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, path := range specs {
+		listed := false
+		for _, c := range cases {
+			listed = listed || c.spec == filepath.Base(path)
+		}
+		if !listed {
+			t.Errorf("testdata/bad/%s has no case in TestBadInput", filepath.Base(path))
+		}
 	}
 }
 
