@@ -6,6 +6,11 @@
 // modelkit. Errors are *input.Error values naming the file, the 1-based
 // line and the key at fault.
 //
+// Warnings: a spec without pipelines (or with an empty list) runs pipeline
+// raw, the features as read; it is accepted, with NoPipelinesWarning in
+// Spec.Warnings, which the command prints once on standard error and the
+// manifest keeps. Writing pipelines = ["raw"] says so and has no warning.
+//
 // It also holds the spec's canonical form (CanonicalSHA: the decoded
 // document written with sorted keys and exact numbers, so that comments,
 // blank lines and key order do not change a run's identity while any value
