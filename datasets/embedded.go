@@ -71,7 +71,7 @@ var bundledSets = []*bundled{
 			Licence:  uciLicence,
 			File:     "iris.csv",
 			Note: "corrected variant (J. C. Bezdek et al., IEEE Trans. Fuzzy Systems 7(3):368, 1999), as in R and scikit-learn; " +
-				"the widely circulated UCI iris.data differs in the 0-based rows 34 and 37 (see IrisUCIVariant)",
+				"the widely circulated UCI iris.data differs in the 0-based rows 34 and 37, which both read 4.9,3.1,1.5,0.1 there; that variant has no dataset name in a spec (only Go code can build it)",
 		},
 		features: []string{"sepal length (cm)", "sepal width (cm)", "petal length (cm)", "petal width (cm)"},
 	},

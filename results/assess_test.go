@@ -29,7 +29,7 @@ func handAssessment() *Assessment {
 	}
 	return &Assessment{
 		Seed: 5, Repeats: 1, Confidence: 0.95, Ratio: 10, Weights: "balanced", Level: 0.95, Subsets: []int{8, 16},
-		ClassicalPipeline: "std",
+		ClassicalPipeline: "std", Margin: 0.01,
 		Rows: []AssessRow{
 			row("alpha", "std+l2", 2, 1, 120.2, -0.05),
 			row("alpha", "l2", 1, 1, math.Inf(1), -0.01),
@@ -89,7 +89,7 @@ func TestWriteAssessMarkdownAndTeX(t *testing.T) {
 	if i1 < 0 || i2 < 0 || i1 > i2 {
 		t.Errorf("ranking rows missing or out of order:\n%s", md)
 	}
-	for _, want := range []string{"| ∞ |", "| 121 |", "0.900 ± 0.050", "−0.010 [−0.030, +0.010]", "| 90 (full) | 11 = 1 + 7 + 2 + 1 |", "6.5e-04", "seed 5"} {
+	for _, want := range []string{"within ±0.01, the equivalence margin (practical equivalence by two one-sided tests, Schuirmann 1987, each at level 0.025)", "| ∞ |", "| 121 |", "0.900 ± 0.050", "−0.010 [−0.030, +0.010]", "| 90 (full) | 11 = 1 + 7 + 2 + 1 |", "6.5e-04", "seed 5"} {
 		want = strings.ReplaceAll(want, "−", "-") // fmtSigned writes ASCII minus
 		if !strings.Contains(md, want) {
 			t.Errorf("Markdown lacks %q", want)
@@ -100,7 +100,8 @@ func TestWriteAssessMarkdownAndTeX(t *testing.T) {
 		t.Fatal(err)
 	}
 	tex := b.String()
-	for _, want := range []string{"\\toprule", "\\bottomrule", "$\\infty$", "$6.5 \\times 10^{-4}$", "train\\_subset", "90*"} {
+	for _, want := range []string{"\\toprule", "\\bottomrule", "$\\infty$", "$6.5 \\times 10^{-4}$", "train\\_subset", "90*",
+		"within \\ensuremath{\\pm}0.01, the equivalence margin", "Schuirmann 1987"} {
 		if !strings.Contains(tex, want) {
 			t.Errorf("LaTeX lacks %q", want)
 		}

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 
 	"fringe/bench/export"
@@ -57,6 +58,7 @@ type Options struct {
 	Repeats   int     // 0: 3
 	Uniform   bool    // assess the published uniform-weight form instead of the class-balanced one
 	Ratio     float64 // p2/p1 of the noise budget; 0: 10
+	Margin    float64 // equivalence margin of the verdict (accuracy units); 0: DefaultMargin
 	Workers   int     // concurrent tasks; 0: all CPUs
 	reduce    bool    // Pipelines were defaulted: add ReductionPipelines where they apply
 
@@ -64,6 +66,11 @@ type Options struct {
 	// errors, Dir resolves relative CSV paths ("" = working directory).
 	File, Dir string
 }
+
+// DefaultMargin is the default equivalence margin of the verdict: a gap
+// to the best baseline is called on par only when its whole interval lies
+// within ±DefaultMargin, one accuracy point (see verdict).
+const DefaultMargin = 0.01
 
 // Confidence of a right decision in the shots budget, and the target
 // fidelity of the noise budget.
@@ -94,6 +101,9 @@ func (o Options) withDefaults() (Options, error) {
 	if o.Ratio == 0 {
 		o.Ratio = 10
 	}
+	if o.Margin == 0 {
+		o.Margin = DefaultMargin
+	}
 	if o.File == "" {
 		o.File = "assess"
 	}
@@ -111,6 +121,8 @@ func (o Options) withDefaults() (Options, error) {
 		return o, bad("repeats", "repeats must be at least 1, got %d", o.Repeats)
 	case !(o.Ratio >= 1) || math.IsInf(o.Ratio, 0):
 		return o, bad("ratio", "the ratio p2/p1 must be a finite number >= 1, got %v", o.Ratio)
+	case !(o.Margin > 0 && o.Margin < 1):
+		return o, bad("margin", "the equivalence margin must lie in (0, 1), got %v", o.Margin)
 	}
 	seen := map[string]bool{}
 	for _, d := range o.Datasets {
@@ -221,6 +233,7 @@ func Run(ctx context.Context, opt Options) (*results.Assessment, error) {
 	a := &results.Assessment{
 		Seed: o.Seed, Repeats: o.Repeats, Confidence: Confidence, Ratio: o.Ratio,
 		Weights: "balanced", Level: 1 - report.Alpha, Subsets: o.Subsets, ClassicalPipeline: ClassicalPipeline,
+		Margin: o.Margin,
 	}
 	if o.Uniform {
 		a.Weights = "uniform"
@@ -411,7 +424,7 @@ func assessRow(o Options, ad *assessDataset, pi int, pipe string) (results.Asses
 	if err != nil {
 		return row, nil, nil, err
 	}
-	row.Verdict = verdict(row, pipe)
+	row.Verdict = verdict(row, pipe, o.Margin)
 	return row, out, warns, nil
 }
 
@@ -612,18 +625,34 @@ func circuitResources(row *results.AssessRow, o Options, ad *assessDataset, pi i
 	return out, nil
 }
 
-// verdict sums a row up in a few words.
-func verdict(r results.AssessRow, pipe string) string {
+// verdict sums a row up in a few words. The gap to the best baseline is
+// read from its interval (the corrected resampled t interval at 95%):
+//
+//   - inside [-margin, +margin]: on par with the best baseline. This is
+//     practical equivalence by the two one-sided tests (Schuirmann 1987):
+//     both one-sided nulls |gap| >= margin are rejected at level 0.025 each,
+//     as the 95% interval lies inside the band (the usual 90% form tests at
+//     0.05; the interval the report shows is used, which is the stricter);
+//   - above 0 or below 0 (and not inside the band): beats or trails it;
+//   - holding 0 but not inside the band: not significantly different, which
+//     is not evidence of equal accuracy (the interval may be wide).
+//
+// An interval inside the band that also excludes 0 is on par: the
+// difference is significant but smaller than the margin.
+func verdict(r results.AssessRow, pipe string, margin float64) string {
 	var parts []string
+	gap := fmt.Sprintf("gap %s, interval [%s, %s]", signed(r.Gap), signed(r.GapLo), signed(r.GapHi))
 	switch {
 	case math.IsNaN(r.Gap):
 		parts = append(parts, "no baseline to compare")
+	case r.GapLo >= -margin && r.GapHi <= margin:
+		parts = append(parts, fmt.Sprintf("on par with the best baseline (%s, within the ±%s equivalence margin)", gap, strconv.FormatFloat(margin, 'f', -1, 64)))
 	case r.GapHi < 0:
 		parts = append(parts, fmt.Sprintf("trails the best baseline by %.3f", -r.Gap))
 	case r.GapLo > 0:
 		parts = append(parts, fmt.Sprintf("beats the best baseline by %.3f", r.Gap))
 	default:
-		parts = append(parts, "on par with the best baseline")
+		parts = append(parts, fmt.Sprintf("not significantly different from the best baseline (%s)", gap))
 	}
 	if r.ShotsMedian > 1e4 {
 		parts = append(parts, "needs more than 10^4 shots per decision")
@@ -685,4 +714,13 @@ func rankAssessment(rows []results.AssessRow) []int {
 		left = rest
 	}
 	return order
+}
+
+// signed writes a gap as the report's tables do: "+0.013", "-0.085".
+func signed(v float64) string {
+	s := fmt.Sprintf("%+.3f", v)
+	if s == "-0.000" {
+		s = "+0.000"
+	}
+	return s
 }

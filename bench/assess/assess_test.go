@@ -339,3 +339,70 @@ func TestAssessReduction(t *testing.T) {
 		t.Error("iris (4 features) assessed with a reduction")
 	}
 }
+
+// TestVerdictWords checks how the verdict reads the gap's interval. The
+// rows are those of the observed report (cats: gap -0.085, interval
+// [-0.193, +0.024], called "on par" before because the interval holds 0)
+// and hand-made intervals around the ±0.01 band: on par needs the whole
+// interval inside the equivalence margin (two one-sided tests,
+// Schuirmann 1987); an interval holding 0 but leaving the band is "not
+// significantly different".
+func TestVerdictWords(t *testing.T) {
+	nan := math.NaN()
+	for _, c := range []struct {
+		gap, lo, hi, margin float64
+		want                string
+	}{
+		{-0.085, -0.193, 0.024, 0.01, "not significantly different from the best baseline (gap -0.085, interval [-0.193, +0.024])"},
+		{-0.001, -0.020, 0.018, 0.01, "not significantly different from the best baseline (gap -0.001, interval [-0.020, +0.018])"},
+		{-0.001, -0.020, 0.018, 0.05, "on par with the best baseline (gap -0.001, interval [-0.020, +0.018], within the ±0.05 equivalence margin)"},
+		{0.002, -0.004, 0.008, 0.01, "on par with the best baseline (gap +0.002, interval [-0.004, +0.008], within the ±0.01 equivalence margin)"},
+		{-0.005, -0.008, -0.002, 0.01, "on par with the best baseline (gap -0.005, interval [-0.008, -0.002], within the ±0.01 equivalence margin)"},
+		{0.000, -0.010, 0.010, 0.01, "on par with the best baseline (gap +0.000, interval [-0.010, +0.010], within the ±0.01 equivalence margin)"},
+		{-0.050, -0.080, -0.020, 0.01, "trails the best baseline by 0.050"},
+		{0.040, 0.005, 0.075, 0.01, "beats the best baseline by 0.040"},
+		{nan, nan, nan, 0.01, "no baseline to compare"},
+	} {
+		r := results.AssessRow{Gap: c.gap, GapLo: c.lo, GapHi: c.hi, ShotsMedian: 10}
+		if got := verdict(r, "std+l2", c.margin); got != c.want {
+			t.Errorf("gap %v [%v, %v], margin %v:\n got %q\nwant %q", c.gap, c.lo, c.hi, c.margin, got, c.want)
+		}
+	}
+}
+
+// TestAssessMargin checks that the margin reaches the report (assess.md,
+// assess.json) and that a margin outside (0, 1) is refused with its key.
+func TestAssessMargin(t *testing.T) {
+	if _, err := Run(context.Background(), Options{Datasets: []spec.Dataset{{Name: "cats"}}, Margin: 1.5}); !errors.Is(err, input.ErrBad) || !strings.Contains(err.Error(), "margin") {
+		t.Errorf("margin 1.5: %v", err)
+	}
+	a, err := Run(context.Background(), Options{
+		Datasets: []spec.Dataset{{Name: "cats"}}, Pipelines: []string{"std+l2"}, Subsets: []int{},
+		Seed: 11, Repeats: 1, Folds: 3, Workers: 2, Margin: 0.5,
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// cats' accuracies differ by far less than 0.5, so the interval lies
+	// inside a band that wide and the verdict must say on par.
+	r := a.Rows[0]
+	if a.Margin != 0.5 || !(r.GapLo >= -0.5 && r.GapHi <= 0.5) || !strings.HasPrefix(r.Verdict, "on par with the best baseline") || !strings.Contains(r.Verdict, "±0.5 equivalence margin") {
+		t.Errorf("margin %v, gap [%v, %v], verdict %q", a.Margin, r.GapLo, r.GapHi, r.Verdict)
+	}
+	dir := filepath.Join(t.TempDir(), "out")
+	if err := Write(dir, a); err != nil {
+		t.Fatal(err)
+	}
+	md, _ := os.ReadFile(filepath.Join(dir, "assess.md"))
+	js, _ := os.ReadFile(filepath.Join(dir, "assess.json"))
+	if !strings.Contains(string(md), "within ±0.5, the equivalence margin") || !strings.Contains(string(js), `"equivalence_margin": 0.5`) {
+		t.Errorf("assess.md or assess.json lacks the margin:\n%s\n%s", md, js)
+	}
+	d, err := Run(context.Background(), Options{Datasets: []spec.Dataset{{Name: "cats"}}, Pipelines: []string{"std+l2"}, Subsets: []int{}, Repeats: 1, Folds: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Margin != DefaultMargin {
+		t.Errorf("default margin %v, want %v", d.Margin, DefaultMargin)
+	}
+}

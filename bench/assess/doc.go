@@ -7,7 +7,14 @@
 // lift and on the norm alone), centered kernel-target alignment of the
 // interference and RBF kernels, exact accuracy against the best classical
 // baseline with the paired corrected interval, and a Pareto-front ranking
-// (assess.go). The closed forms behind the criteria are in math.go;
+// (assess.go). Each row's verdict reads the gap's 95% interval against an
+// equivalence margin (Options.Margin, default DefaultMargin = 0.01, the
+// command's -margin): on par only when the whole interval lies within
+// ±margin (practical equivalence by the two one-sided tests of
+// Schuirmann, J. Pharmacokinet. Biopharm. 15:657, 1987, each at level
+// 0.025); beats or trails when it excludes 0 otherwise; not significantly
+// different when it holds 0 but leaves the band, which is no evidence of
+// equal accuracy. The closed forms behind the criteria are in math.go;
 // Write renders the report files atomically (output.go).
 //
 // Imports: bench/input, bench/spec, bench/modelkit, bench/plan,

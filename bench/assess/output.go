@@ -21,6 +21,7 @@ type assessManifest struct {
 	Weights    string                  `json:"weights"`
 	Ratio      float64                 `json:"p2_over_p1"`
 	Confidence float64                 `json:"confidence"`
+	Margin     float64                 `json:"equivalence_margin"`
 	Subsets    []int                   `json:"subsets"`
 	Classical  string                  `json:"classical_pipeline"`
 	Datasets   []results.DatasetRecord `json:"datasets"`
@@ -45,7 +46,7 @@ func Write(dir string, a *results.Assessment) error {
 	}
 	man := assessManifest{
 		Tool: "fringe assess", Version: runner.Version, Seed: a.Seed, Repeats: a.Repeats, Weights: a.Weights,
-		Ratio: a.Ratio, Confidence: a.Confidence, Subsets: a.Subsets, Classical: a.ClassicalPipeline,
+		Ratio: a.Ratio, Confidence: a.Confidence, Margin: a.Margin, Subsets: a.Subsets, Classical: a.ClassicalPipeline,
 		Datasets: a.Datasets, Warnings: append([]string{}, a.Warnings...),
 	}
 	files := []outdir.File{

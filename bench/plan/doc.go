@@ -19,6 +19,19 @@
 // deals whole units round-robin. Fingerprint digests everything the plan
 // computes on, for the identity of partial runs.
 //
+// Cost: Estimate says what some of the tasks will cost before anything
+// runs, from the sizes alone (training and test rows, features after the
+// pipelines, classes) under a sim.CostModel calibrated on the machine: per
+// model and per (dataset, pipeline, model) cell the tasks, the model fits
+// (Fits: tuned models fit every grid point on every inner fold), the
+// largest circuit's qubits and gate counts, the simulator, and the CPU
+// time of one thread with the longest task. Interference models are
+// estimated by qkernel.Classifier.EstimateCost, k-NN and nearest centroid
+// by their multiply-adds; SVMs, logistic regression (iterative solvers),
+// counts and command models are not estimated and are named as such
+// (NotEstimated). Estimates are good to a small factor on an idle machine;
+// a loaded one runs longer by the share of the CPU it gives the run.
+//
 // Imports: bench/input, bench/spec, bench/modelkit, bench/cv and the model
 // packages. It must never import runner, report, export, assess, cluster or
 // results.

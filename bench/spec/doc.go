@@ -20,6 +20,11 @@
 // name [report] lists against the spec's own (CheckReport; plan.New
 // checks again), so a wrong name is a located error before anything runs.
 //
+// Warnings: a spec without pipelines (or with an empty list) runs pipeline
+// raw, the features as read; it is accepted, with NoPipelinesWarning in
+// Spec.Warnings, which the command prints once on standard error and the
+// manifest keeps. Writing pipelines = ["raw"] says so and has no warning.
+//
 // It also holds the spec's canonical form (CanonicalSHA: the decoded
 // document written with sorted keys and exact numbers, and model tables in
 // the current spellings, so that comments, blank lines, key order and old

@@ -41,6 +41,11 @@ type Spec struct {
 	File   string // path the spec was read from, or a description of a built-in spec
 	Dir    string // directory relative CSV paths are resolved against ("" = working directory)
 	Source []byte // the spec text as read
+
+	// Warnings are what the spec leaves to a default a reader may not
+	// expect (no pipelines key: the raw features), each naming the file
+	// and key; the command prints them once and the manifest keeps them.
+	Warnings []string
 }
 
 // Dataset selects a dataset and its options.
@@ -206,6 +211,9 @@ func Parse(file string, data []byte) (*Spec, error) {
 	if s.Pipelines, err = parsePipelines(raw.Pipelines, bad); err != nil {
 		return nil, err
 	}
+	if len(raw.Pipelines) == 0 {
+		s.Warnings = append(s.Warnings, fmt.Sprintf("%s: %s", file, NoPipelinesWarning))
+	}
 	if s.CV, err = parseCV(raw.CV, bad); err != nil {
 		return nil, err
 	}
@@ -287,6 +295,11 @@ func parseDatasets(raw *rawSpec, lines keyLines, bad func(key, format string, ar
 	}
 	return out, nil
 }
+
+// NoPipelinesWarning is the warning of a spec without pipelines (or with
+// an empty list): it runs pipeline raw, which a reader of its results may
+// not expect (distance-based models on unscaled features).
+const NoPipelinesWarning = `no pipelines given, so every model sees the features as read (pipeline raw: no scaling, no unit norm); write pipelines = ["raw"] to keep that without this warning, or choose steps, e.g. pipelines = ["std+l2"]`
 
 // parsePipelines validates the pipelines list ("raw" when absent).
 func parsePipelines(pipes []string, bad func(key, format string, args ...any) error) ([]string, error) {

@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
 
 	"fringe/bench/input"
@@ -96,21 +97,23 @@ type command struct {
 
 func commands() []*command {
 	return []*command{
-		{name: "demo", args: "[-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet]", short: "run the built-in demo experiment on embedded data", run: runDemo},
-		{name: "run", args: "SPEC.toml [-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet]", short: "run an experiment spec (an interrupted run continues where it stopped)", run: runSpec},
+		{name: "demo", args: "[-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-figures=false] [-memory GiB] [-max-estimate D] [-yes] [-grace D]", short: "run the built-in demo experiment on embedded data", run: runDemo},
+		{name: "run", args: "SPEC.toml [-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-figures=false] [-memory GiB] [-max-estimate D] [-yes] [-grace D]", short: "run an experiment spec (an interrupted run continues where it stopped)", run: runSpec},
+		{name: "plan", args: "SPEC.toml [-workers N] [-shard i/n] [-cells] [-max-estimate D]", short: "show a spec's tasks and their estimated cost (qubits, gates, simulator, time per model) without running anything", run: runPlan},
 		{name: "list", args: "", short: "list embedded datasets, pipeline steps and models", run: runList},
 		{name: "rank", args: "SCORES.csv [-alpha A] [-json] [-plot FILE]", short: "rank models across datasets from a dataset,model,score CSV (Friedman, Iman-Davenport, Nemenyi CD)", run: runRank},
-		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-json]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},
+		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-models M] [-correction holm|none] [-json] [-json-file FILE]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},
 		{name: "verify", args: "RUN_DIR [-spec-dir DIR]", short: "check a run directory: its manifest seal and file digests, and its predictions, folds, summary and comparisons recomputed from predictions.csv and the spec; exit status 1 when it does not verify", run: runVerify},
-		{name: "merge", args: "[-out DIR] PARTIAL_DIR...", short: "merge the partial run directories of all shards of a run (fringe run -shard i/n) into one run directory", run: runMerge},
+		{name: "merge", args: "[-out DIR] [-quiet] PARTIAL_DIR...", short: "merge the partial run directories of all shards of a run (fringe run -shard i/n) into one run directory", run: runMerge},
 		{name: "slurm", args: "SPEC.toml -shards N [-out DIR] [-fringe PATH] [-cpus C] [-mem M] [-time T] [-partition P] [-account A] [-script FILE]", short: "write a Slurm job: an array with one shard per array task and a merge job that waits for it", run: runSlurm},
-		{name: "circuit", args: "[-dataset NAME] [-pipeline P] [-train N] [-row R] [-qasm] | -export DIR [-model NAME] SPEC.toml", short: "show the compiled circuit's resources or OpenQASM 3 text for one test instance, or export every test instance's circuit of a spec", run: runCircuit},
-		{name: "assess", args: "[-datasets a,b] [-pipelines p,q] [-subsets 8,16,32] [-out DIR] [SPEC.toml]", short: "report which datasets and pipelines suit the classifier: qubits, gates, noise budget, shots, norm loss, kernel alignment, accuracy against the baselines", run: runAssess},
+		{name: "circuit", args: "[DATASET | -dataset NAME] [-classes a,b] [-features f,g] [-pipeline P] [-train N] [-balance] [-row R] [-seed S] [-qasm] | -export DIR [-model NAME] [-workers N] SPEC.toml", short: "show the compiled circuit's resources or OpenQASM 3 text for one test instance, or export every test instance's circuit of a spec", run: runCircuit},
+		{name: "assess", args: "[DATASET... | -datasets a,b | SPEC.toml] [-pipelines p,q] [-subsets 8,16,32] [-margin M] [-out DIR] [-seed S] [-folds K] [-repeats R] [-weights balanced|uniform] [-ratio R] [-workers N] [-quiet]", short: "report which datasets and pipelines suit the classifier: qubits, gates, noise budget, shots, norm loss, kernel alignment, accuracy against the baselines", run: runAssess},
+		{name: "version", args: "", short: "print fringe's version, the build's module and version-control information and the Go version", run: runVersion},
 	}
 }
 
 func mainUsage(w io.Writer) {
-	fmt.Fprintln(w, "usage: fringe VERB [flags] [args]")
+	fmt.Fprintln(w, "usage: fringe VERB [flags] [args]\n       fringe -version")
 	fmt.Fprintln(w, "\nfringe benchmarks the interference quantum classifier against classical baselines.\n\nverbs:")
 	for _, c := range commands() {
 		fmt.Fprintf(w, "  %-8s %s\n", c.name, c.short)
@@ -128,6 +131,8 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	case "-h", "-help", "--help", "help":
 		mainUsage(stdout)
 		return nil
+	case "-version", "--version":
+		return writeVersion(stdout)
 	}
 	for _, c := range commands() {
 		if c.name == args[0] {
@@ -135,5 +140,8 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	mainUsage(stderr)
+	if strings.HasPrefix(args[0], "-") {
+		return usagef("%s is not a verb; flags follow the verb: fringe VERB [flags]", args[0])
+	}
 	return usagef("unknown verb %q", args[0])
 }

@@ -176,8 +176,8 @@ func TestDemoDeterministic(t *testing.T) {
 	}
 	dir := t.TempDir()
 	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
-	if code, _, stderr := runCmd(t, "", "demo", "-out", a, "-workers", "1", "-quiet"); code != 0 {
-		t.Fatalf("demo -workers 1: exit %d: %s", code, stderr)
+	if code, stdout, stderr := runCmd(t, "", "demo", "-out", a, "-workers", "1", "-quiet"); code != 0 || stdout != "run directory: "+a+"\n" {
+		t.Fatalf("demo -workers 1 -quiet: exit %d, stdout %q (want the one line saying where the run went): %s", code, stdout, stderr)
 	}
 	code, out, stderr := runCmd(t, "", "demo", "-out", b, "-workers", "2")
 	if code != 0 {

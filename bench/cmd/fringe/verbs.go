@@ -33,9 +33,15 @@ func newFlags(c *command, stdout io.Writer) *flag.FlagSet {
 	return fs
 }
 
+// parsing, when set (by tests), sees every verb's complete flag set.
+var parsing func(*flag.FlagSet)
+
 // parse parses flags that may come before or after positional arguments
 // and returns the positional ones. -h gives flag.ErrHelp.
 func parse(fs *flag.FlagSet, args []string, stderr io.Writer) ([]string, error) {
+	if parsing != nil {
+		parsing(fs)
+	}
 	var pos []string
 	for {
 		out := fs.Output()
@@ -48,7 +54,7 @@ func parse(fs *flag.FlagSet, args []string, stderr io.Writer) ([]string, error) 
 			return nil, flag.ErrHelp
 		}
 		if err != nil {
-			return nil, usagef("%s: %v (see 'fringe %s -h')", fs.Name(), err, strings.TrimPrefix(fs.Name(), "fringe "))
+			return nil, flagError(fs, err)
 		}
 		args = fs.Args()
 		if len(args) == 0 {
@@ -68,17 +74,22 @@ type runFlags struct {
 	figures bool
 	grace   time.Duration
 	memory  float64 // GiB
+	maxEst  time.Duration
+	yes     bool
+	spec    string // the spec file of fringe run, for the hint to fringe plan
 }
 
 func addRunFlags(fs *flag.FlagSet) *runFlags {
 	rf := &runFlags{}
 	fs.StringVar(&rf.out, "out", "", "output run directory (default fringe-out/<spec name>; with -shard, fringe-out/<spec name>.shards/shard-I-of-N)")
 	fs.IntVar(&rf.workers, "workers", runtime.NumCPU(), "concurrent tasks")
-	fs.BoolVar(&rf.quiet, "quiet", false, "print nothing but errors and warnings (no progress, no summary)")
+	fs.BoolVar(&rf.quiet, "quiet", false, "print only where the run went, and errors and warnings (no estimate, progress or summary)")
 	fs.StringVar(&rf.shard, "shard", "", "run only shard `i/n`, the i-th of n deterministic slices of the tasks, and write a partial run directory for 'fringe merge'")
 	fs.BoolVar(&rf.fresh, "fresh", false, "discard the unfinished run kept in the partial run directory instead of resuming it")
 	fs.BoolVar(&rf.figures, "figures", true, "write the figures (SVG, PDF, PNG); -figures=false keeps only tables and CSV files")
 	fs.Float64Var(&rf.memory, "memory", 8, "memory limit in GiB for the tasks that run at once: a plan whose models' estimate (an SVM's kernel cache and vectors per task, times -workers) exceeds it is refused before it starts")
+	fs.DurationVar(&rf.maxEst, "max-estimate", DefaultMaxEstimate, "a run started from a terminal whose estimated wall-clock time (see 'fringe plan') is above this is refused unless -yes is given, with the spec keys that make it faster; without a terminal (scripts, CI, cluster jobs) that is printed as a warning and the run starts; 0: no limit")
+	fs.BoolVar(&rf.yes, "yes", false, "start even when the estimate is above -max-estimate")
 	fs.DurationVar(&rf.grace, "grace", runner.DefaultGrace, "after an interrupt (SIGINT, SIGTERM), how long the tasks in flight may still finish before they are abandoned (a second interrupt abandons them at once; finished tasks are always kept)")
 	return rf
 }
@@ -117,6 +128,7 @@ func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if err != nil {
 		return err
 	}
+	rf.spec = pos[0]
 	return execute(ctx, s, rf, append([]string{"fringe", "run"}, args...), stdout, stderr)
 }
 

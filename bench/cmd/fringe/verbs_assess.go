@@ -20,7 +20,8 @@ import (
 // pipelines for the interference classifier.
 func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags(c, stdout)
-	dsFlag := fs.String("datasets", "", "comma-separated embedded dataset names or CSV paths (default: every embedded dataset, or the spec's)")
+	dsFlag := fs.String("datasets", "", "comma-separated embedded dataset names or CSV paths (default: every embedded dataset, or the spec's); dataset names may also be given as arguments: fringe assess wine iris")
+	fs.StringVar(dsFlag, "dataset", "", "same as -datasets")
 	pipesFlag := fs.String("pipelines", "", "comma-separated pipelines (default: "+strings.Join(assess.DefaultPipelines, ",")+", or the spec's)")
 	subsetsFlag := fs.String("subsets", joinInts(assess.DefaultSubsets), "comma-separated train_subset sizes for the register and gate table")
 	out := fs.String("out", "", "output directory (default fringe-out/assess, or fringe-out/<spec name>-assess)")
@@ -31,17 +32,38 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	ratio := fs.Float64("ratio", 10, "p2/p1: two-qubit over single-qubit error rate in the noise budget")
 	workers := fs.Int("workers", runtime.NumCPU(), "concurrent tasks")
 	quiet := fs.Bool("quiet", false, "print nothing but errors")
+	margin := fs.Float64("margin", assess.DefaultMargin, "equivalence margin of the verdict: the gap is called on par with the best baseline only when its whole interval lies within ±margin (a practical-equivalence band, the two one-sided tests of Schuirmann 1987); a gap whose interval holds 0 but leaves the band is not significantly different, which is not the same")
 	pos, err := parse(fs, args, stderr)
 	if err != nil {
 		return helpOK(err)
 	}
-	if len(pos) > 1 {
-		return usagef("assess takes at most one spec file, got %q (see 'fringe assess -h')", pos)
+	// Arguments: at most one spec (a name ending in .toml), or dataset
+	// names and CSV paths.
+	var specs, names []string
+	for _, a := range pos {
+		if strings.HasSuffix(strings.ToLower(a), ".toml") {
+			specs = append(specs, a)
+		} else {
+			names = append(names, a)
+		}
+	}
+	if len(specs) > 1 {
+		return usagef("assess takes at most one spec file, got %q (see 'fringe assess -h')", specs)
+	}
+	if len(names) > 0 && *dsFlag != "" {
+		return usagef("assess: datasets given both as arguments (%s) and with -datasets %s; give them one way", strings.Join(names, " "), *dsFlag)
+	}
+	if len(names) > 0 {
+		*dsFlag = strings.Join(names, ",")
+	}
+	pos = specs
+	if !(*margin > 0 && *margin < 1) {
+		return usagef("-margin must lie in (0, 1) (accuracy units, e.g. 0.01 = one point), got %v", *margin)
 	}
 	if *workers < 1 {
 		return usagef("-workers must be at least 1, got %d", *workers)
 	}
-	opt := assess.Options{Folds: *folds, Repeats: *repeats, Ratio: *ratio, Workers: *workers, Seed: *seed}
+	opt := assess.Options{Folds: *folds, Repeats: *repeats, Ratio: *ratio, Workers: *workers, Seed: *seed, Margin: *margin}
 	switch *weights {
 	case "balanced":
 	case "uniform":
@@ -67,6 +89,9 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 		if err != nil {
 			return err
 		}
+		for _, w := range s.Warnings {
+			fmt.Fprintln(stderr, "fringe: warning:", w)
+		}
 		opt.Datasets, opt.Pipelines = s.Datasets, s.Pipelines
 		opt.File, opt.Dir = s.File, s.Dir
 		seedSet := false
@@ -81,6 +106,9 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 		for _, n := range splitList(*dsFlag) {
 			if n == "" {
 				return usagef("-datasets: empty name in %q", *dsFlag)
+			}
+			if strings.HasSuffix(strings.ToLower(n), ".toml") {
+				return usagef("-datasets %s: a spec file is an argument, not a dataset: fringe assess %s", n, n)
 			}
 			opt.Datasets = append(opt.Datasets, spec.Dataset{Name: n})
 		}

@@ -18,7 +18,8 @@ import (
 
 func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags(c, stdout)
-	ds := fs.String("dataset", "iris", "dataset: embedded name or CSV path")
+	ds := fs.String("dataset", "iris", "dataset: embedded name or CSV path; may also be given as the argument: fringe circuit wine")
+	fs.StringVar(ds, "datasets", "iris", "same as -dataset (one dataset)")
 	classes := fs.String("classes", "", "comma-separated class subset (default all)")
 	features := fs.String("features", "", "comma-separated feature subset, names or 0-based indices (default all)")
 	pipeline := fs.String("pipeline", "std+l2", "preprocessing pipeline, fitted on the training rows")
@@ -41,7 +42,20 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 		return usagef("-model applies with -export only")
 	}
 	if len(pos) > 0 {
-		return usagef("circuit takes no arguments, got %q (see 'fringe circuit -h')", pos[0])
+		set := false
+		fs.Visit(func(f *flag.Flag) { set = set || f.Name == "dataset" || f.Name == "datasets" })
+		switch {
+		case strings.HasSuffix(strings.ToLower(pos[0]), ".toml"):
+			return usagef("circuit reads a spec with -export only: fringe circuit -export DIR %s (see 'fringe circuit -h')", pos[0])
+		case len(pos) > 1:
+			return usagef("circuit shows the circuit of one dataset, got %d arguments (%s) (see 'fringe circuit -h')", len(pos), strings.Join(pos, " "))
+		case set && *ds != pos[0]:
+			return usagef("circuit: dataset given both as the argument %s and with -dataset %s; give it one way", pos[0], *ds)
+		}
+		*ds = pos[0]
+	}
+	if strings.Contains(*ds, ",") {
+		return usagef("-dataset %s: circuit shows the circuit of one dataset; run it once per dataset", *ds)
 	}
 	if *train < 0 {
 		return usagef("-train must be non-negative, got %d", *train)

@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"golang.org/x/term"
@@ -17,6 +18,7 @@ import (
 	"fringe/bench/plan"
 	"fringe/bench/runner"
 	"fringe/bench/spec"
+	"fringe/qkernel/sim"
 	"fringe/results"
 )
 
@@ -63,20 +65,62 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 	if err := pl.CheckMemory(rf.workers, int64(rf.memory*(1<<30))); err != nil {
 		return err
 	}
-	pr, err := runner.OpenPartial(partialDir, pl, shard, runner.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
-	if err != nil {
-		return err
-	}
-	defer pr.Close()
-	for _, w := range pr.Warnings() {
-		fmt.Fprintln(stderr, "fringe: warning:", w)
+	if rf.maxEst < 0 {
+		return usagef("-max-estimate must not be negative, got %v", rf.maxEst)
 	}
 	note := func(format string, args ...any) {
 		if !rf.quiet {
 			fmt.Fprintf(stderr, "fringe: "+format+"\n", args...)
 		}
 	}
+	// The cost of the tasks to run is known before anything is written:
+	// with -fresh every task of the shard, else those the partial run
+	// directory does not hold (opening it writes nothing).
+	estimate := func(tasks []int) error {
+		if len(tasks) == 0 {
+			return nil
+		}
+		cm, _, err := costModelOf(ctx)
+		if err != nil {
+			return err
+		}
+		est, err := pl.Estimate(cm, tasks)
+		if err != nil {
+			return err
+		}
+		// Like the progress report: on a terminal always, in a log only
+		// for a run long enough to get progress lines.
+		if interactive(stderr) || est.Wall(rf.workers) >= estimateLogAbove {
+			note("%s", estimateLine(est, rf.workers, true))
+		}
+		return checkEstimate(cm, pl, tasks, est, rf, stderr)
+	}
+	if rf.fresh {
+		all, err := pl.ShardTasks(shard)
+		if err != nil {
+			return err
+		}
+		if err := estimate(all); err != nil {
+			return err
+		}
+	}
+	pr, err := runner.OpenPartial(partialDir, pl, shard, runner.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
+	if err != nil {
+		return err
+	}
+	defer pr.Close()
 	todo := pr.Missing()
+	if !rf.fresh {
+		if err := estimate(todo); err != nil {
+			return err
+		}
+	}
+	for _, w := range s.Warnings {
+		fmt.Fprintln(stderr, "fringe: warning:", w)
+	}
+	for _, w := range pr.Warnings() {
+		fmt.Fprintln(stderr, "fringe: warning:", w)
+	}
 	switch {
 	case pr.Loaded() > 0 && len(todo) == 0:
 		note("%s: all %d tasks were finished before; nothing to run", partialDir, pr.Total())
@@ -146,11 +190,13 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		if !rf.quiet {
 			fmt.Fprintf(stdout, "shard %s: %d of the run's %d tasks finished in %.1f s; partial run directory: %s\n", shard, len(res), len(pl.Tasks), end.Sub(start).Seconds(), out)
 			fmt.Fprintf(stdout, "join the shards with: fringe merge -out DIR SHARD_DIR...\n")
+		} else {
+			fmt.Fprintf(stdout, "partial run directory: %s\n", out)
 		}
 		return nil
 	}
 	info := runner.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
-	if err := runner.Write(pl, out, res, info, nil); err != nil {
+	if err := runner.Write(pl, out, res, info, s.Warnings); err != nil {
 		return err
 	}
 	if err := pr.Remove(); err != nil {
@@ -165,7 +211,43 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 			resumed = fmt.Sprintf(" (%d finished before, %d now)", pr.Loaded(), len(pl.Tasks)-pr.Loaded())
 		}
 		fmt.Fprintf(stdout, "\n%d tasks%s in %.1f s with %d workers; run directory: %s\n", len(pl.Tasks), resumed, end.Sub(start).Seconds(), rf.workers, out)
+	} else {
+		fmt.Fprintf(stdout, "run directory: %s\n", out)
 	}
+	return nil
+}
+
+// estimateLogAbove is the estimated wall-clock time from which the
+// estimate line is written when no terminal is attached (as the progress
+// report, runner.Progress.LogEvery, keeps the logs of short runs empty).
+const estimateLogAbove = 10 * time.Second
+
+// checkEstimate refuses, on a terminal and without -yes, a run whose
+// estimated wall-clock time is above -max-estimate, saying how to make it
+// faster; without a terminal it prints the same as a warning and lets the
+// run start, so that scripts, CI and cluster jobs never wait for an answer
+// nobody can give.
+func checkEstimate(cm *sim.CostModel, pl *plan.Plan, tasks []int, est *plan.Estimate, rf *runFlags, stderr io.Writer) error {
+	if rf.maxEst == 0 || rf.yes || !est.Estimated {
+		return nil
+	}
+	wall := est.Wall(rf.workers)
+	if wall <= rf.maxEst {
+		return nil
+	}
+	msg := fmt.Sprintf("the estimate, about %s with %s, is above -max-estimate %s", fmtDuration(wall), count(rf.workers, "worker"), rf.maxEst)
+	how := ""
+	if hints := fasterHints(cm, pl, tasks, est); len(hints) > 0 {
+		how = "; to make it faster: " + strings.Join(hints, "; ")
+	}
+	table := ""
+	if rf.spec != "" {
+		table = fmt.Sprintf(" (the whole table: fringe plan %s)", rf.spec)
+	}
+	if interactive(stderr) {
+		return usagef("%s; add -yes to start it anyway%s%s", msg, how, table)
+	}
+	fmt.Fprintf(stderr, "fringe: warning: %s; starting anyway, as no terminal is attached (-yes is asked for on a terminal only)%s%s\n", msg, how, table)
 	return nil
 }
 
@@ -204,7 +286,7 @@ func isTerminal(w io.Writer) bool {
 func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags(c, stdout)
 	out := fs.String("out", "", "directory of the merged run (default fringe-out/<spec name>)")
-	quiet := fs.Bool("quiet", false, "print nothing but errors")
+	quiet := fs.Bool("quiet", false, "print only where the merged run went, and errors")
 	pos, err := parse(fs, args, stderr)
 	if err != nil {
 		return helpOK(err)
@@ -230,7 +312,7 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if info.Start.IsZero() {
 		info.Start = start
 	}
-	if err := runner.Write(m.Plan, dir, m.Results, info, nil); err != nil {
+	if err := runner.Write(m.Plan, dir, m.Results, info, m.Plan.Spec.Warnings); err != nil {
 		return err
 	}
 	if !*quiet {
@@ -238,6 +320,8 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 			return err
 		}
 		fmt.Fprintf(stdout, "\nmerged %d shards (%d tasks) in %.1f s; run directory: %s\n", m.Shards, len(m.Results), time.Since(start).Seconds(), dir)
+	} else {
+		fmt.Fprintf(stdout, "run directory: %s\n", dir)
 	}
 	return nil
 }

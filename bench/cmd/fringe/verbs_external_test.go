@@ -129,6 +129,7 @@ func TestExternalProgramFails(t *testing.T) {
 name = "bad"
 seed = 1
 datasets = ["iris"]
+pipelines = ["raw"]
 [cv]
 folds = 3
 [[model]]
