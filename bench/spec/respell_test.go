@@ -15,6 +15,7 @@ import (
 const respellOld = `name = "words"
 seed = 5
 datasets = ["iris"]
+pipelines = ["std+l2"]
 
 [[model]]
 kind = "knn"
@@ -36,6 +37,7 @@ method = "statevector"
 const respellNew = `name = "words"
 seed = 5
 datasets = ["iris"]
+pipelines = ["std+l2"]
 
 [[model]]
 kind = "knn"
@@ -68,10 +70,10 @@ func TestDeprecatedSpellingsWarn(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := []string{
-		`old.toml:7: key model[1].weights: weights = "distance" is deprecated and will not be read by the next release; write vote = "inverse-distance"`,
-		`old.toml:12: key model[2].gamma: gamma = "scale" is deprecated and will not be read by the next release; write gamma = "inverse-variance"`,
-		`old.toml:13: key model[2].coef0: coef0 = 0.5 is deprecated and will not be read by the next release; write offset = 0.5`,
-		`old.toml:19: key model[3].method: method = "statevector" is deprecated and will not be read by the next release; write simulator = "state-vector"`,
+		`old.toml:8: key model[1].weights: weights = "distance" is deprecated and will not be read by the next release; write vote = "inverse-distance"`,
+		`old.toml:13: key model[2].gamma: gamma = "scale" is deprecated and will not be read by the next release; write gamma = "inverse-variance"`,
+		`old.toml:14: key model[2].coef0: coef0 = 0.5 is deprecated and will not be read by the next release; write offset = 0.5`,
+		`old.toml:20: key model[3].method: method = "statevector" is deprecated and will not be read by the next release; write simulator = "state-vector"`,
 	}
 	if !reflect.DeepEqual(old.Warnings, want) {
 		t.Errorf("warnings:\n%s\nwant:\n%s", strings.Join(old.Warnings, "\n"), strings.Join(want, "\n"))

@@ -33,19 +33,17 @@ type Spec struct {
 	Report results.ReportOptions
 
 	// Warnings are located, one-line notes about the spec that do not
-	// stop it ("file:line: key model[2].weights: ... is deprecated ...;
-	// write vote = ..."), in the order of the spec's tables. The command
-	// prints them on standard error and the run's manifest records them.
+	// stop it: what it leaves to a default a reader may not expect (no
+	// pipelines key: the raw features) and old spellings ("file:line: key
+	// model[2].weights: ... is deprecated ...; write vote = ..."), in the
+	// order of the spec's tables. The command prints them once on standard
+	// error and the run's manifest records them.
 	Warnings []string
 
 	File   string // path the spec was read from, or a description of a built-in spec
 	Dir    string // directory relative CSV paths are resolved against ("" = working directory)
 	Source []byte // the spec text as read
 
-	// Warnings are what the spec leaves to a default a reader may not
-	// expect (no pipelines key: the raw features), each naming the file
-	// and key; the command prints them once and the manifest keeps them.
-	Warnings []string
 }
 
 // Dataset selects a dataset and its options.

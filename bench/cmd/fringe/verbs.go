@@ -132,17 +132,18 @@ func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	return execute(ctx, s, rf, append([]string{"fringe", "run"}, args...), stdout, stderr)
 }
 
-// loadSpec reads and validates a spec file and prints its warnings (old
-// spellings of model keys, located) on stderr, one line each.
+// loadSpec reads and validates a spec file. Its warnings (old spellings,
+// no pipelines) are printed by printWarnings once the verb has checked
+// the spec further, so that bad input stays a one-line message.
 func loadSpec(path string, stderr io.Writer) (*spec.Spec, error) {
-	s, err := spec.Load(path)
-	if err != nil {
-		return nil, err
-	}
+	return spec.Load(path)
+}
+
+// printWarnings prints the spec's warnings on stderr, one line each.
+func printWarnings(s *spec.Spec, stderr io.Writer) {
 	for _, w := range s.Warnings {
 		fmt.Fprintln(stderr, "fringe: warning:", w)
 	}
-	return s, nil
 }
 
 func helpOK(err error) error {

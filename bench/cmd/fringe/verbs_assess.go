@@ -89,9 +89,7 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 		if err != nil {
 			return err
 		}
-		for _, w := range s.Warnings {
-			fmt.Fprintln(stderr, "fringe: warning:", w)
-		}
+		printWarnings(s, stderr)
 		opt.Datasets, opt.Pipelines = s.Datasets, s.Pipelines
 		opt.File, opt.Dir = s.File, s.Dir
 		seedSet := false

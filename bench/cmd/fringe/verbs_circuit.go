@@ -120,6 +120,7 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 	if err != nil {
 		return err
 	}
+	printWarnings(s, stderr)
 	sum, err := export.Circuits(ctx, pl, dir, export.Options{Model: model, Workers: workers})
 	if err != nil {
 		return err

@@ -115,9 +115,7 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 			return err
 		}
 	}
-	for _, w := range s.Warnings {
-		fmt.Fprintln(stderr, "fringe: warning:", w)
-	}
+	printWarnings(s, stderr)
 	for _, w := range pr.Warnings() {
 		fmt.Fprintln(stderr, "fringe: warning:", w)
 	}
@@ -196,7 +194,7 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		return nil
 	}
 	info := runner.RunInfo{Command: cmdline, Workers: rf.workers, Start: pr.Started(), End: end, NoFigures: !rf.figures}
-	if err := runner.Write(pl, out, res, info, s.Warnings); err != nil {
+	if err := runner.Write(pl, out, res, info, nil); err != nil {
 		return err
 	}
 	if err := pr.Remove(); err != nil {
@@ -312,7 +310,7 @@ func runMerge(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if info.Start.IsZero() {
 		info.Start = start
 	}
-	if err := runner.Write(m.Plan, dir, m.Results, info, m.Plan.Spec.Warnings); err != nil {
+	if err := runner.Write(m.Plan, dir, m.Results, info, nil); err != nil {
 		return err
 	}
 	if !*quiet {
@@ -369,6 +367,7 @@ func runSlurm(ctx context.Context, c *command, args []string, stdout, stderr io.
 	if err != nil {
 		return err
 	}
+	printWarnings(s, stderr)
 	if o.Shards >= 1 && o.Shards <= plan.MaxShards {
 		if _, err := pl.ShardTasks(plan.Shard{I: 1, N: o.Shards}); err != nil {
 			return err

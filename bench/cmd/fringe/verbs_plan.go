@@ -288,11 +288,11 @@ func alternatives(pl *plan.Plan, q *qkernel.Classifier, m plan.ModelCost) []alte
 		out = append(out, alternative{`mode = "exact" (the same probabilities in closed form)`, func(q *qkernel.Classifier) { q.Mode, q.Method = qkernel.ModeExact, sim.Auto }})
 	}
 	if !q.Noise.IsZero() {
-		out = append(out, alternative{`closed-form channels instead of gate-level noise (noise = { global_depolarizing = p, ancilla_dephasing = lambda, readout = [p01, p10] }, without depolarizing, amplitude_damping, phase_damping or method)`,
+		out = append(out, alternative{`closed-form channels instead of gate-level noise (noise = { global_depolarizing = p, ancilla_dephasing = lambda, readout = [p01, p10] }, without depolarizing, amplitude_damping, phase_damping or simulator)`,
 			func(q *qkernel.Classifier) { q.Noise, q.Method, q.Trajectories = sim.NoiseModel{}, sim.Auto, 0 }})
 	}
 	if strings.Contains(m.Simulator, "density matrix") && !q.Noise.IsZero() {
-		out = append(out, alternative{fmt.Sprintf(`method = "trajectories" (%d trajectories unless trajectories = T is set)`, sim.DefaultTrajectories), func(q *qkernel.Classifier) { q.Method = sim.Trajectories }})
+		out = append(out, alternative{fmt.Sprintf(`simulator = "trajectories" (%d trajectories unless trajectories = T is set)`, sim.DefaultTrajectories), func(q *qkernel.Classifier) { q.Method = sim.Trajectories }})
 	}
 	if strings.Contains(m.Simulator, "trajectories") {
 		t := q.Trajectories
@@ -303,7 +303,7 @@ func alternatives(pl *plan.Plan, q *qkernel.Classifier, m plan.ModelCost) []alte
 			out = append(out, alternative{fmt.Sprintf("trajectories = %d (now %d; the sampling error of a probability grows as 1/sqrt(T))", t/4, t), func(q *qkernel.Classifier) { q.Trajectories = t / 4 }})
 		}
 		if m.Qubits <= sim.MaxDensityQubits {
-			out = append(out, alternative{`method = "density" (the exact noisy state; 4^n entries)`, func(q *qkernel.Classifier) { q.Method, q.Trajectories = sim.DensityMatrix, 0 }})
+			out = append(out, alternative{`simulator = "density-matrix" (the exact noisy state; 4^n entries)`, func(q *qkernel.Classifier) { q.Method, q.Trajectories = sim.DensityMatrix, 0 }})
 		}
 	}
 	classes := 2
