@@ -18,6 +18,13 @@ type gate struct {
 
 func (g gate) two() bool { return g.c >= 0 }
 
+// endpoint is a front or extended-set gate while SWAP candidates are
+// scored: the physical qubits it acts on and their distance.
+type endpoint struct {
+	a, b int16
+	d    int32
+}
+
 // toGates converts decomposed operations (no UCRY).
 func toGates(ops []circuit.Op) []gate {
 	out := make([]gate, len(ops))
@@ -321,6 +328,7 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 	cand := make([][2]int16, 0, 32)
 	candSeen := make([]uint32, r.k*r.k)
 	candStamp := uint32(0)
+	ends := make([]endpoint, 0, 64)
 	ext := make([]int32, 0, E)
 	queue := make([]int32, 0, 64)
 	swaps, stuck, sinceReset := 0, 0, 0
@@ -440,30 +448,54 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 				}
 			}
 		}
+		// Score every candidate by the change it makes: a swap (p, q)
+		// moves only the gates with a qubit on p or q, so the sums of
+		// distances are the current ones plus the changes of those gates
+		// (the same integers as summing every gate again, hence the same
+		// choice). ends holds the front's gates, then the extended set's,
+		// as (physical qubit, physical qubit, distance).
+		ends = ends[:0]
+		var sf0, se0 int32
+		for _, gi := range front {
+			g := gates[gi]
+			e := endpoint{a: l2p[g.t], b: l2p[g.c]}
+			e.d = r.d(e.a, e.b)
+			sf0 += e.d
+			ends = append(ends, e)
+		}
+		nf := len(ends)
+		for _, gi := range ext {
+			g := gates[gi]
+			e := endpoint{a: l2p[g.t], b: l2p[g.c]}
+			e.d = r.d(e.a, e.b)
+			se0 += e.d
+			ends = append(ends, e)
+		}
+		moved := func(e endpoint, p, q int16) int32 {
+			switch {
+			case e.a == p && e.b != q:
+				return r.d(q, e.b) - e.d
+			case e.a == q && e.b != p:
+				return r.d(p, e.b) - e.d
+			case e.b == p && e.a != q:
+				return r.d(e.a, q) - e.d
+			case e.b == q && e.a != p:
+				return r.d(e.a, p) - e.d
+			}
+			return 0 // untouched, or the gate on (p, q) itself
+		}
 		best, bestH := 0, 0.0
 		for ci, c := range cand {
 			p, q := c[0], c[1]
-			pos := func(x int16) int16 {
-				switch v := l2p[x]; v {
-				case p:
-					return q
-				case q:
-					return p
-				default:
-					return v
-				}
+			sf, se := sf0, se0
+			for _, e := range ends[:nf] {
+				sf += moved(e, p, q)
 			}
-			var sf, se int32
-			for _, gi := range front {
-				g := gates[gi]
-				sf += r.d(pos(g.t), pos(g.c))
+			for _, e := range ends[nf:] {
+				se += moved(e, p, q)
 			}
 			h := float64(sf) / float64(len(front))
 			if len(ext) > 0 {
-				for _, gi := range ext {
-					g := gates[gi]
-					se += r.d(pos(g.t), pos(g.c))
-				}
 				h += W * float64(se) / float64(len(ext))
 			}
 			h *= max(decay[p], decay[q])
