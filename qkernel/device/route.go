@@ -18,11 +18,15 @@ type gate struct {
 
 func (g gate) two() bool { return g.c >= 0 }
 
-// endpoint is a front or extended-set gate while SWAP candidates are
-// scored: the physical qubits it acts on and their distance.
+// endpoint is one end of a front or extended-set gate while SWAP
+// candidates are scored: the physical qubit at the other end, the gate's
+// distance, whether it is in the extended set, and the next entry listed
+// at the same qubit (-1: none).
 type endpoint struct {
-	a, b int16
-	d    int32
+	other int16
+	ext   bool
+	d     int32
+	next  int32
 }
 
 // toGates converts decomposed operations (no UCRY).
@@ -329,6 +333,11 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 	candSeen := make([]uint32, r.k*r.k)
 	candStamp := uint32(0)
 	ends := make([]endpoint, 0, 64)
+	head := make([]int32, r.k) // per physical qubit: its first entry in ends, -1 none
+	for i := range head {
+		head[i] = -1
+	}
+	touched := make([]int16, 0, 64)
 	ext := make([]int32, 0, E)
 	queue := make([]int32, 0, 64)
 	swaps, stuck, sinceReset := 0, 0, 0
@@ -452,47 +461,48 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 		// moves only the gates with a qubit on p or q, so the sums of
 		// distances are the current ones plus the changes of those gates
 		// (the same integers as summing every gate again, hence the same
-		// choice). ends holds the front's gates, then the extended set's,
-		// as (physical qubit, physical qubit, distance).
+		// choice). Each front and extended-set gate is listed at both of
+		// its physical qubits (head, ends: linked lists in flat arrays).
 		ends = ends[:0]
 		var sf0, se0 int32
-		for _, gi := range front {
+		list := func(gi int32, ext bool) int32 {
 			g := gates[gi]
-			e := endpoint{a: l2p[g.t], b: l2p[g.c]}
-			e.d = r.d(e.a, e.b)
-			sf0 += e.d
-			ends = append(ends, e)
-		}
-		nf := len(ends)
-		for _, gi := range ext {
-			g := gates[gi]
-			e := endpoint{a: l2p[g.t], b: l2p[g.c]}
-			e.d = r.d(e.a, e.b)
-			se0 += e.d
-			ends = append(ends, e)
-		}
-		moved := func(e endpoint, p, q int16) int32 {
-			switch {
-			case e.a == p && e.b != q:
-				return r.d(q, e.b) - e.d
-			case e.a == q && e.b != p:
-				return r.d(p, e.b) - e.d
-			case e.b == p && e.a != q:
-				return r.d(e.a, q) - e.d
-			case e.b == q && e.a != p:
-				return r.d(e.a, p) - e.d
+			a, b := l2p[g.t], l2p[g.c]
+			d := r.d(a, b)
+			if head[a] < 0 {
+				touched = append(touched, a)
 			}
-			return 0 // untouched, or the gate on (p, q) itself
+			ends = append(ends, endpoint{other: b, d: d, ext: ext, next: head[a]})
+			head[a] = int32(len(ends) - 1)
+			if head[b] < 0 {
+				touched = append(touched, b)
+			}
+			ends = append(ends, endpoint{other: a, d: d, ext: ext, next: head[b]})
+			head[b] = int32(len(ends) - 1)
+			return d
+		}
+		for _, gi := range front {
+			sf0 += list(gi, false)
+		}
+		for _, gi := range ext {
+			se0 += list(gi, true)
 		}
 		best, bestH := 0, 0.0
 		for ci, c := range cand {
 			p, q := c[0], c[1]
 			sf, se := sf0, se0
-			for _, e := range ends[:nf] {
-				sf += moved(e, p, q)
-			}
-			for _, e := range ends[nf:] {
-				se += moved(e, p, q)
+			for _, pq := range [2][2]int16{{p, q}, {q, p}} {
+				for e := head[pq[0]]; e >= 0; e = ends[e].next {
+					en := &ends[e]
+					if en.other == pq[1] {
+						continue // the gate on (p, q) keeps its distance
+					}
+					if delta := r.d(pq[1], en.other) - en.d; en.ext {
+						se += delta
+					} else {
+						sf += delta
+					}
+				}
 			}
 			h := float64(sf) / float64(len(front))
 			if len(ext) > 0 {
@@ -503,6 +513,10 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 				best, bestH = ci, h
 			}
 		}
+		for _, x := range touched {
+			head[x] = -1
+		}
+		touched = touched[:0]
 		p, q := cand[best][0], cand[best][1]
 		doSwap(p, q)
 		decay[p] += delta
