@@ -34,7 +34,7 @@ var allowed = map[string][]string{
 	"bench/input":  {},
 	"bench/outdir": {"results"},
 	"bench/modelkit": {"bench/input", "bench/cv",
-		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/sim"},
+		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/device", "qkernel/sim"},
 	"bench/spec": {"bench/input", "bench/modelkit", "datasets", "results"},
 	"bench/plan": {"bench/input", "bench/spec", "bench/modelkit", "bench/cv",
 		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/sim"},

@@ -75,6 +75,14 @@ func ConfusionFromCounts(prep0, prep1 [2]int) (Confusion, error) {
 	return c, nil
 }
 
+// Validate checks c as an invertible readout model: entries in [0, 1],
+// columns summing to 1 (within 1e-9), p01 + p10 < 1. The error wraps
+// ErrConfusion.
+func (c Confusion) Validate() error {
+	_, err := c.check()
+	return err
+}
+
 // check validates c as an invertible readout model and returns its
 // determinant 1 - p01 - p10.
 func (c Confusion) check() (float64, error) {
