@@ -46,7 +46,7 @@ var allowed = map[string][]string{
 		"datasets", "qkernel", "qkernel/circuit", "qkernel/device", "results"},
 	"bench/assess": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/runner", "bench/report",
 		"bench/export", "bench/outdir", "bench/stats",
-		"datasets", "qkernel", "qkernel/circuit", "qkernel/device", "results"},
+		"datasets", "qkernel", "qkernel/circuit", "qkernel/device", "qkernel/sim", "results"},
 	"bench/cluster": {"bench/input", "bench/plan"},
 	// Helpers shared by the harness's tests (imported by tests only).
 	"bench/internal/benchtest": {"bench/input", "bench/spec", "bench/plan"},

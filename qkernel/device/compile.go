@@ -87,8 +87,11 @@ type Resources struct {
 	// Swaps counts the SWAPs routing inserted (each is three two-qubit
 	// native gates in TwoQubit, fewer where they cancel); 0 before.
 	Swaps int
-	// SingleQubit counts the one-qubit gates (virtual rz included).
+	// SingleQubit counts the one-qubit gates (virtual rz included);
+	// Virtual counts the virtual rz among them (frame changes of no
+	// duration and no error: see Device.VirtualRZ).
 	SingleQubit  int
+	Virtual      int
 	Measurements int
 	// Depth is the number of gate layers when every gate runs as early as
 	// its qubits allow (measurements excluded).
@@ -537,7 +540,41 @@ func (p *Program) gateNS(g gate) float64 {
 
 // nativeResources counts the native program.
 func (p *Program) nativeResources() Resources {
-	return count(p.native, len(p.Region), p.Device.Family.TwoQubit().String(), p.gateNS)
+	r := count(p.native, len(p.Region), p.Device.Family.TwoQubit().String(), p.gateNS)
+	if p.Device.VirtualRZ {
+		for _, g := range p.native {
+			if g.kind == circuit.RZ {
+				r.Virtual++
+			}
+		}
+	}
+	return r
+}
+
+// Fidelity estimates the probability that nothing of the routed program
+// fails on the device: the product over its native gates of 1 - r (r the
+// gate's error rate in the description: the qubit's for a one-qubit
+// gate, the edge's for a two-qubit gate; a virtual rz has none) and over
+// its measured qubits of 1 - (p01 + p10)/2 (the average readout error).
+// It leaves out relaxation while qubits wait (Noisy simulates it) and
+// treats errors as independent (common practice for a rough success
+// estimate): an estimate, not a simulation.
+func (p *Program) Fidelity() float64 {
+	d := p.Device
+	f := 1.0
+	for _, g := range p.native {
+		switch {
+		case g.kind == circuit.Measure:
+			q := d.Qubits[p.Region[g.t]]
+			f *= 1 - (q.ReadoutP01+q.ReadoutP10)/2
+		case g.two():
+			f *= 1 - d.Edges[d.EdgeIndex(p.Region[g.t], p.Region[g.c])].Error
+		case g.kind == circuit.RZ && d.VirtualRZ:
+		default:
+			f *= 1 - d.Qubits[p.Region[g.t]].Error
+		}
+	}
+	return f
 }
 
 // count computes the resources of gates on n qubits with the ASAP

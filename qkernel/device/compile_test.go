@@ -314,3 +314,40 @@ func TestCompileTooSmall(t *testing.T) {
 		t.Errorf("17 qubits on 16: error %v, want ErrTooSmall", err)
 	}
 }
+
+// TestFidelity: Program.Fidelity is the product of 1 - error over the
+// routed program's gates and of 1 - (p01 + p10)/2 over its measured
+// qubits, recomputed here from the operations of Program.Circuit (on the
+// device's qubits) and the description's rates (derived by hand from the
+// definition); virtual rz count for nothing, and Resources.Virtual counts
+// them.
+func TestFidelity(t *testing.T) {
+	for _, name := range Names() {
+		dev, _ := Load(name)
+		p, err := Compile(smallCase(t, "iris", 4), dev, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, virtual := 1.0, 0
+		for _, op := range p.Circuit().Ops {
+			switch {
+			case op.Gate == circuit.Measure:
+				q := dev.Qubits[op.Target]
+				want *= 1 - (q.ReadoutP01+q.ReadoutP10)/2
+			case len(op.Controls) == 1:
+				want *= 1 - dev.Edges[dev.EdgeIndex(op.Target, op.Controls[0])].Error
+			case op.Gate == circuit.RZ && dev.VirtualRZ:
+				virtual++
+			default:
+				want *= 1 - dev.Qubits[op.Target].Error
+			}
+		}
+		// 1e-12: the same products in another order.
+		if got := p.Fidelity(); math.Abs(got-want) > 1e-12 || !(got > 0 && got < 1) {
+			t.Errorf("%s: fidelity %v, want %v", name, got, want)
+		}
+		if p.After.Virtual != virtual {
+			t.Errorf("%s: %d virtual rz, counted %d", name, virtual, p.After.Virtual)
+		}
+	}
+}

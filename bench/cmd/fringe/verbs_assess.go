@@ -30,6 +30,7 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	weights := fs.String("weights", "balanced", "index weights of the assessed form: balanced (1/(C*M_k)) or uniform (as published)")
 	ratio := fs.Float64("ratio", 10, "p2/p1: two-qubit over single-qubit error rate in the noise budget")
 	workers := fs.Int("workers", runtime.NumCPU(), "concurrent tasks")
+	devName, devInstances := assessDeviceFlags(fs)
 	quiet := fs.Bool("quiet", false, "print nothing but errors")
 	pos, err := parse(fs, args, stderr)
 	if err != nil {
@@ -60,6 +61,9 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	}
 	if opt.Subsets, err = parseInts(*subsetsFlag); err != nil {
 		return usagef("-subsets: %v", err)
+	}
+	if err := setAssessDevice(fs, &opt, *devName, *devInstances); err != nil {
+		return err
 	}
 	dir := filepath.Join("fringe-out", "assess")
 	if len(pos) == 1 {
