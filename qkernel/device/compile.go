@@ -107,9 +107,8 @@ type Resources struct {
 // Program is a circuit compiled to a device.
 type Program struct {
 	Device *Device
-	// Logical is the decomposed logical circuit (circuit.Decompose of the
-	// input: dead gates removed), on logical qubits.
-	Logical *circuit.Circuit
+	// Regs are the logical circuit's registers (on logical qubits).
+	Regs circuit.Layout
 	// Region lists the physical qubits the program uses (the placement's
 	// region); routing never leaves it.
 	Region []int
@@ -119,8 +118,18 @@ type Program struct {
 	// Before are the resources of Logical, After those of Circuit.
 	Before, After Resources
 
-	native []gate         // the routed native gates on local qubits 0..len(Region)-1
-	regs   circuit.Layout // the registers' final local qubits
+	native  []gate         // the routed native gates on local qubits 0..len(Region)-1
+	regs    circuit.Layout // the registers' final local qubits
+	logical []gate         // the decomposed logical circuit's gates (measurements included)
+	nLog    int            // its qubits
+}
+
+// Logical returns the decomposed logical circuit the program was compiled
+// from (circuit.Decompose of the input: dead gates removed), on logical
+// qubits. Each call builds a new circuit (the program keeps its gates in
+// a compact form, which the garbage collector need not scan).
+func (p *Program) Logical() *circuit.Circuit {
+	return &circuit.Circuit{NQubits: p.nLog, Regs: cloneLayout(p.Regs), Ops: toOps(p.logical, nil)}
 }
 
 // Circuit returns the native, routed circuit on the device's qubits
@@ -146,8 +155,8 @@ func (p *Program) Compact() *circuit.Circuit {
 // Compile compiles a circuit of package circuit (as built by
 // circuit.Compile) to the device:
 //
-//  1. Decompose it (circuit.Decompose: Gray-code expansion, dead gates
-//     removed).
+//  1. Decompose it (circuit.Decompose, read as DecomposeElementary:
+//     Gray-code expansion, dead gates removed).
 //  2. Place: choose a connected region of as many physical qubits as the
 //     circuit has (Device.region) and map the logical qubits onto it,
 //     the most interacting ones first, each where its two-qubit gates to
@@ -174,8 +183,8 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 	if err := c.Validate(); err != nil {
 		return nil, err
 	}
-	logical := c.Decompose()
-	n := logical.NQubits
+	elems := c.DecomposeElementary()
+	n := c.NQubits
 	region, err := d.region(n)
 	if err != nil {
 		return nil, err
@@ -185,9 +194,15 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 	// so they are taken out of routing and written at the end, on the
 	// qubits' final places: a SWAP may then pass through a qubit whose
 	// measurement was due earlier.
-	var gates []gate
+	logGates := make([]gate, len(elems))
+	for i, e := range elems {
+		logGates[i] = gate{kind: e.Gate, t: int16(e.Target), c: int16(e.Control), angle: e.Angle}
+	}
+	elems = nil
+	regs := cloneLayout(c.Regs)
 	var measured []int16
-	for _, g := range toGates(logical.Ops) {
+	gates := make([]gate, 0, len(logGates))
+	for _, g := range logGates {
 		if g.kind == circuit.Measure {
 			measured = append(measured, g.t)
 			continue
@@ -215,68 +230,55 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 			_, l2p, _ = r.route(bwd, m, false)
 		}
 	}
-	routed, final, swaps := r.route(gates, l2p, true)
-	for _, q := range measured {
-		routed = append(routed, gate{kind: circuit.Measure, t: final[q], c: -1})
-	}
-
-	// Write SWAP as three CNOTs (the first and last in a native
-	// orientation) and cancel CNOT pairs on this routed form, where they
+	// Route, writing SWAP as three CNOTs (the first and last in a native
+	// orientation), and cancel CNOT pairs on this routed form, where they
 	// are found before the translation's one-qubit gates can stand between
 	// them (CNOT pairs of a reversed orientation would otherwise meet only
-	// after their Hadamards merged away); then translate, merge the
-	// one-qubit runs, and cancel the native pairs that are left, repeating
-	// while pairs cancel.
+	// after their Hadamards merged away); translate and merge the
+	// one-qubit runs as routing goes (routeAndTranslate); then cancel the
+	// native pairs that are left, repeating while pairs cancel.
 	native := func(a, b int16) bool { return d.Native(region[a], region[b]) }
 	two := 0
-	for _, g := range routed {
-		switch g.kind {
-		case circuit.CNOT:
+	for _, g := range gates {
+		if g.two() {
 			two++
-		case circuit.SWAP:
-			two += 3
 		}
 	}
-	cx := make([]gate, 0, len(routed)+2*swaps)
-	for _, g := range routed {
-		if g.kind != circuit.SWAP {
-			cx = append(cx, g)
-			continue
-		}
-		a, b := g.c, g.t
-		if !native(a, b) {
-			a, b = b, a
-		}
-		cx = append(cx, gate{kind: circuit.CNOT, c: a, t: b}, gate{kind: circuit.CNOT, c: b, t: a}, gate{kind: circuit.CNOT, c: a, t: b})
-	}
-	routed = nil
-	cancelPairs(cx, n)
 	// Every two-qubit gate ends at most two runs of at most five gates;
-	// about three per two-qubit gate is typical of the rz-sx-x-cx family.
+	// about three per two-qubit gate is typical of the rz-sx-x-cx family;
+	// routing adds two-qubit gates (the merger grows by chunks beyond).
 	m := newMerger(d.Family, n, 7*two+5*n)
-	for _, g := range cx {
-		switch g.kind {
-		case dropped:
-		case circuit.Measure:
-			m.emit(g)
-		case circuit.CNOT:
-			m.cnot(g.c, g.t, native(g.c, g.t))
-		default:
-			m.one(g.t, gateMat2(g.kind, g.angle))
+	m.sched = newSchedule(d, region)
+	logRes := make(chan Resources, 1)
+	go func() { logRes <- d.logicalResources(logGates, n) }()
+	out, final, swaps := routeAndTranslate(r, gates, l2p, measured, m, native)
+	// Native pairs the routed form did not cancel meet only where a
+	// one-qubit run between them merged into the identity: the routed
+	// form's two-qubit gates, with a run between two of them on a qubit
+	// wherever the routed form had a one-qubit gate there (and more: the
+	// Hadamards of reversed CNOTs and the RY(±pi/2) around cz) unless it
+	// vanished; the other rules of cancelPairs are those the routed form
+	// was cancelled by. So cancelPairs runs only when a run vanished
+	// (TestNoPairsLeft checks the result).
+	cancelled := false
+	if m.emptied {
+		for cancelPairs(out, n) {
+			out = remerge(out, d.Family, n)
+			cancelled = true
 		}
 	}
-	out := m.finish()
-	for cancelPairs(out, n) {
-		out = remerge(out, d.Family, n)
-	}
-	p := &Program{Device: d, Logical: logical, Region: slices.Clone(region), native: out,
-		Initial: make([]int, n), Final: make([]int, n), regs: remap(logical.Regs, final)}
+	p := &Program{Device: d, Regs: regs, Region: slices.Clone(region), native: out, logical: logGates, nLog: n,
+		Initial: make([]int, n), Final: make([]int, n), regs: remap(regs, final)}
 	for q := range n {
 		p.Initial[q] = region[l2p[q]]
 		p.Final[q] = region[final[q]]
 	}
-	p.Before = d.logicalResources(logical)
-	p.After = p.nativeResources()
+	p.Before = <-logRes
+	if cancelled {
+		p.After = p.nativeResources()
+	} else {
+		p.After = m.sched.result() // counted as the merger wrote
+	}
 	p.After.Swaps = swaps
 	return p, nil
 }
@@ -508,7 +510,7 @@ func (d *Device) oneNS(g circuit.Gate, q int) float64 {
 
 // logicalResources counts the logical circuit, with the device's median
 // durations.
-func (d *Device) logicalResources(c *circuit.Circuit) Resources {
+func (d *Device) logicalResources(gs []gate, nq int) Resources {
 	ns1 := make([]float64, d.N())
 	for i, q := range d.Qubits {
 		ns1[i] = q.NS
@@ -518,7 +520,7 @@ func (d *Device) logicalResources(c *circuit.Circuit) Resources {
 		ns2[i] = e.NS
 	}
 	m1, m2 := median(ns1), median(ns2)
-	return count(toGates(c.Ops), c.NQubits, "cx", func(g gate) float64 {
+	return count(gs, nq, "cx", func(g gate) float64 {
 		switch {
 		case g.two():
 			return m2
@@ -538,15 +540,78 @@ func (p *Program) gateNS(g gate) float64 {
 	return d.oneNS(g.kind, p.Region[g.t])
 }
 
-// nativeResources counts the native program.
+// nativeResources counts the native program (schedule).
 func (p *Program) nativeResources() Resources {
-	r := count(p.native, len(p.Region), p.Device.Family.TwoQubit().String(), p.gateNS)
-	if p.Device.VirtualRZ {
-		for _, g := range p.native {
-			if g.kind == circuit.RZ {
-				r.Virtual++
+	s := newSchedule(p.Device, p.Region)
+	for _, g := range p.native {
+		s.add(g)
+	}
+	return s.result()
+}
+
+// schedule computes the resources of native gates on a region as they
+// come: count with the device's durations, written out for the native
+// gates (table lookups instead of a function call per gate: the program
+// of a large circuit has millions), so that the merger can count while it
+// writes.
+type schedule struct {
+	k        int
+	ns1, ns2 []float64 // durations: one-qubit per local qubit, two-qubit per local pair
+	virtual  bool
+	r        Resources
+	used     []bool
+	level    []int32
+	ready    []float64
+}
+
+func newSchedule(d *Device, region []int) *schedule {
+	k := len(region)
+	s := &schedule{k: k, ns1: make([]float64, k), ns2: make([]float64, k*k), virtual: d.VirtualRZ,
+		r: Resources{Gate: d.Family.TwoQubit().String()}, used: make([]bool, k), level: make([]int32, k), ready: make([]float64, k)}
+	for i, q := range region {
+		s.ns1[i] = d.Qubits[q].NS
+		for j, q2 := range region {
+			if e := d.EdgeIndex(q, q2); e >= 0 {
+				s.ns2[i*k+j] = d.Edges[e].NS
 			}
 		}
+	}
+	return s
+}
+
+func (s *schedule) add(g gate) {
+	t := int(g.t)
+	s.used[t] = true
+	switch {
+	case g.kind == circuit.Measure:
+		s.r.Measurements++
+	case g.two():
+		c := int(g.c)
+		s.used[c] = true
+		s.r.TwoQubit++
+		top := max(s.level[t], s.level[c]) + 1
+		end := max(s.ready[t], s.ready[c]) + s.ns2[t*s.k+c]
+		s.level[t], s.level[c], s.ready[t], s.ready[c] = top, top, end, end
+	default:
+		s.r.SingleQubit++
+		ns := s.ns1[t]
+		if s.virtual && g.kind == circuit.RZ {
+			s.r.Virtual++
+			ns = 0
+		}
+		s.level[t]++
+		s.ready[t] += ns
+	}
+}
+
+func (s *schedule) result() Resources {
+	r := s.r
+	for q := range s.k {
+		if s.used[q] {
+			r.Qubits++
+		}
+		r.Depth = max(r.Depth, int(s.level[q]))
+		r.DurationNS = max(r.DurationNS, s.ready[q])
 	}
 	return r
 }
@@ -633,7 +698,7 @@ func (r Resources) String() string {
 // starts and ends; the measurements write ancilla_out and class_out from
 // the registers' final places.
 func (p *Program) QASM(version int) (string, error) {
-	l := p.Logical.Regs
+	l := p.Regs
 	var start, end []string
 	name := func(reg string, qs []int) {
 		for i, q := range qs {

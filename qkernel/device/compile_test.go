@@ -8,6 +8,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"reflect"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -348,6 +349,37 @@ func TestFidelity(t *testing.T) {
 		}
 		if p.After.Virtual != virtual {
 			t.Errorf("%s: %d virtual rz, counted %d", name, virtual, p.After.Virtual)
+		}
+	}
+}
+
+// TestNoPairsLeft: a compiled program is a fixed point of the
+// cancellation: cancelPairs finds no pair in it (Compile runs it only when
+// a one-qubit run merged into the identity), and circuit.Simplify removes
+// none of its two-qubit gates, on every embedded device for small and
+// medium cases of several datasets.
+func TestNoPairsLeft(t *testing.T) {
+	for _, name := range Names() {
+		dev, _ := Load(name)
+		for _, tc := range []struct {
+			data string
+			m    int
+		}{{"iris", 4}, {"iris", 16}, {"wine", 8}, {"cats", 32}, {"penguins", 64}} {
+			p, err := Compile(smallCase(t, tc.data, tc.m), dev, Options{})
+			if errors.Is(err, ErrTooSmall) {
+				continue
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if cancelPairs(slices.Clone(p.native), len(p.Region)) {
+				t.Errorf("%s %s M=%d: pairs left to cancel", name, tc.data, tc.m)
+			}
+			c := p.Compact()
+			s := circuit.Simplify(c)
+			if a, b := c.Resources(), s.Resources(); a.CNOT != b.CNOT {
+				t.Errorf("%s %s M=%d: Simplify removes two-qubit gates: %d -> %d", name, tc.data, tc.m, a.CNOT, b.CNOT)
+			}
 		}
 	}
 }

@@ -178,6 +178,12 @@ type merger struct {
 	// is written from constSeq, synth's output computed once.
 	konst    []int8
 	constSeq [][]gate
+	// emptied reports that some run synthesised to nothing (the
+	// identity): only then can native two-qubit gates meet that the
+	// routed form did not cancel (see Compile).
+	emptied bool
+	// sched, when set, counts the gates as they are written.
+	sched *schedule
 }
 
 // constMats are the one-qubit gates the two-qubit translations insert
@@ -242,6 +248,7 @@ func (m *merger) oneConst(q int16, k int8) {
 func (m *merger) flush(q int16) {
 	if m.has[q] {
 		m.room(5) // synth writes at most five gates
+		before := len(m.out)
 		if k := m.konst[q]; k >= 0 {
 			for _, g := range m.constSeq[k] {
 				g.t = q
@@ -249,6 +256,12 @@ func (m *merger) flush(q int16) {
 			}
 		} else {
 			m.out = synth(m.out, m.fam, m.pend[q], q)
+		}
+		m.emptied = m.emptied || len(m.out) == before
+		if m.sched != nil {
+			for _, g := range m.out[before:] {
+				m.sched.add(g)
+			}
 		}
 		m.has[q] = false
 		m.flushed++
@@ -262,6 +275,9 @@ func (m *merger) emit(g gate) {
 	}
 	m.room(1)
 	m.out = append(m.out, g)
+	if m.sched != nil {
+		m.sched.add(g)
+	}
 }
 
 func (m *merger) finish() []gate {

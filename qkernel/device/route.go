@@ -12,6 +12,7 @@ import (
 // CNOT), else -1.
 type gate struct {
 	kind  circuit.Gate
+	mark  uint8 // the streaming canceller's (stream.go)
 	t, c  int16
 	angle float64
 }
@@ -237,7 +238,10 @@ func (r *router) place(gates []gate, n int) []int16 {
 // brought together along a shortest path (a release valve against
 // livelock). It returns the routed gates on local qubits (when emit), the
 // final mapping and the number of SWAPs.
-func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int) {
+//
+// With a sink (emit true), the routed gates go to sink in order instead
+// of the returned slice (which is then nil).
+func (r *router) route(all []gate, l2p []int16, emit bool, sink ...func(gate)) ([]gate, []int16, int) {
 	n := len(l2p)
 	l2p = slices.Clone(l2p)
 	// Only two-qubit gates enter the dependency graph. The one-qubit gates
@@ -245,12 +249,31 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 	// place at that time, just before the qubit's next two-qubit gate (or
 	// at the end): on each qubit the order is kept, and a one-qubit gate
 	// commutes with everything on other qubits.
-	gates := make([]gate, 0, len(all))
 	var ones [][]gate   // per logical qubit, its one-qubit gates in order
 	var upto [][2]int32 // per two-qubit gate: one-qubit gates due on (t, c) before it
+	nTwo := 0
 	if emit {
+		per := make([]int, n)
+		for _, g := range all {
+			if g.two() {
+				nTwo++
+			} else {
+				per[g.t]++
+			}
+		}
 		ones = make([][]gate, n)
+		for q := range ones {
+			ones[q] = make([]gate, 0, per[q])
+		}
+		upto = make([][2]int32, 0, nTwo)
+	} else {
+		for _, g := range all {
+			if g.two() {
+				nTwo++
+			}
+		}
 	}
+	gates := make([]gate, 0, nTwo)
 	for _, g := range all {
 		switch {
 		case g.two():
@@ -264,10 +287,14 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 	}
 	done := make([]int32, n) // one-qubit gates written per logical qubit
 	var out []gate
+	put := func(g gate) { out = append(out, g) }
+	if len(sink) > 0 {
+		put = sink[0]
+	}
 	writeOnes := func(q int16, until int32) {
 		for _, g := range ones[q][done[q]:until] {
 			g.t = l2p[q]
-			out = append(out, g)
+			put(g)
 		}
 		done[q] = until
 	}
@@ -307,7 +334,7 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 			last[g.c] = int32(i)
 		}
 	}
-	if emit {
+	if emit && len(sink) == 0 {
 		out = make([]gate, 0, len(all)+len(all)/2)
 	}
 	front := make([]int32, 0, 16)
@@ -379,7 +406,7 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 			l2p[b] = p
 		}
 		if emit {
-			out = append(out, gate{kind: circuit.SWAP, t: q, c: p})
+			put(gate{kind: circuit.SWAP, t: q, c: p})
 		}
 		swaps++
 	}
@@ -400,7 +427,7 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 					writeOnes(g.c, upto[gi][1])
 					pg := g
 					pg.t, pg.c = l2p[g.t], l2p[g.c]
-					out = append(out, pg)
+					put(pg)
 				}
 				progress, ran = true, true
 				for _, s := range succ[gi] {

@@ -59,7 +59,7 @@ func printDeviceResources(w io.Writer, res *export.CircuitResult, ds, pipeline s
 		return &input.Error{Key: "-device", Err: err}
 	}
 	b, a := p.Before, p.After
-	l := p.Logical.Regs
+	l := p.Regs
 	place := func(at []int) string {
 		var parts []string
 		reg := func(name string, qs []int) {
