@@ -69,7 +69,9 @@
 // fixed order, so routing is deterministic; each candidate is scored by
 // the change of the gates it moves, the same integers as a full
 // recount). CNOT pairs that cancel are removed on the routed form (SWAPs
-// written as three CNOTs) before translation. It then writes CNOT natively
+// written as three CNOTs) before translation, and translation runs in a
+// second goroutine beside routing, on every routed gate no later one can
+// cancel (the same program as the sequential passes). It then writes CNOT natively
 // (reversed with four Hadamards on a directed edge, or CZ between
 // RY(-pi/2) and RY(pi/2)), SWAP as three CNOTs, merges every run of
 // one-qubit gates into one unitary re-synthesised in the family (at most
@@ -79,6 +81,8 @@
 // with logical qubit q ending on Program.Final[q] (the measured registers'
 // final places are the routed circuit's Regs); this is tested on every
 // embedded device and small cases of every embedded dataset (1e-10).
+// Program.Logical rebuilds the decomposed logical circuit (the program
+// keeps its gates in a compact form); Program.Regs are its registers.
 //
 // Program.Before and Program.After report qubits, two-qubit gates, SWAPs
 // added, single-qubit gates, depth and duration: the critical path of the

@@ -20,27 +20,34 @@ import (
 // order, so the program is the same whatever the scheduling (the goldens
 // and the equivalence tests check it).
 
-const (
-	chunkBits = 16
-	chunkLen  = 1 << chunkBits
-	// publishEvery is how many gates the router writes between two
-	// publications to the merger.
-	publishEvery = 1 << 13
-)
+// publishEvery is how many gates the router writes between two
+// publications to the merger.
+const publishEvery = 1 << 13
 
-// gateStore is an append-only list of gates in chunks that never move,
-// so that a reader may look at a published prefix while the writer
-// appends.
+// gateStore is an append-only list of gates in chunks of 2^bits that
+// never move, so that a reader may look at a published prefix while the
+// writer appends.
 type gateStore struct {
 	chunks [][]gate
 	n      int32
+	bits   uint
 }
 
-func (s *gateStore) at(i int32) *gate { return &s.chunks[i>>chunkBits][i&(chunkLen-1)] }
+// newGateStore returns a store whose chunks suit about n gates: 2^10 to
+// 2^16 each.
+func newGateStore(n int) *gateStore {
+	bits := uint(10)
+	for bits < 16 && 1<<bits < n {
+		bits++
+	}
+	return &gateStore{bits: bits}
+}
+
+func (s *gateStore) at(i int32) *gate { return &s.chunks[i>>s.bits][i&(1<<s.bits-1)] }
 
 func (s *gateStore) add(g gate) int32 {
-	if int(s.n)&(chunkLen-1) == 0 {
-		s.chunks = append(s.chunks, make([]gate, chunkLen))
+	if int(s.n)&(1<<s.bits-1) == 0 {
+		s.chunks = append(s.chunks, make([]gate, 1<<s.bits))
 	}
 	i := s.n
 	*s.at(i) = g
@@ -206,8 +213,8 @@ type published struct {
 // but the dropped ones, in order to the merger (CNOT translated for its
 // orientation, one-qubit gates merged, measurements written); at the end
 // it returns the merged native gates.
-func translate(m *merger, native func(a, b int16) bool, n int, in <-chan published, out chan<- []gate) {
-	st := &gateStore{}
+func translate(m *merger, native func(a, b int16) bool, n int, bits uint, in <-chan published, out chan<- []gate) {
+	st := &gateStore{bits: bits}
 	cc := newCanceller(st, n)
 	var merged int32
 	step := func(upto int32) {
@@ -245,10 +252,10 @@ func translate(m *merger, native func(a, b int16) bool, n int, in <-chan publish
 // running beside routing. It returns the merged native gates, the final
 // mapping and the SWAPs inserted.
 func routeAndTranslate(r *router, gates []gate, l2p []int16, measured []int16, m *merger, native func(a, b int16) bool) ([]gate, []int16, int) {
-	st := &gateStore{}
+	st := newGateStore(2 * len(gates))
 	ch := make(chan published, 8)
 	res := make(chan []gate, 1)
-	go translate(m, native, len(l2p), ch, res)
+	go translate(m, native, len(l2p), st.bits, ch, res)
 	var last int32
 	put := func(g gate) {
 		st.add(g)
