@@ -33,6 +33,47 @@ type Options struct {
 	// mapping), while routing a long circuit forward and backward in full
 	// triples the routing time.
 	RefineGates int
+	// Trials is the number of placements a circuit of at most
+	// TrialGates two-qubit gates is routed from, keeping the program with
+	// the fewest native two-qubit gates (then the lower depth, then the
+	// shorter duration; ties to the earlier): the placement refined by
+	// Refine rounds, the unrefined placement, and the placement refined
+	// by 2, 3, ... rounds. 0: 5 when Refine is 0, else 1. Larger
+	// circuits are routed once. SABRE's result depends on the initial
+	// mapping; a few starts are cheap for the circuits a device runs.
+	Trials int
+}
+
+// TrialGates is the largest circuit (in two-qubit gates) Compile routes
+// from several placements (Options.Trials).
+const TrialGates = 4096
+
+// trials returns the refinement rounds of each trial for a circuit of
+// two two-qubit gates.
+func (o Options) trials(two int) []int {
+	n := o.Trials
+	if n == 0 {
+		n = 1
+		if o.Refine == 0 {
+			n = 5
+		}
+	}
+	if two > TrialGates {
+		n = 1
+	}
+	out := []int{o.refine()}
+	for k := 0; len(out) < n; k++ {
+		if k == 0 {
+			if o.refine() != 0 {
+				out = append(out, 0)
+			}
+			continue
+		}
+		if k+1 != o.refine() {
+			out = append(out, k+1)
+		}
+	}
+	return out
 }
 
 func (o Options) extendedSet() int {
@@ -209,14 +250,51 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 		}
 		gates = append(gates, g)
 	}
-	l2p := r.place(gates, n)
-	if rounds := opt.refine(); rounds > 0 {
+	two := 0
+	for _, g := range gates {
+		if g.two() {
+			two++
+		}
+	}
+	logRes := make(chan Resources, 1)
+	go func() { logRes <- d.logicalResources(logGates, n) }()
+	place := r.place(gates, n)
+	var best *Program
+	for _, rounds := range opt.trials(two) {
+		p := compileRounds(d, r, region, gates, measured, regs, place, rounds, two, opt)
+		if best == nil || better(p.After, best.After) {
+			best = p
+		}
+	}
+	best.logical, best.nLog = logGates, n
+	best.Before = <-logRes
+	return best, nil
+}
+
+// better reports whether the routed resources a beat b: fewer two-qubit
+// gates, then a lower depth, then a shorter duration.
+func better(a, b Resources) bool {
+	switch {
+	case a.TwoQubit != b.TwoQubit:
+		return a.TwoQubit < b.TwoQubit
+	case a.Depth != b.Depth:
+		return a.Depth < b.Depth
+	}
+	return a.DurationNS < b.DurationNS
+}
+
+// compileRounds refines the placement by the given rounds of reverse
+// traversal, routes, translates and cancels: one trial of Compile.
+func compileRounds(d *Device, r *router, region []int, gates []gate, measured []int16, regs circuit.Layout, place []int16, rounds, two int, opt Options) *Program {
+	n := len(place)
+	l2p := slices.Clone(place)
+	if rounds > 0 {
 		fwd := gates
 		if limit := opt.refineGates(); limit < len(gates) {
-			two := 0
+			k := 0
 			for i, g := range gates {
 				if g.two() {
-					if two++; two > limit {
+					if k++; k > limit {
 						fwd = gates[:i]
 						break
 					}
@@ -238,19 +316,11 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 	// one-qubit runs as routing goes (routeAndTranslate); then cancel the
 	// native pairs that are left, repeating while pairs cancel.
 	native := func(a, b int16) bool { return d.Native(region[a], region[b]) }
-	two := 0
-	for _, g := range gates {
-		if g.two() {
-			two++
-		}
-	}
 	// Every two-qubit gate ends at most two runs of at most five gates;
 	// about three per two-qubit gate is typical of the rz-sx-x-cx family;
 	// routing adds two-qubit gates (the merger grows by chunks beyond).
 	m := newMerger(d.Family, n, 7*two+5*n)
 	m.sched = newSchedule(d, region)
-	logRes := make(chan Resources, 1)
-	go func() { logRes <- d.logicalResources(logGates, n) }()
 	out, final, swaps := routeAndTranslate(r, gates, l2p, measured, m, native)
 	// Native pairs the routed form did not cancel meet only where a
 	// one-qubit run between them merged into the identity: the routed
@@ -267,20 +337,19 @@ func Compile(c *circuit.Circuit, d *Device, opt Options) (*Program, error) {
 			cancelled = true
 		}
 	}
-	p := &Program{Device: d, Regs: regs, Region: slices.Clone(region), native: out, logical: logGates, nLog: n,
+	p := &Program{Device: d, Regs: regs, Region: slices.Clone(region), native: out,
 		Initial: make([]int, n), Final: make([]int, n), regs: remap(regs, final)}
 	for q := range n {
 		p.Initial[q] = region[l2p[q]]
 		p.Final[q] = region[final[q]]
 	}
-	p.Before = <-logRes
 	if cancelled {
 		p.After = p.nativeResources()
 	} else {
 		p.After = m.sched.result() // counted as the merger wrote
 	}
 	p.After.Swaps = swaps
-	return p, nil
+	return p
 }
 
 // remerge rebuilds gates after cancelPairs: the one-qubit runs on each

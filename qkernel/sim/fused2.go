@@ -2,19 +2,40 @@ package sim
 
 import "fringe/qkernel/circuit"
 
-// superRows applies the single-qubit superoperator s to the entries of the
-// row pair (row0, row1) (rows that differ in bit cm only), with the kernel
-// ApplySuperop1 chooses for s, so that every entry gets ApplySuperop1's
-// arithmetic.
-func superRows(row0, row1 []complex128, cm int, s *Superop) {
-	r, real4 := realSuperop(s)
+// rowKernel applies a single-qubit superoperator to a row pair with the
+// kernel ApplySuperop1 chooses for it (phase-covariant real, real or
+// complex), chosen once per superoperator, so that every entry gets
+// ApplySuperop1's arithmetic.
+type rowKernel struct {
+	s    *Superop
+	r    [4][4]float64
+	kind int // 0 phase-covariant real, 1 real, 2 complex
+}
+
+func newRowKernel(s *Superop) *rowKernel {
+	if s == nil {
+		return nil
+	}
+	k := &rowKernel{s: s, kind: 2}
+	var real4 bool
+	k.r, real4 = realSuperop(s)
 	switch {
-	case real4 && phaseCovariant(&r):
-		superPCRows(row0, row1, cm, &r)
+	case real4 && phaseCovariant(&k.r):
+		k.kind = 0
 	case real4:
-		superRealRows(row0, row1, cm, &r)
+		k.kind = 1
+	}
+	return k
+}
+
+func (k *rowKernel) rows(row0, row1 []complex128, cm int) {
+	switch k.kind {
+	case 0:
+		superPCRows(row0, row1, cm, &k.r)
+	case 1:
+		superRealRows(row0, row1, cm, &k.r)
 	default:
-		superComplexRows(row0, row1, cm, s)
+		superComplexRows(row0, row1, cm, k.s)
 	}
 }
 
@@ -50,6 +71,7 @@ func (d *Density) fusedGate2(t, c int, preT, preC *Superop, g circuit.Gate, p fl
 	if min(m1, m2) >= 256 && p != 0 {
 		tr = make([]complex128, D/4)
 	}
+	kt, kc := newRowKernel(preT), newRowKernel(preC)
 	for r := 0; r < D; r++ {
 		if r&mask != 0 {
 			continue
@@ -58,21 +80,23 @@ func (d *Density) fusedGate2(t, c int, preT, preC *Superop, g circuit.Gate, p fl
 		for ab, off := range [4]int{0, m1, m2, mask} {
 			rows[ab] = d.Rho[(r|off)*D : (r|off)*D+D : (r|off)*D+D]
 		}
-		// row pair of the local states (r, r|m) for m = mt or mc.
-		pair := func(m int) [2][2][]complex128 {
-			if m == m1 {
-				return [2][2][]complex128{{rows[0], rows[1]}, {rows[2], rows[3]}}
-			}
-			return [2][2][]complex128{{rows[0], rows[2]}, {rows[1], rows[3]}}
-		}
-		if preT != nil {
-			for _, pr := range pair(mt) {
-				superRows(pr[0], pr[1], mt, preT)
+		// The row pairs of the local states (r, r|m) for m = m1 and m2.
+		if kt != nil {
+			if mt == m1 {
+				kt.rows(rows[0], rows[1], mt)
+				kt.rows(rows[2], rows[3], mt)
+			} else {
+				kt.rows(rows[0], rows[2], mt)
+				kt.rows(rows[1], rows[3], mt)
 			}
 		}
-		if preC != nil {
-			for _, pr := range pair(mc) {
-				superRows(pr[0], pr[1], mc, preC)
+		if kc != nil {
+			if mc == m1 {
+				kc.rows(rows[0], rows[1], mc)
+				kc.rows(rows[2], rows[3], mc)
+			} else {
+				kc.rows(rows[0], rows[2], mc)
+				kc.rows(rows[1], rows[3], mc)
 			}
 		}
 		if !cnot {
