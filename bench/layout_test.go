@@ -34,7 +34,7 @@ var allowed = map[string][]string{
 	"bench/input":  {},
 	"bench/outdir": {"results"},
 	"bench/modelkit": {"bench/input", "bench/cv",
-		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/sim"},
+		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/device", "qkernel/sim"},
 	"bench/spec": {"bench/input", "bench/modelkit", "datasets", "results"},
 	"bench/plan": {"bench/input", "bench/spec", "bench/modelkit", "bench/cv",
 		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/sim"},
@@ -43,16 +43,16 @@ var allowed = map[string][]string{
 	"bench/runner": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/report", "bench/outdir", "bench/stats", "bench/cv",
 		"baselines", "datasets", "qkernel", "results"},
 	"bench/export": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/outdir",
-		"datasets", "qkernel", "qkernel/circuit", "results"},
+		"datasets", "qkernel", "qkernel/circuit", "qkernel/device", "results"},
 	"bench/assess": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/runner", "bench/report",
 		"bench/export", "bench/outdir", "bench/stats",
-		"datasets", "qkernel", "qkernel/circuit", "results"},
+		"datasets", "qkernel", "qkernel/circuit", "qkernel/device", "qkernel/sim", "results"},
 	"bench/cluster": {"bench/input", "bench/plan"},
 	// Helpers shared by the harness's tests (imported by tests only).
 	"bench/internal/benchtest": {"bench/input", "bench/spec", "bench/plan"},
 	"bench/cmd/fringe": {"bench/input", "bench/spec", "bench/modelkit", "bench/plan", "bench/runner", "bench/report",
 		"bench/export", "bench/assess", "bench/cluster", "bench/outdir",
-		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/sim", "results"},
+		"baselines", "datasets", "qkernel", "qkernel/circuit", "qkernel/device", "qkernel/sim", "results"},
 
 	// The ground: the model packages and the writers never import the
 	// harness (DESIGN.md: imports point one way).

@@ -110,8 +110,9 @@ type Classifier struct {
 	// device: compiled to it (device.Compile: placement, SABRE routing,
 	// native gates) and simulated under its calibrated noise
 	// (device.Program.Simulate) with Method and Trajectories. It replaces
-	// Noise and Channels (Validate rejects both together, and Mitigate for
-	// now); nil (the default) changes nothing.
+	// Noise and Channels (Validate rejects both together); with Mitigate
+	// the confusion matrices default to the readout errors of the physical
+	// qubits each row is measured on. Nil (the default) changes nothing.
 	Device *device.Device
 	// Mitigate configures readout-error mitigation: in ModeNoisy the
 	// decision is taken on the mitigated outcome distribution (see

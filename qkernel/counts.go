@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 	"fringe/qkernel/sim"
 )
 
@@ -133,9 +134,12 @@ func (c *Classifier) RowRand(pos int) (*rand.Rand, error) {
 // Detail.Unused is the share of the accepted shots on register values
 // k >= the number of classes.
 //
-// With Mitigate.Readout the counts are mitigated with Mitigate.Confusion
-// (required: the classifier's noise options do not describe a device;
-// see ConfusionFromCounts) by MitigateReadout, the decision is taken on the
+// With Mitigate.Readout the counts are mitigated by MitigateReadout with
+// Mitigate.Confusion (per measured bit; see ConfusionFromCounts) or, with
+// Mitigate.Device, with the matrices of the physical qubits that measured
+// each row's bits (Mitigate.Physical, or the device's own readout
+// errors): the row's circuit is compiled to the device again to find
+// them, as fringe circuit -export -device compiled it; the decision is taken on the
 // mitigated distribution as on exact probabilities (P(a=0) and P(k | acc)
 // from it; nothing accepted when the mitigated P(a=0) is 0), and
 // Detail.Raw holds the decision on the raw counts.
@@ -181,19 +185,23 @@ func (c *Classifier) PredictCounts(X *mat.Dense, counts [][]int) ([]int, []Detai
 		return nil, nil, err
 	}
 	var conf []Confusion
-	if c.Mitigate.Readout {
-		if c.Mitigate.Confusion == nil {
-			return nil, nil, optErr("mitigate", "imported counts need the confusion matrices of their device")
+	mit := c.Mitigate.Readout
+	dev := c.Mitigate.Device
+	if mit {
+		if c.Mitigate.Confusion == nil && dev == nil {
+			return nil, nil, optErr("mitigate", "imported counts need the confusion matrices of their device, or the device they were compiled for")
 		}
-		if conf, err = c.confusion(p.qClass); err != nil {
-			return nil, nil, err
+		if c.Mitigate.Confusion != nil {
+			if conf, err = c.confusion(p.qClass); err != nil {
+				return nil, nil, err
+			}
 		}
 	}
 	pred := make([]int, r)
 	details := make([]Detail, r)
 	backing := make([]float64, r*e.nClass)
 	var rawBacking []float64
-	if conf != nil {
+	if mit {
 		rawBacking = make([]float64, r*e.nClass)
 	}
 	scratchProbs := make([]float64, e.nClass)
@@ -212,17 +220,31 @@ func (c *Classifier) PredictCounts(X *mat.Dense, counts [][]int) ([]int, []Detai
 		}
 		probs := backing[i*e.nClass : (i+1)*e.nClass : (i+1)*e.nClass]
 		dst := probs
-		if conf != nil {
+		if mit {
 			dst = rawBacking[i*e.nClass : (i+1)*e.nClass : (i+1)*e.nClass]
 		}
 		pr, nacc := decideCounts(dst, counts[i][:h], e.present)
 		out := outcome{pred: pr, pacc: float64(nacc) / float64(total), shots: nacc, unused: unusedCounts(counts[i][:h], e.nClass, nacc)}
-		if conf != nil {
+		if mit {
+			rowConf := conf
+			if rowConf == nil {
+				// The physical qubits that measured this row's bits: its
+				// circuit compiled to the device again (deterministic).
+				circ, _, err := c.RowCircuit(X.RawRowView(i), i)
+				if err != nil {
+					return nil, nil, fmt.Errorf("qkernel: predict counts: test row %d: %w", i, err)
+				}
+				prog, err := device.Compile(circ, dev, device.Options{})
+				if err != nil {
+					return nil, nil, fmt.Errorf("qkernel: predict counts: test row %d: %w", i, err)
+				}
+				rowConf = c.physicalConfusion(dev, prog, circ.Regs)
+			}
 			joint := make([]float64, len(counts[i]))
 			for j, n := range counts[i] {
 				joint[j] = float64(n)
 			}
-			pm, err := MitigateReadout(joint, conf)
+			pm, err := MitigateReadout(joint, rowConf)
 			if err != nil {
 				return nil, nil, fmt.Errorf("qkernel: predict counts: test row %d: %w", i, err)
 			}

@@ -32,8 +32,6 @@ func (c *Classifier) validateDevice() error {
 		return optErr("device", "set together with closed-form channels (global_depolarizing, ancilla_dephasing or readout); the device's calibration is the noise model, set one of them")
 	case c.Method == sim.StateVector:
 		return optErr("simulator", "the state-vector simulator is noiseless; a device's noise needs \"density-matrix\" or \"trajectories\" (or \"auto\")")
-	case !c.Mitigate.IsZero():
-		return optErr("mitigate", "readout mitigation on a device is not available yet (the readout errors sit on the physical qubits that routing chose for each row)")
 	}
 	return nil
 }
@@ -56,11 +54,13 @@ func (c *Classifier) devicePlan(p *plan) error {
 }
 
 // deviceSimulate runs a row's compiled circuit on the device under its
-// calibrated noise.
-func (c *Classifier) deviceSimulate(ctx context.Context, circ *circuit.Circuit, p *plan, rng *rand.Rand) (sim.Result, error) {
+// calibrated noise; it also returns the routed program (whose final
+// places say which physical qubits measured the registers).
+func (c *Classifier) deviceSimulate(ctx context.Context, circ *circuit.Circuit, p *plan, rng *rand.Rand) (sim.Result, *device.Program, error) {
 	prog, err := device.Compile(circ, c.Device, device.Options{})
 	if err != nil {
-		return sim.Result{}, err
+		return sim.Result{}, nil, err
 	}
-	return prog.Simulate(ctx, sim.Options{Method: p.method, Trajectories: c.Trajectories, Rng: rng})
+	res, err := prog.Simulate(ctx, sim.Options{Method: p.method, Trajectories: c.Trajectories, Rng: rng})
+	return res, prog, err
 }

@@ -98,8 +98,11 @@
 // from T1 and T2 during gates and idling, readout errors per qubit; the
 // density matrix up to sim.MaxDensityQubits qubits, trajectories above.
 // Noise and Channels must then be zero (Validate), and the circuit must fit
-// the device's largest connected part (Fit: ErrTooLarge). Without a device
-// nothing changes.
+// the device's largest connected part (Fit: ErrTooLarge). Readout
+// mitigation on a device takes, row by row, the confusion matrices of the
+// physical qubits that routing left the ancilla and class register on
+// (Mitigation.Physical, or the device's own readout errors). Without a
+// device nothing changes.
 //
 // This order is checked against a density-matrix run of the same physics
 // (dephasing before the final H, depolarizing after it, readout channels on
@@ -132,7 +135,10 @@
 // decisions; Detail's PAcc, Probs and Unused are the mitigated ones and
 // Detail.Raw holds the unmitigated decision, so a harness can report both.
 // PredictCounts mitigates imported counts with the confusion matrices the
-// caller gives (ConfusionFromCounts turns calibration counts into them).
+// caller gives (ConfusionFromCounts turns calibration counts into them),
+// per measured bit, or per physical qubit of the device the circuits were
+// compiled for (Mitigation.Device: each row's circuit is compiled again
+// to find the qubits that measured it).
 //
 // # Qubits and simulators
 //

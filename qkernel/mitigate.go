@@ -5,6 +5,9 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 )
 
 // Readout mitigation.
@@ -70,6 +73,14 @@ func ConfusionFromCounts(prep0, prep1 [2]int) (Confusion, error) {
 		c[1][j] = float64(n[1]) / float64(tot)
 	}
 	return c, nil
+}
+
+// Validate checks c as an invertible readout model: entries in [0, 1],
+// columns summing to 1 (within 1e-9), p01 + p10 < 1. The error wraps
+// ErrConfusion.
+func (c Confusion) Validate() error {
+	_, err := c.check()
+	return err
 }
 
 // check validates c as an invertible readout model and returns its
@@ -203,20 +214,49 @@ type Mitigation struct {
 	// significant first (Layout.Class order), then the ancilla, so 1 + q
 	// matrices; or a single matrix for every bit. Nil takes them from the
 	// classifier's own readout error (Noise.Readout or Channels.Readout,
-	// the same for every bit). PredictCounts needs them (imported counts
-	// come with their device's matrices, e.g. from ConfusionFromCounts).
+	// the same for every bit) or, on a device, from the physical qubits
+	// (see Physical). PredictCounts needs them or a Device (imported
+	// counts come with their device's matrices, e.g. from
+	// ConfusionFromCounts).
 	Confusion []Confusion
+	// Physical holds one confusion matrix per physical qubit of a device
+	// (len Device.N()): each row's measured bits take the matrices of the
+	// physical qubits that hold them when they are measured (the final
+	// places of the row's routed program, device.Program.Final), since
+	// routing may choose other qubits for other rows. It needs a device:
+	// Classifier.Device in ModeNoisy, Mitigation.Device for
+	// PredictCounts. Nil on a device takes every qubit's own readout
+	// errors from the description (device.Qubit.ReadoutP01, P10). Setting
+	// both Confusion and Physical is an error.
+	Physical []Confusion
+	// Device is, for PredictCounts, the device the rows' circuits were
+	// compiled for (fringe circuit -export -device): each row's circuit is
+	// compiled again (device.Compile is deterministic) to find the
+	// physical qubits that measured its bits. In ModeNoisy the
+	// classifier's own Device is used; a different one here is an error.
+	Device *device.Device
 }
 
 // IsZero reports whether no mitigation is configured.
-func (m Mitigation) IsZero() bool { return !m.Readout && m.Confusion == nil }
+func (m Mitigation) IsZero() bool {
+	return !m.Readout && m.Confusion == nil && m.Physical == nil && m.Device == nil
+}
+
+// mitigationDevice returns the device whose physical qubits the
+// mitigation reads: the classifier's in ModeNoisy, else Mitigate.Device.
+func (c *Classifier) mitigationDevice() *device.Device {
+	if c.Mode == ModeNoisy && c.Device != nil {
+		return c.Device
+	}
+	return c.Mitigate.Device
+}
 
 // validate checks the mitigation options of c (Validate calls it).
 func (c *Classifier) validateMitigation() error {
 	m := c.Mitigate
 	if !m.Readout {
-		if m.Confusion != nil {
-			return optErr("mitigate", "confusion matrices given without readout mitigation")
+		if m.Confusion != nil || m.Physical != nil || m.Device != nil {
+			return optErr("mitigate", "confusion matrices or a device given without readout mitigation")
 		}
 		return nil
 	}
@@ -224,6 +264,35 @@ func (c *Classifier) validateMitigation() error {
 		if _, err := cf.check(); err != nil {
 			return optErr("mitigate", "confusion matrix %d: %v", i, err)
 		}
+	}
+	dev := c.mitigationDevice()
+	if m.Device != nil && c.Mode == ModeNoisy && c.Device != nil && m.Device != c.Device {
+		return optErr("mitigate", "mitigation device %s differs from the classifier's device %s", m.Device.Name, c.Device.Name)
+	}
+	if m.Physical != nil {
+		switch {
+		case m.Confusion != nil:
+			return optErr("mitigate", "confusion matrices given both per measured bit and per physical qubit; give one")
+		case dev == nil:
+			return optErr("mitigate", "confusion matrices per physical qubit need a device")
+		case len(m.Physical) != dev.N():
+			return optErr("mitigate", "%d confusion matrices for the %d physical qubits of device %s", len(m.Physical), dev.N(), dev.Name)
+		}
+		for i, cf := range m.Physical {
+			if _, err := cf.check(); err != nil {
+				return optErr("mitigate", "confusion matrix of physical qubit %d: %v", i, err)
+			}
+		}
+	}
+	if m.Confusion == nil && dev != nil {
+		if m.Physical == nil {
+			for i, q := range dev.Qubits {
+				if _, err := ReadoutConfusion(q.ReadoutP01, q.ReadoutP10).check(); err != nil {
+					return optErr("mitigate", "device %s qubit %d: its readout errors (%v, %v): %v", dev.Name, i, q.ReadoutP01, q.ReadoutP10, err)
+				}
+			}
+		}
+		return nil
 	}
 	if m.Confusion == nil {
 		if c.Mode != ModeNoisy {
@@ -246,10 +315,14 @@ func (c *Classifier) validateMitigation() error {
 // confusion returns the confusion matrices that mitigate outcomes of q
 // class qubits: the configured ones, or the classifier's own readout
 // error. It errors (an *OptionError, key "mitigate") on a count other than
-// 1 or 1+q.
+// 1 or 1+q. On a device without per-bit matrices it returns nil: the
+// matrices depend on the row (physicalConfusion).
 func (c *Classifier) confusion(q int) ([]Confusion, error) {
 	m := c.Mitigate
 	if m.Confusion == nil {
+		if c.mitigationDevice() != nil {
+			return nil, nil
+		}
 		ro := c.Noise.Readout
 		if ro == [2]float64{} {
 			ro = c.Channels.Readout
@@ -260,4 +333,23 @@ func (c *Classifier) confusion(q int) ([]Confusion, error) {
 		return nil, optErr("mitigate", "%d confusion matrices for %d measured bits (1 ancilla + %d class qubits); give 1 or %d", len(m.Confusion), 1+q, q, 1+q)
 	}
 	return m.Confusion, nil
+}
+
+// physicalConfusion returns the confusion matrices of a row's measured
+// bits on a device (class qubits first, least significant first, then the
+// ancilla): those of the physical qubits that hold them at the end of the
+// routed program, from Mitigate.Physical or the device's own readout
+// errors. regs is the logical circuit's layout.
+func (c *Classifier) physicalConfusion(dev *device.Device, prog *device.Program, regs circuit.Layout) []Confusion {
+	bits := append(slices.Clone(regs.Class), regs.Ancilla)
+	out := make([]Confusion, len(bits))
+	for i, lq := range bits {
+		pq := prog.Final[lq]
+		if c.Mitigate.Physical != nil {
+			out[i] = c.Mitigate.Physical[pq]
+		} else {
+			out[i] = ReadoutConfusion(dev.Qubits[pq].ReadoutP01, dev.Qubits[pq].ReadoutP10)
+		}
+	}
+	return out
 }

@@ -126,9 +126,12 @@ func (c *Classifier) gateLevel() bool {
 //     ModeCircuit; Noise, Channels, Method or Trajectories outside
 //     ModeNoisy;
 //   - readout mitigation (key "mitigate") with an invalid confusion matrix,
-//     with confusion matrices but Readout false, or without confusion
-//     matrices outside ModeNoisy or without readout error to invert
-//     (Fit also checks their count against the measured bits).
+//     with confusion matrices or a device but Readout false, with
+//     matrices both per bit and per physical qubit, per physical qubit
+//     without a device or not one per qubit, or without confusion
+//     matrices and without a device outside ModeNoisy or without readout
+//     error to invert (Fit also checks their count against the measured
+//     bits).
 //
 // Fit calls Validate first. Limits that depend on the data (TrainSubset
 // versus the training set, the qubit count) are checked by Fit.

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/floats"
 
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 	"fringe/qkernel/sim"
 )
 
@@ -105,6 +106,7 @@ func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, prob
 
 	// The outcome distribution P(a, k) at index a*2^q + k.
 	var dist []float64
+	var conf []Confusion // the row's confusion matrices (mitigation on a device)
 	if p.gate {
 		train, ysub := s.train, s.ysub
 		if c.TrainSubset == 0 {
@@ -122,7 +124,11 @@ func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, prob
 		}
 		var res sim.Result
 		if c.Device != nil && c.Mode == ModeNoisy {
-			res, err = c.deviceSimulate(ctx, circ, p, rng)
+			var prog *device.Program
+			res, prog, err = c.deviceSimulate(ctx, circ, p, rng)
+			if err == nil && c.mitigates() && c.Mitigate.Confusion == nil {
+				conf = c.physicalConfusion(c.Device, prog, circ.Regs)
+			}
 		} else {
 			res, err = s.share.simulate(ctx, ysub, circ, sim.Options{
 				Noise: noise, Method: p.method, Trajectories: c.Trajectories, Rng: rng,
@@ -184,7 +190,7 @@ func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, prob
 					joint[h+k] = float64(n)
 				}
 			}
-			if err := c.mitigateInto(&out, probs, rawProbs, joint, p.qClass, 0); err != nil {
+			if err := c.mitigateInto(&out, probs, rawProbs, joint, p.qClass, 0, conf); err != nil {
 				return out, err
 			}
 		}
@@ -198,7 +204,7 @@ func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, prob
 	out.pacc = acc
 	out.unused = unusedShare(dist[c.nClass:h], c.nClass, acc, floor)
 	if mit {
-		if err := c.mitigateInto(&out, probs, rawProbs, dist, p.qClass, floor); err != nil {
+		if err := c.mitigateInto(&out, probs, rawProbs, dist, p.qClass, floor, conf); err != nil {
 			return out, err
 		}
 	}
@@ -209,11 +215,15 @@ func (c *Classifier) row(ctx context.Context, p *plan, s *scratch, pos int, prob
 // probabilities are in rawProbs) and replaces it by the decision on the
 // readout-mitigated joint distribution of joint (probabilities or counts,
 // layout a*2^q + k), writing P(k | acc) into probs. floor is the bound at
-// or below which the mitigated P(a = 0) counts as nothing accepted.
-func (c *Classifier) mitigateInto(out *outcome, probs, rawProbs, joint []float64, q int, floor float64) error {
-	conf, err := c.confusion(q)
-	if err != nil {
-		return err
+// or below which the mitigated P(a = 0) counts as nothing accepted. conf
+// holds the row's confusion matrices (on a device), nil for the
+// classifier's (confusion).
+func (c *Classifier) mitigateInto(out *outcome, probs, rawProbs, joint []float64, q int, floor float64, conf []Confusion) error {
+	if conf == nil {
+		var err error
+		if conf, err = c.confusion(q); err != nil {
+			return err
+		}
 	}
 	pm, err := MitigateReadout(joint, conf)
 	if err != nil {

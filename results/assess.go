@@ -64,6 +64,9 @@ type AssessRow struct {
 	Lift                                string // the lift step compared ("lift" or "lift(c)")
 	KTAInterference, KTARBF, RBFGamma   float64
 	Verdict                             string
+	// Device is the full-set circuit on the device of fringe assess
+	// -device (nil without one).
+	Device *AssessDevice
 }
 
 // AssessResource is the circuit of one dataset and pipeline for one
@@ -76,6 +79,7 @@ type AssessResource struct {
 	PaddingWaste               float64
 	CNOT, SingleQubit, Depth   int
 	NoiseBudget                float64
+	Device                     *AssessDevice // on the device of -device; nil without one
 }
 
 // Assessment is a whole report.
@@ -95,6 +99,11 @@ type Assessment struct {
 	Resources         []AssessResource // in dataset, pipeline, size order
 	Figures           []FigureRef
 	Warnings          []string
+	// Device, DeviceNote and DeviceFamily name the device of fringe
+	// assess -device ("" without one); DeviceInstances is the number of
+	// test instances simulated per row and training-set size.
+	Device, DeviceNote, DeviceFamily, DeviceSHA string
+	DeviceInstances                             int
 }
 
 // fmtCSV writes a float for CSV: fixed decimals, "" for NaN, "inf".
@@ -129,11 +138,15 @@ var AssessColumns = []string{
 // order of a.Rows.
 func WriteAssessCSV(w io.Writer, a *Assessment) error {
 	cw := csv.NewWriter(w)
-	cw.Write(AssessColumns)
+	head := AssessColumns
+	if a.Device != "" {
+		head = append(append([]string(nil), AssessColumns...), deviceColumns(a)...)
+	}
+	cw.Write(head)
 	it := strconv.Itoa
 	for _, r := range a.Rows {
 		t := csvTexts(r.Dataset, r.Pipeline, r.Weights, r.Baseline, r.Before, r.Lift, r.Verdict)
-		cw.Write([]string{
+		rec := []string{
 			it(r.Rank), it(r.Front), t[0], t[1], it(r.Instances), it(r.Features), it(r.Classes), it(r.Folds), it(r.Repeats), it(r.TrainSize),
 			it(r.Index), it(r.Data), it(r.Class), it(r.Qubits), Fmt(r.PaddingWaste),
 			it(r.CNOT), it(r.SingleQubit), it(r.Depth), fmtSci(r.NoiseBudget),
@@ -142,7 +155,11 @@ func WriteAssessCSV(w io.Writer, a *Assessment) error {
 			t[3], Fmt(r.BaselineAcc.Mean), Fmt(r.BaselineAcc.Lo), Fmt(r.BaselineAcc.Hi), Fmt(r.Gap), Fmt(r.GapLo), Fmt(r.GapHi), Fmt(r.GapP),
 			t[4], Fmt(r.KNNBefore), Fmt(r.KNNL2), t[5], Fmt(r.KNNLift), Fmt(r.NormOnly), Fmt(r.Chance), Fmt(r.NormShare),
 			Fmt(r.KTAInterference), Fmt(r.KTARBF), Fmt(r.RBFGamma), t[6],
-		})
+		}
+		if a.Device != "" {
+			rec = append(rec, deviceCells(a, r)...)
+		}
+		cw.Write(rec)
 	}
 	cw.Flush()
 	return cw.Error()
@@ -153,13 +170,21 @@ func WriteAssessCSV(w io.Writer, a *Assessment) error {
 // train_subset size.
 func WriteAssessResourcesCSV(w io.Writer, a *Assessment) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"dataset", "pipeline", "train", "full", "qubits_index", "qubits_data", "qubits_class", "qubits",
-		"padding_waste", "cnot", "single_qubit", "depth", "p2_budget"})
+	head := []string{"dataset", "pipeline", "train", "full", "qubits_index", "qubits_data", "qubits_class", "qubits",
+		"padding_waste", "cnot", "single_qubit", "depth", "p2_budget"}
+	if a.Device != "" {
+		head = append(append(head, "device"), deviceResourceColumns...)
+	}
+	cw.Write(head)
 	it := strconv.Itoa
 	for _, r := range a.Resources {
 		t := csvTexts(r.Dataset, r.Pipeline)
-		cw.Write([]string{t[0], t[1], it(r.Train), strconv.FormatBool(r.Full), it(r.Index), it(r.Data), it(r.Class), it(r.Qubits),
-			Fmt(r.PaddingWaste), it(r.CNOT), it(r.SingleQubit), it(r.Depth), fmtSci(r.NoiseBudget)})
+		rec := []string{t[0], t[1], it(r.Train), strconv.FormatBool(r.Full), it(r.Index), it(r.Data), it(r.Class), it(r.Qubits),
+			Fmt(r.PaddingWaste), it(r.CNOT), it(r.SingleQubit), it(r.Depth), fmtSci(r.NoiseBudget)}
+		if a.Device != "" {
+			rec = append(append(rec, csvTexts(a.Device)[0]), deviceResourceCells(r.Device)...)
+		}
+		cw.Write(rec)
 	}
 	cw.Flush()
 	return cw.Error()
@@ -251,6 +276,10 @@ func WriteAssessMarkdown(w io.Writer, a *Assessment) error {
 		}
 		fmt.Fprintf(&b, "| %s | %s | %s | %d = 1 + %d + %d + %d | %s | %d | %d | %d | %s |\n",
 			MDEscape(r.Dataset), MDEscape(r.Pipeline), train, r.Qubits, r.Index, r.Data, r.Class, af3(r.PaddingWaste), r.CNOT, r.SingleQubit, r.Depth, f2e(r.NoiseBudget))
+	}
+
+	if a.Device != "" {
+		writeAssessDeviceMarkdown(&b, a)
 	}
 
 	b.WriteString("\n## Post-selection and shots\n\n")
@@ -413,6 +442,9 @@ func WriteAssessTeX(w io.Writer, a *Assessment) error {
 			texF3(r.PaddingWaste), r.CNOT, r.SingleQubit, r.Depth, texSci(r.NoiseBudget))
 	}
 	b.WriteString("\\bottomrule\n\\end{tabular}\n\\end{table}\n")
+	if a.Device != "" {
+		writeAssessDeviceTeX(&b, a)
+	}
 	_, err := io.WriteString(w, b.String())
 	return err
 }

@@ -29,6 +29,7 @@ type Manifest struct {
 	Workers   int               `json:"workers"`
 	Tasks     int               `json:"tasks"`
 	Datasets  []DatasetRecord   `json:"datasets"`
+	Devices   []DeviceRecord    `json:"devices,omitempty"` // the devices and calibration files of models that name them
 	Start     string            `json:"start"`
 	End       string            `json:"end"`
 	Seconds   float64           `json:"seconds"`
@@ -154,6 +155,20 @@ type DatasetRecord struct {
 	Features  []string `json:"features"`
 	Classes   []string `json:"classes"`
 	Counts    []int    `json:"class_counts"`
+}
+
+// DeviceRecord is the device and calibration of one model in the
+// manifest: the device's name and description file ("" for an embedded
+// device) with the SHA-256 of the description, and the calibration file
+// with its SHA-256 (empty without one).
+type DeviceRecord struct {
+	Model             string `json:"model"`
+	Device            string `json:"device,omitempty"`
+	File              string `json:"file,omitempty"`
+	SHA256            string `json:"sha256,omitempty"`
+	Mitigate          string `json:"mitigate,omitempty"`
+	Calibration       string `json:"calibration,omitempty"`
+	CalibrationSHA256 string `json:"calibration_sha256,omitempty"`
 }
 
 // WriteManifest writes the manifest as indented JSON.

@@ -219,6 +219,15 @@ func ReadFolds(r io.Reader, file string) ([]Fold, error) {
 			return f, err
 		}
 		f.Chosen = rw.text("chosen")
+		if rw.has("mitigation_changed") && strings.TrimSpace(rw.rec[rw.t.col["mitigation_changed"]]) != "" {
+			if f.MitigationChanged, err = rw.integer("mitigation_changed"); err != nil {
+				return f, err
+			}
+			if f.MitigationChanged < 0 || f.MitigationChanged > f.NTest {
+				return f, rw.errAt("mitigation_changed", "want a count from 0 to n_test = %d, got %d", f.NTest, f.MitigationChanged)
+			}
+			f.Mitigated = true
+		}
 		return f, nil
 	})
 }
@@ -282,8 +291,43 @@ func ReadPredictions(r io.Reader, file string) ([]Prediction, error) {
 			}
 		}
 		p.Exact = rw.text("exact_predicted")
+		p.RawPredicted = rw.text("raw_predicted")
+		p.RawPAcc = math.NaN()
+		if p.RawPredicted != "" {
+			if p.RawPAcc, err = rw.number("raw_p_acc"); err != nil {
+				return p, err
+			}
+			if p.RawProbs, err = readProbs(rw, "raw_probs"); err != nil {
+				return p, err
+			}
+		}
 		return p, nil
 	})
+}
+
+// readProbs reads an optional column of probabilities separated by ';'
+// ("nan" entries are NaN; an empty or absent field is nil).
+func readProbs(rw row, col string) ([]float64, error) {
+	if !rw.has(col) {
+		return nil, nil
+	}
+	s := strings.TrimSpace(rw.rec[rw.t.col[col]])
+	if s == "" {
+		return nil, nil
+	}
+	var out []float64
+	for _, f := range strings.Split(s, ";") {
+		if f == "nan" {
+			out = append(out, math.NaN())
+			continue
+		}
+		v, err := strconv.ParseFloat(f, 64)
+		if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+			return nil, rw.errAt(col, "want numbers (or nan) separated by ';', got %q", f)
+		}
+		out = append(out, v)
+	}
+	return out, nil
 }
 
 // ReadSummary reads summary.csv; mean_p_acc is optional.

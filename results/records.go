@@ -28,6 +28,14 @@ type Prediction struct {
 	// model reports none.
 	Unused float64
 	Exact  string // the exact-mode decision of an interference model run another way; "" otherwise
+	// RawPredicted, RawPAcc and RawProbs are the decision before readout
+	// mitigation of a model that mitigates (the fields above are then the
+	// mitigated decision's); "", NaN and nil otherwise. Their columns
+	// (raw_predicted, raw_p_acc, raw_probs) are written only when some
+	// row has one.
+	RawPredicted string
+	RawPAcc      float64
+	RawProbs     []float64
 }
 
 // Fold is one row of folds.csv.
@@ -43,6 +51,12 @@ type Fold struct {
 	// training part ("C=1 gamma=0.1"); "" for an untuned model. The
 	// column is written only when some row has one.
 	Chosen string
+	// Mitigated marks a model with readout mitigation, and
+	// MitigationChanged counts the test instances whose mitigated
+	// decision differs from the raw one. The column mitigation_changed is
+	// written only when some row is mitigated (empty for the others).
+	Mitigated         bool
+	MitigationChanged int
 }
 
 // MetricSummary is a metric's mean, standard deviation and confidence
@@ -85,7 +99,15 @@ func Fmt(v float64) string {
 // WritePredictions writes predictions.csv.
 func WritePredictions(w io.Writer, rows []Prediction) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "unused", "exact_predicted"})
+	head := []string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "unused", "exact_predicted"}
+	raw := false
+	for _, r := range rows {
+		raw = raw || r.RawPredicted != ""
+	}
+	if raw {
+		head = append(head, "raw_predicted", "raw_p_acc", "raw_probs")
+	}
+	cw.Write(head)
 	for _, r := range rows {
 		correct := "0"
 		if r.Label == r.Predicted {
@@ -95,19 +117,28 @@ func WritePredictions(w io.Writer, rows []Prediction) error {
 		if r.Shots > 0 {
 			shots = strconv.Itoa(r.Shots)
 		}
-		probs := make([]string, len(r.Probs))
-		for i, v := range r.Probs {
-			probs[i] = Fmt(v)
-			if math.IsNaN(v) {
-				probs[i] = "nan"
-			}
-		}
 		name := csvTexts(r.Dataset, r.Pipeline, r.Model, r.Label, r.Predicted, r.Exact)
-		cw.Write([]string{name[0], name[1], name[2], strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), Fmt(r.Unused), name[5]})
+		rec := []string{name[0], name[1], name[2], strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
+			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, fmtProbs(r.Probs), Fmt(r.Unused), name[5]}
+		if raw {
+			rec = append(rec, csvTexts(r.RawPredicted)[0], Fmt(r.RawPAcc), fmtProbs(r.RawProbs))
+		}
+		cw.Write(rec)
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// fmtProbs writes class probabilities separated by ';' ("nan" for NaN).
+func fmtProbs(ps []float64) string {
+	out := make([]string, len(ps))
+	for i, v := range ps {
+		out[i] = Fmt(v)
+		if math.IsNaN(v) {
+			out[i] = "nan"
+		}
+	}
+	return strings.Join(out, ";")
 }
 
 // WriteFolds writes folds.csv.
@@ -116,12 +147,16 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 	head := []string{"dataset", "pipeline", "model", "repeat", "fold", "n_train", "n_test"}
 	head = append(head, MetricNames...)
 	head = append(head, "mean_p_acc", "mean_shots", "exact_disagreement")
-	tuned := false
+	tuned, mitigated := false, false
 	for _, r := range rows {
 		tuned = tuned || r.Chosen != ""
+		mitigated = mitigated || r.Mitigated
 	}
 	if tuned {
 		head = append(head, "chosen")
+	}
+	if mitigated {
+		head = append(head, "mitigation_changed")
 	}
 	cw.Write(head)
 	for _, r := range rows {
@@ -133,6 +168,13 @@ func WriteFolds(w io.Writer, rows []Fold) error {
 		rec = append(rec, Fmt(r.MeanPAcc), Fmt(r.MeanShots), Fmt(r.ExactDisagreement))
 		if tuned {
 			rec = append(rec, EscapeCSVCell(r.Chosen))
+		}
+		if mitigated {
+			changed := ""
+			if r.Mitigated {
+				changed = strconv.Itoa(r.MitigationChanged)
+			}
+			rec = append(rec, changed)
 		}
 		cw.Write(rec)
 	}

@@ -20,6 +20,7 @@ import (
 	"fringe/datasets"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 	"fringe/results"
 )
 
@@ -65,6 +66,17 @@ type Options struct {
 	// File and Dir locate a spec the datasets came from: File names it in
 	// errors, Dir resolves relative CSV paths ("" = working directory).
 	File, Dir string
+
+	// Device, when set, adds every circuit compiled to the device (routed
+	// resources, p2 budget and estimated fidelity) and, for every
+	// train_subset size, the classifier's accuracy simulated under the
+	// device's calibrated noise on DeviceInstances test instances (0:
+	// DefaultDeviceInstances; see deviceAccuracy). Nil leaves the report
+	// as it is.
+	Device          *device.Device
+	DeviceInstances int
+
+	ctx context.Context // of Run, for the device simulations
 }
 
 // DefaultMargin is the default equivalence margin of the verdict: a gap
@@ -107,6 +119,9 @@ func (o Options) withDefaults() (Options, error) {
 	if o.File == "" {
 		o.File = "assess"
 	}
+	if o.DeviceInstances == 0 {
+		o.DeviceInstances = DefaultDeviceInstances
+	}
 	bad := func(key, format string, args ...any) error {
 		return &input.Error{Key: key, Err: fmt.Errorf(format, args...)}
 	}
@@ -123,6 +138,8 @@ func (o Options) withDefaults() (Options, error) {
 		return o, bad("ratio", "the ratio p2/p1 must be a finite number >= 1, got %v", o.Ratio)
 	case !(o.Margin > 0 && o.Margin < 1):
 		return o, bad("margin", "the equivalence margin must lie in (0, 1), got %v", o.Margin)
+	case o.DeviceInstances < 0:
+		return o, bad("device-instances", "the number of simulated test instances must be positive, got %d", o.DeviceInstances)
 	}
 	seen := map[string]bool{}
 	for _, d := range o.Datasets {
@@ -230,10 +247,15 @@ func Run(ctx context.Context, opt Options) (*results.Assessment, error) {
 	if err != nil {
 		return nil, err
 	}
+	o = o.withContext(ctx)
 	a := &results.Assessment{
 		Seed: o.Seed, Repeats: o.Repeats, Confidence: Confidence, Ratio: o.Ratio,
 		Weights: "balanced", Level: 1 - report.Alpha, Subsets: o.Subsets, ClassicalPipeline: ClassicalPipeline,
 		Margin: o.Margin,
+	}
+	if o.Device != nil {
+		a.Device, a.DeviceNote, a.DeviceFamily, a.DeviceInstances = o.Device.Name, o.Device.Note, o.Device.Family.String(), o.DeviceInstances
+		a.DeviceSHA = o.Device.SHA256
 	}
 	if o.Uniform {
 		a.Weights = "uniform"
@@ -615,11 +637,24 @@ func circuitResources(row *results.AssessRow, o Options, ad *assessDataset, pi i
 			CNOT:         r.CNOT, SingleQubit: r.SingleQubit, Depth: r.Depth,
 			NoiseBudget: NoiseBudget(r.CNOT, r.SingleQubit, o.Ratio, assessFidelity),
 		}
+		if o.Device != nil {
+			if res.Device, err = deviceResource(o, c); err != nil {
+				return nil, err
+			}
+			if !res.Full {
+				if err := deviceAccuracy(o, ad, pi, m, res.Device, r.Qubits); err != nil {
+					return nil, err
+				}
+			} else if res.Device.Fits {
+				res.Device.Note = "full training part: not simulated"
+			}
+		}
 		out = append(out, res)
 		if res.Full {
 			row.Index, row.Data, row.Class, row.Qubits = res.Index, res.Data, res.Class, res.Qubits
 			row.PaddingWaste = res.PaddingWaste
 			row.CNOT, row.SingleQubit, row.Depth, row.NoiseBudget = res.CNOT, res.SingleQubit, res.Depth, res.NoiseBudget
+			row.Device = res.Device
 		}
 	}
 	return out, nil

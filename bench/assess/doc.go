@@ -15,11 +15,18 @@
 // 0.025); beats or trails when it excludes 0 otherwise; not significantly
 // different when it holds 0 but leaves the band, which is no evidence of
 // equal accuracy. The closed forms behind the criteria are in math.go;
-// Write renders the report files atomically (output.go).
+// Write renders the report files atomically (output.go). With
+// Options.Device every circuit is also compiled to the device and the
+// classifier simulated under its calibrated noise for the train_subset
+// sizes on a sample of test instances (device.go: DefaultDeviceInstances,
+// spread over the folds of the first repeat; circuits beyond the density
+// matrix's 12 qubits are routed but not simulated); without a device the
+// report is unchanged.
 //
 // Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
 // bench/runner (it runs small plans), bench/report, bench/export (the
-// class-balanced subsets of the circuits), bench/outdir, bench/stats and
-// results. It must never import cluster, and nothing but the command
+// class-balanced subsets of the circuits), bench/outdir, bench/stats,
+// results and the model packages (qkernel, qkernel/circuit,
+// qkernel/device, qkernel/sim for the density matrix's limit). It must never import cluster, and nothing but the command
 // imports it.
 package assess

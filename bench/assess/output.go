@@ -26,6 +26,12 @@ type assessManifest struct {
 	Classical  string                  `json:"classical_pipeline"`
 	Datasets   []results.DatasetRecord `json:"datasets"`
 	Warnings   []string                `json:"warnings"`
+	// The device of -device (absent without one): its name and the
+	// SHA-256 of its description, and the test instances simulated per
+	// row and size.
+	Device          string `json:"device,omitempty"`
+	DeviceSHA       string `json:"device_sha256,omitempty"`
+	DeviceInstances int    `json:"device_instances,omitempty"`
 }
 
 // Write writes the assessment into dir: assess.csv,
@@ -48,6 +54,7 @@ func Write(dir string, a *results.Assessment) error {
 		Tool: "fringe assess", Version: runner.Version, Seed: a.Seed, Repeats: a.Repeats, Weights: a.Weights,
 		Ratio: a.Ratio, Confidence: a.Confidence, Margin: a.Margin, Subsets: a.Subsets, Classical: a.ClassicalPipeline,
 		Datasets: a.Datasets, Warnings: append([]string{}, a.Warnings...),
+		Device: a.Device, DeviceSHA: a.DeviceSHA, DeviceInstances: a.DeviceInstances,
 	}
 	files := []outdir.File{
 		{Name: "assess.csv", Render: func(b *bytes.Buffer) error { return results.WriteAssessCSV(b, a) }},

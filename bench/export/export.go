@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -19,6 +20,7 @@ import (
 	"fringe/bench/plan"
 	"fringe/qkernel"
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 	"fringe/results"
 )
 
@@ -34,7 +36,24 @@ type Options struct {
 	Model string
 	// Workers is the number of splits compiled at once; 0 means 1.
 	Workers int
+	// Device, when set, compiles every circuit to the device (placement,
+	// routing, native gates: device.Compile) and writes the native routed
+	// program on the device's qubits; index.csv then gets the columns
+	// DeviceIndexColumns. The measured bits keep their names (ancilla_out,
+	// class_out), so a counts file reads back unchanged.
+	Device *device.Device
+	// QASMVersion is 3 (0 means 3) or 2 (OpenQASM 2.0).
+	QASMVersion int
 }
+
+// DeviceIndexColumns are the columns index.csv adds for an export to a
+// device: the device, the physical qubit that measures ancilla_out[0], the
+// physical qubits that measure class_out[0], class_out[1], ... (in that
+// order), the physical qubit of every logical qubit (ancilla, index, data,
+// class registers in circuit order) before the first gate and after the
+// last (routing's final permutation), and the routed program's two-qubit
+// gates, SWAPs inserted, depth and duration in nanoseconds.
+var DeviceIndexColumns = []string{"device", "ancilla_qubit", "class_qubits", "initial_layout", "final_layout", "two_qubit_gates", "swaps", "depth", "duration_ns"}
 
 // Summary describes a finished export.
 type Summary struct {
@@ -44,7 +63,12 @@ type Summary struct {
 	Balance     bool
 	TrainSubset int
 	MaxQubits   int
-	Bytes       int64 // total size of the OpenQASM files
+	Bytes       int64  // total size of the OpenQASM files
+	Device      string // the device compiled for ("" for none)
+	// MaxTwoQubit and MaxDurationNS are the largest routed program's
+	// two-qubit gates and duration on the device (0 without one).
+	MaxTwoQubit   int
+	MaxDurationNS float64
 }
 
 // exportSettings are the circuit settings of an export.
@@ -198,6 +222,15 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 	index := make([][]string, total)
 	sizes := make([]int64, total)
 	qubits := make([]int, total)
+	twoQ := make([]int, total)
+	durs := make([]float64, total)
+	version := opt.QASMVersion
+	if version == 0 {
+		version = 3
+	}
+	if version != 2 && version != 3 {
+		return nil, fmt.Errorf("export: OpenQASM version %d, want 2 or 3", opt.QASMVersion)
+	}
 	workers := max(1, opt.Workers)
 	g, gctx := errgroup.WithContext(ctx)
 	g.SetLimit(workers)
@@ -216,7 +249,17 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 					name += "-" + outdir.SafeName(it.Pipeline)
 				}
 				name += fmt.Sprintf("-r%d-f%d-row%d.qasm", it.Repeat, it.Fold, it.Row)
-				text, err := exportText(it, set)
+				var text []byte
+				var prog *device.Program
+				var err error
+				if opt.Device == nil {
+					text, err = exportTextVersion(it, set, version)
+				} else {
+					if prog, err = device.Compile(it.Circuit, opt.Device, device.Options{}); err != nil {
+						return &input.Error{Err: fmt.Errorf("dataset %s, pipeline %s, repeat %d, fold %d, row %d: %w", it.Dataset, it.Pipeline, it.Repeat, it.Fold, it.Row, err)}
+					}
+					text, err = deviceText(it, set, prog, version)
+				}
 				if err != nil {
 					return err
 				}
@@ -225,6 +268,10 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 				}
 				index[k] = []string{name, results.EscapeCSVCell(it.Dataset), results.EscapeCSVCell(it.Pipeline), strconv.Itoa(it.Repeat), strconv.Itoa(it.Fold),
 					strconv.Itoa(it.Row), strconv.Itoa(it.Circuit.NQubits), strconv.Itoa(len(it.Circuit.Regs.Class)), joinRows(it.TrainRows)}
+				if prog != nil {
+					index[k] = append(index[k], deviceIndex(it, prog)...)
+					twoQ[k], durs[k] = prog.After.TwoQubit, prog.After.DurationNS
+				}
 				sizes[k], qubits[k] = int64(len(text)), it.Circuit.NQubits
 				k++
 				return nil
@@ -239,7 +286,11 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 	}
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
-	w.Write(IndexColumns)
+	head := IndexColumns
+	if opt.Device != nil {
+		head = append(slices.Clone(IndexColumns), DeviceIndexColumns...)
+	}
+	w.Write(head)
 	w.WriteAll(index)
 	if err := w.Error(); err != nil {
 		return nil, fmt.Errorf("export: index: %w", err)
@@ -252,9 +303,14 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 	}
 	ok = true
 	sum := &Summary{Dir: dir, Circuits: total, Model: set.model, Balance: set.balance, TrainSubset: set.subset}
+	if opt.Device != nil {
+		sum.Device = opt.Device.Name
+	}
 	for k := range sizes {
 		sum.Bytes += sizes[k]
 		sum.MaxQubits = max(sum.MaxQubits, qubits[k])
+		sum.MaxTwoQubit = max(sum.MaxTwoQubit, twoQ[k])
+		sum.MaxDurationNS = max(sum.MaxDurationNS, durs[k])
 	}
 	return sum, nil
 }
@@ -262,19 +318,57 @@ func Circuits(ctx context.Context, p *plan.Plan, dir string, opt Options) (*Summ
 // exportText is one instance's OpenQASM 3 program with comments that say
 // what it classifies and how to report its outcomes.
 func exportText(it exportItem, set exportSettings) ([]byte, error) {
-	q, err := circuit.QASM3(it.Circuit)
+	return exportTextVersion(it, set, 3)
+}
+
+// exportTextVersion is exportText in OpenQASM version 3 or 2.
+func exportTextVersion(it exportItem, set exportSettings, version int) ([]byte, error) {
+	q, err := circuit.QASM(it.Circuit, circuit.QASMOptions{Version: version})
 	if err != nil {
 		return nil, err
 	}
-	nc := len(it.Circuit.Regs.Class)
 	var b bytes.Buffer
-	fmt.Fprintf(&b, "// fringe: interference circuit of dataset %s, pipeline %s, repeat %d, fold %d, test row %d\n",
+	instanceComments(&b, it, set)
+	b.WriteString(q)
+	return b.Bytes(), nil
+}
+
+// deviceText is one instance's native routed program on the device
+// (device.Program.QASM) with exportText's comments.
+func deviceText(it exportItem, set exportSettings, prog *device.Program, version int) ([]byte, error) {
+	q, err := prog.QASM(version)
+	if err != nil {
+		return nil, err
+	}
+	var b bytes.Buffer
+	instanceComments(&b, it, set)
+	b.WriteString(q)
+	return b.Bytes(), nil
+}
+
+// deviceIndex is the DeviceIndexColumns part of an instance's index line.
+func deviceIndex(it exportItem, prog *device.Program) []string {
+	regs := it.Circuit.Regs
+	class := make([]int, len(regs.Class))
+	for j, q := range regs.Class {
+		class[j] = prog.Final[q]
+	}
+	return []string{results.EscapeCSVCell(prog.Device.Name), strconv.Itoa(prog.Final[regs.Ancilla]), joinRows(class),
+		joinRows(prog.Initial), joinRows(prog.Final), strconv.Itoa(prog.After.TwoQubit), strconv.Itoa(prog.After.Swaps),
+		strconv.Itoa(prog.After.Depth), strconv.FormatFloat(prog.After.DurationNS, 'f', 0, 64)}
+}
+
+// instanceComments writes the comments that say what an instance's
+// program classifies and how to report its outcomes.
+func instanceComments(b *bytes.Buffer, it exportItem, set exportSettings) {
+	nc := len(it.Circuit.Regs.Class)
+	fmt.Fprintf(b, "// fringe: interference circuit of dataset %s, pipeline %s, repeat %d, fold %d, test row %d\n",
 		input.OneLine(it.Dataset), input.OneLine(it.Pipeline), it.Repeat, it.Fold, it.Row)
 	weights := "uniform weights 1/M"
 	if set.balance {
 		weights = "class-balancing weights 1/(C*M_k)"
 	}
-	fmt.Fprintf(&b, "// %d training vectors (%s), dataset rows %s\n", len(it.TrainRows), weights, joinRows(it.TrainRows))
+	fmt.Fprintf(b, "// %d training vectors (%s), dataset rows %s\n", len(it.TrainRows), weights, joinRows(it.TrainRows))
 	var cls []string
 	for k, c := range it.Classes {
 		cls = append(cls, fmt.Sprintf("%s = %s", modelkit.FormatBits(k, nc), input.OneLine(c)))
@@ -283,11 +377,9 @@ func exportText(it exportItem, set exportSettings) ([]byte, error) {
 	if nc > 1 {
 		order = fmt.Sprintf("the bit string class_out[%d]...class_out[0]", nc-1)
 	}
-	fmt.Fprintf(&b, "// class register: class_out[0] is the least significant bit of the class index; as %s: %s\n",
+	fmt.Fprintf(b, "// class register: class_out[0] is the least significant bit of the class index; as %s: %s\n",
 		order, strings.Join(cls, ", "))
 	b.WriteString("// report outcomes as dataset,repeat,fold,row,ancilla,class,count with ancilla = ancilla_out[0] and class as written above\n")
-	b.WriteString(q)
-	return b.Bytes(), nil
 }
 
 // checkExportDir refuses to replace a folder that is neither absent, empty,

@@ -43,11 +43,20 @@ func parseCounts(p *params, ms *Spec) string {
 		p.fail("train_subset", "train_subset must be positive, got %d", subset)
 		return ""
 	}
+	hw := parseHardware(p, true, qkernel.ModeExact, "", nil)
+	if p.err != nil {
+		return ""
+	}
+	ms.hw = hw
 	ms.Params["mode"], ms.Params["file"] = "counts", file
 	ms.Params["balance"], ms.Params["train_subset"] = balance, subset
+	hw.setParams(ms.Params)
 	src := &countsSource{file: file}
 	ms.build = func(uint64) baselines.Model {
-		return &countsModel{src: src, balance: balance, subset: subset}
+		if hw != nil && !hw.resolved {
+			return unresolvedModel{name: "counts"}
+		}
+		return &countsModel{src: src, balance: balance, subset: subset, hw: hw}
 	}
 	base := filepath.Base(file)
 	if ext := filepath.Ext(base); ext != "" && ext != base {
@@ -60,6 +69,7 @@ func parseCounts(p *params, ms *Spec) string {
 	if balance {
 		label += "-balanced"
 	}
+	label += hw.labelMitigate()
 	return label
 }
 
@@ -71,6 +81,7 @@ type countsModel struct {
 	src     *countsSource
 	balance bool
 	subset  int
+	hw      *hardware // mitigation keys (nil: none)
 
 	task  TaskContext
 	table *countsTable
@@ -103,6 +114,23 @@ func (m *countsModel) Fit(X *mat.Dense, y []int, nClass int) error {
 		return fmt.Errorf("modelkit: counts model: no task context (the model runs only inside a run)")
 	}
 	q := &qkernel.Classifier{Balance: m.balance, TrainSubset: m.subset, Seed: m.task.InterferenceSeed}
+	if hw := m.hw; hw != nil && hw.mitigate {
+		// The confusion matrices: the calibration file's per measured
+		// bit or per physical qubit of the device, else the device's own
+		// readout errors of the qubits each instance was measured on.
+		q.Mitigate = qkernel.Mitigation{Readout: true, Device: hw.dev}
+		if hw.cal != nil {
+			if hw.cal.Physical != nil {
+				q.Mitigate.Physical = hw.cal.Physical
+			} else {
+				conf, err := hw.cal.Bits(nClass)
+				if err != nil {
+					return err
+				}
+				q.Mitigate.Confusion = conf
+			}
+		}
+	}
 	if err := q.Fit(X, y, nClass); err != nil {
 		return err
 	}

@@ -13,6 +13,19 @@
 // Every kind also takes `label`, the model's display label in summary.tex
 // and summary.md (Spec.Label; a tuned model keeps it); the CSV files, task
 // keys and figures keep Spec.Name.
+// Devices (device.go, calibration.go): an interference model with
+// device = "NAME" | "path.toml" runs in mode noisy on the described
+// device (compiled, routed and simulated under its calibrated noise;
+// package qkernel/device); mitigate = "readout" inverts the readout
+// confusion of the measured bits (qkernel.Mitigation), with the model's
+// own readout error, the device's qubits' or those of calibration =
+// "file.csv", a calibration counts file (CalibrationColumns, by measured
+// bit or by physical qubit). A counts model takes mitigate with device
+// (the device its circuits were exported for) or calibration. The keys
+// are checked against each other when the spec is read; the files are
+// read by Spec.Resolve, which the planner calls with the spec's folder
+// (a model built before Resolve fails its Fit), and Spec.Hardware
+// describes them for manifests and plan-time checks.
 //
 // Parse validates one table and returns a Spec; errors about one key are a
 // *KeyError so that the spec parser can add file and line. Spec.New builds
@@ -34,7 +47,8 @@
 // table's current spelling for the spec's canonical form.
 //
 // Imports: bench/input (errors), bench/cv, and the model packages
-// (baselines, qkernel and its sub-packages, datasets). It must never
+// (baselines, qkernel and its sub-packages, qkernel/device included,
+// datasets). It must never
 // import the other bench packages (spec, plan, runner, report, export,
 // assess, cluster) or results: the spec parser, the planner and the runner
 // call it, not the other way round.

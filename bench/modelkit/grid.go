@@ -54,6 +54,10 @@ func (m Spec) Configs() []Spec {
 	return out
 }
 
+// untunable are the keys that take a single value: a list of several is
+// an error, not a grid.
+var untunable = map[string]bool{"device": true, "mitigate": true, "calibration": true}
+
 // listKeys are the keys whose value is a list even for one configuration.
 var listKeys = map[string]map[string]bool{"command": {"run": true}}
 
@@ -141,6 +145,9 @@ func parse(m map[string]any) (Spec, error) {
 		if arr, ok := v.([]any); ok && !listKeys[kind][k] && k != "kind" && k != "name" {
 			if len(arr) == 0 {
 				return Spec{}, keyErr(k, "an empty list of values (give one value, or several to tune the model)")
+			}
+			if len(arr) > 1 && untunable[k] {
+				return Spec{}, keyErr(k, "takes one value; devices and their calibration are compared, not tuned: give each its own [[model]] table")
 			}
 			if len(arr) > 1 {
 				keys = append(keys, k)

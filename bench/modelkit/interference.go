@@ -22,8 +22,9 @@ var NoiseKeys = []struct{ Key, Meaning string }{
 
 // parseInterference reads the keys of an interference model and returns the
 // configured classifier (without seed), its default label and the raw noise
-// table (nil without one). Problems are recorded in p.
-func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
+// table (nil without one); the device keys go to ms.hw. Problems are
+// recorded in p.
+func parseInterference(p *params, ms *Spec) (qkernel.Classifier, string, map[string]any) {
 	var q qkernel.Classifier
 	modeS := p.str("mode", "exact")
 	q.Balance = p.boolean("balance", false)
@@ -62,6 +63,10 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 	if !ok {
 		return q, "", noise
 	}
+	ms.hw = parseHardware(p, false, mode, modeS, noise)
+	if p.err != nil {
+		return q, "", noise
+	}
 	if err := q.Validate(); err != nil {
 		key := "mode"
 		var oe *qkernel.OptionError
@@ -79,6 +84,7 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 	if mode != qkernel.ModeExact && mode != qkernel.ModeShots {
 		label += "-" + mode.String()
 	}
+	label += ms.hw.labelDevice()
 	label += strings.Join(append([]string{""}, noiseLabel...), "-")
 	if q.Shots > 0 {
 		label += fmt.Sprintf("-shots%d", q.Shots)
@@ -92,6 +98,7 @@ func parseInterference(p *params) (qkernel.Classifier, string, map[string]any) {
 	if q.Balance {
 		label += "-balanced"
 	}
+	label += ms.hw.labelMitigate()
 	return q, label, noise
 }
 

@@ -52,13 +52,15 @@ type Spec struct {
 	Grid *Grid
 
 	build builder
+	hw    *hardware // device, mitigation and calibration keys (nil: none); shared by copies
 }
 
 // New builds a fresh, unfitted model for a task with the given seed.
 func (m Spec) New(seed uint64) baselines.Model { return m.build(seed) }
 
 // InputFiles lists the files the model reads while it runs, resolved
-// against dir (the spec's folder): the counts file of a counts model, and
+// against dir (the spec's folder): the counts file of a counts model, the
+// device and calibration files of an interference or counts model, and
 // every argument of a command model that names an existing regular file
 // (its script, say; the program runs in dir). A change to one of them
 // between sessions must not mix old and new results, so the run's
@@ -66,10 +68,13 @@ func (m Spec) New(seed uint64) baselines.Model { return m.build(seed) }
 func (m Spec) InputFiles(dir string) []string {
 	var out []string
 	switch m.Kind {
+	case "interference":
+		out = append(out, m.hw.inputFiles(dir)...)
 	case "counts":
 		if f, ok := m.Params["file"].(string); ok {
 			out = append(out, countsPath(dir, f))
 		}
+		out = append(out, m.hw.inputFiles(dir)...)
 	case "command":
 		run, _ := m.Params["run"].([]string)
 		for _, arg := range run {
@@ -93,13 +98,13 @@ type Info struct {
 // Infos lists the model kinds a spec may use.
 func Infos() []Info {
 	return []Info{
-		{"interference", "mode, balance, shots, train_subset, noise, simulator, trajectories", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise); balance = true weights the index register by 1/(C*M_k); simulator of gate-level noise auto | density-matrix | trajectories | state-vector: auto takes the exact density matrix up to " + strconv.Itoa(sim.MaxDensityQubits) + " qubits and trajectories above, trajectories averages `trajectories` Monte Carlo state vectors with random noise jumps (default " + strconv.Itoa(sim.DefaultTrajectories) + "), state-vector is noiseless"},
+		{"interference", "mode, balance, shots, train_subset, noise, simulator, trajectories, device, mitigate, calibration", "the interference (distance-based) quantum classifier of Schuld, Fingerhuth & Petruccione (2017); mode exact (closed form) | circuit (compiled circuit, simulated) | shots (finite shots, post-selected) | noisy (gate-level or closed-form noise, or device = NAME|FILE: compiled, routed and simulated under the device's calibrated noise); balance = true weights the index register by 1/(C*M_k); mitigate = \"readout\" inverts the readout confusion (calibration = FILE: calibration counts); simulator of gate-level noise auto | density-matrix | trajectories | state-vector: auto takes the exact density matrix up to " + strconv.Itoa(sim.MaxDensityQubits) + " qubits and trajectories above, trajectories averages `trajectories` Monte Carlo state vectors with random noise jumps (default " + strconv.Itoa(sim.DefaultTrajectories) + "), state-vector is noiseless"},
 		{"knn", "k, metric, vote, search", "k-nearest neighbours; metric euclidean|manhattan|cosine; vote equal (one vote per neighbour) | inverse-distance (a neighbour at distance d votes 1/d; neighbours at distance 0, if any, alone vote); search auto|brute|tree (the exact k-d tree gives brute force's neighbours and ties); ties: nearer then lower index, vote ties to the first class"},
 		{"svm", "kernel, C, gamma, degree, offset, tol, cache_mib, shrinking", "C-SVC by SMO with second-order working-set selection (Fan, Chen & Lin 2005) and shrinking (LIBSVM); kernel linear <x,x'> | rbf exp(-gamma*|x-x'|^2) | poly (gamma*<x,x'> + offset)^degree | interference (1 + <x,x'>)/2; gamma a number or \"inverse-variance\" (the default) = 1/(d*Var(X)), d features and Var the population variance of all entries of the training part (1 when that is 0); degree default 3, offset default 0; kernel rows cached in cache_mib MiB per class pair (default 200); one-vs-one; absurd parameters are refused"},
 		{"logreg", "C, max_iter", "logistic regression in scikit-learn's default forms: binary (one weight vector) for two classes, multinomial for three or more; L2 penalty 1/C (intercept unpenalised); L-BFGS"},
 		{"centroid", "", "nearest centroid (Euclidean), a sanity baseline"},
 		{"command", "run, timeout", "your own classifier as a program, run once per task: run = [\"python3\", \"mine.py\"] gets the paths of TRAIN (row,label,<features>), TEST (row,<features>) and OUT, and writes OUT as row,predicted[,prob_<class>...]; FRINGE_SEED holds the task's seed; timeout in seconds"},
-		{"counts", "file, balance, train_subset", "outcomes measured on a device for the circuits of `fringe circuit -export` (file = CSV with dataset,repeat,fold,row,ancilla,class,count[,pipeline]), decided by post-selection as shot mode does; balance and train_subset as the exported circuits"},
+		{"counts", "file, balance, train_subset, mitigate, device, calibration", "outcomes measured on a device for the circuits of `fringe circuit -export` (file = CSV with dataset,repeat,fold,row,ancilla,class,count[,pipeline]), decided by post-selection as shot mode does; balance and train_subset as the exported circuits; mitigate = \"readout\" with calibration = FILE (calibration counts) or device = NAME|FILE (the device of -export -device)"},
 	}
 }
 
@@ -154,15 +159,29 @@ func parseOne(m map[string]any) (Spec, error) {
 // parseInterference), sets the model's params and builder and returns its
 // default label.
 func parseInterferenceModel(p *params, ms *Spec) string {
-	q, label, noise := parseInterference(p)
+	q, label, noise := parseInterference(p, ms)
 	ms.Params["mode"], ms.Params["balance"] = q.Mode.String(), q.Balance
 	ms.Params["shots"], ms.Params["train_subset"] = q.Shots, q.TrainSubset
 	if noise != nil {
 		ms.Params["noise"] = noise
 	}
+	hw := ms.hw
+	hw.setParams(ms.Params)
+	if hw != nil && hw.device != "" {
+		// For the report's per-mode table: the noise is the device's.
+		ms.Params["noise"] = "device " + hw.device
+	}
 	ms.build = func(seed uint64) baselines.Model {
 		c := q
 		c.Seed = seed
+		if hw != nil {
+			if !hw.resolved {
+				return unresolvedModel{name: label}
+			}
+			if hw.configure(&c) {
+				return &calibrated{Classifier: &c, cal: hw.cal}
+			}
+		}
 		return &c
 	}
 	ms.Interference = &q

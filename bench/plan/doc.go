@@ -4,8 +4,11 @@
 // repeat, fold) with a stable key. Building a plan checks everything that
 // can be checked before a model is fitted — parameters against the data
 // (k of k-NN, train_subset), circuits against the simulators' qubit limits
-// — so bad input fails fast and leaves nothing behind; every such error is
-// an input error.
+// and against the connected qubits of a model's device, calibration files
+// against the class registers (device.go) — so bad input fails fast and
+// leaves nothing behind; every such error is an input error. New loads
+// the models' device and calibration files (modelkit.Spec.Resolve,
+// relative to the spec's folder); their digests enter the Fingerprint.
 //
 // Seeds: Seed and NewRand derive generators from the run seed and a key,
 // never from scheduling. The splits of a dataset depend only on the seed,

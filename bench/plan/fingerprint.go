@@ -78,6 +78,13 @@ func (p *Plan) Fingerprint() string {
 			str("unreadable")
 		}
 	}
+	// Devices by their descriptions' digests (an embedded device's too,
+	// which a rebuilt fringe may change) and calibration files.
+	for _, m := range p.Spec.Models {
+		if hw, ok := m.Hardware(); ok {
+			str("device\x00" + hw.Device + "\x00" + hw.DeviceSHA + "\x00" + hw.CalibrationSHA)
+		}
+	}
 	return hex.EncodeToString(h.Sum(nil))
 }
 

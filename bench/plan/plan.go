@@ -84,6 +84,9 @@ func New(s *spec.Spec) (*Plan, error) {
 	if err := p.drawSubsamples(); err != nil {
 		return nil, err
 	}
+	if err := p.resolveModels(); err != nil {
+		return nil, err
+	}
 	if err := p.checkModels(); err != nil {
 		return nil, err
 	}
@@ -289,6 +292,9 @@ func (p *Plan) checkModels() error {
 		return err
 	}
 	if err := p.checkQubits(); err != nil {
+		return err
+	}
+	if err := p.checkHardware(); err != nil {
 		return err
 	}
 	if err := p.checkKernels(); err != nil {
@@ -547,7 +553,7 @@ func (p *Plan) checkQubits() error {
 			if q == nil || q.Mode == qkernel.ModeExact || q.Mode == qkernel.ModeShots {
 				continue
 			}
-			gate := q.Mode == qkernel.ModeCircuit || !q.Noise.IsZero() || q.Method != sim.Auto
+			gate := q.Mode == qkernel.ModeCircuit || !q.Noise.IsZero() || q.Method != sim.Auto || onDevice(m)
 			if !gate {
 				continue // closed-form channels only
 			}

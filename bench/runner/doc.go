@@ -16,7 +16,13 @@
 //     run directory: predictions.csv, folds.csv, summary.csv, summary.tex,
 //     summary.md, comparisons.csv, timings.csv, manifest.json and figures,
 //     written atomically; every file but the manifest and the timings is
-//     byte-identical for the same spec and seed (rundir.go).
+//     byte-identical for the same spec and seed (rundir.go). Models with
+//     readout mitigation add the raw (unmitigated) decision to
+//     predictions.csv (raw_predicted, raw_p_acc, raw_probs) and the count
+//     of decisions mitigation changed to folds.csv (mitigation_changed);
+//     those columns appear only in runs that mitigate. The manifest lists
+//     the models' devices and calibration files with their SHA-256
+//     (DeviceRecords), and Verify reports one that changed since the run.
 //   - Progress draws the progress bar or log lines (progress.go).
 //
 // Imports: bench/input, bench/spec, bench/modelkit, bench/plan,

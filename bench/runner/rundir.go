@@ -44,13 +44,16 @@ func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fo
 				Repeat: sp.Repeat, Fold: sp.Fold, Row: d.Data.Rows[j],
 				Label:     d.Data.Classes[d.Data.Y[j]],
 				Predicted: d.Data.Classes[r.Pred[i]],
-				PAcc:      math.NaN(), Unused: math.NaN(),
+				PAcc:      math.NaN(), Unused: math.NaN(), RawPAcc: math.NaN(),
 			}
 			if r.Details != nil {
 				det := r.Details[i]
 				pr.PAcc, pr.Shots, pr.Probs, pr.Unused = det.PAcc, det.Shots, det.Probs, det.Unused
 				if notExact {
 					pr.Exact = d.Data.Classes[det.Exact]
+				}
+				if raw := det.Raw; raw != nil {
+					pr.RawPredicted, pr.RawPAcc, pr.RawProbs = d.Data.Classes[raw.Pred], raw.PAcc, raw.Probs
 				}
 			}
 			preds = append(preds, pr)
@@ -77,6 +80,14 @@ func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fo
 			}
 			if notExact {
 				fold.ExactDisagreement = differ / float64(len(r.Details))
+			}
+			if r.Details[0].Raw != nil {
+				fold.Mitigated = true
+				for i, det := range r.Details {
+					if det.Raw != nil && det.Raw.Pred != r.Pred[i] {
+						fold.MitigationChanged++
+					}
+				}
 			}
 		}
 		folds = append(folds, fold)
@@ -234,6 +245,7 @@ func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 			m.Modules[dep.Path] = dep.Version
 		}
 	}
+	m.Devices = DeviceRecords(p)
 	for _, d := range p.Datasets {
 		src := d.Data.Source
 		m.Datasets = append(m.Datasets, results.DatasetRecord{
@@ -243,6 +255,38 @@ func Manifest(p *plan.Plan, info RunInfo, warnings []string) *results.Manifest {
 		})
 	}
 	return m
+}
+
+// DeviceRecords lists the devices and calibration files of the plan's
+// models (modelkit.Spec.Hardware), in model order, for the manifest;
+// nil when no model names one. Files inside the spec's folder are
+// recorded relative to it.
+func DeviceRecords(p *plan.Plan) []results.DeviceRecord {
+	var out []results.DeviceRecord
+	for _, m := range p.Spec.Models {
+		hw, ok := m.Hardware()
+		if !ok {
+			continue
+		}
+		r := results.DeviceRecord{Model: m.Name, Device: hw.Device, File: relPath(p.Spec.Dir, hw.DeviceFile), SHA256: hw.DeviceSHA,
+			Calibration: relPath(p.Spec.Dir, hw.Calibration), CalibrationSHA256: hw.CalibrationSHA}
+		if hw.Mitigate {
+			r.Mitigate = "readout"
+		}
+		out = append(out, r)
+	}
+	return out
+}
+
+// relPath is path relative to dir when it lies inside it ("" stays "").
+func relPath(dir, path string) string {
+	if path == "" || dir == "" {
+		return path
+	}
+	if rel, err := filepath.Rel(dir, path); err == nil && filepath.IsLocal(rel) {
+		return filepath.ToSlash(rel)
+	}
+	return path
 }
 
 // Write writes a complete run directory at dir: the records (CSV), the

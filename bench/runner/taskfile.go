@@ -80,6 +80,37 @@ type detailJSON struct {
 	Unused jsonFloat   `json:"unused"`
 	Shots  int         `json:"shots"`
 	Exact  int         `json:"exact"`
+	Raw    *rawJSON    `json:"raw,omitempty"` // the decision before readout mitigation (mitigating models only)
+}
+
+type rawJSON struct {
+	Pred   int         `json:"pred"`
+	PAcc   jsonFloat   `json:"p_acc"`
+	Probs  []jsonFloat `json:"probs"`
+	Unused jsonFloat   `json:"unused"`
+}
+
+// floatsJSON and floatsOf convert probability lists (nil stays nil).
+func floatsJSON(v []float64) []jsonFloat {
+	if v == nil {
+		return nil
+	}
+	out := make([]jsonFloat, len(v))
+	for i, x := range v {
+		out[i] = jsonFloat(x)
+	}
+	return out
+}
+
+func floatsOf(v []jsonFloat) []float64 {
+	if v == nil {
+		return nil
+	}
+	out := make([]float64, len(v))
+	for i, x := range v {
+		out[i] = float64(x)
+	}
+	return out
 }
 
 // jsonFloat is a float64 that survives JSON exactly: finite values as
@@ -139,6 +170,9 @@ func encodeTasks(p *plan.Plan, run string, batch []TaskResult) ([]byte, error) {
 					for j, v := range d.Probs {
 						dj.Probs[j] = jsonFloat(v)
 					}
+				}
+				if raw := d.Raw; raw != nil {
+					dj.Raw = &rawJSON{Pred: raw.Pred, PAcc: jsonFloat(raw.PAcc), Probs: floatsJSON(raw.Probs), Unused: jsonFloat(raw.Unused)}
 				}
 				tj.Details[i] = dj
 			}
@@ -261,6 +295,15 @@ func decodeTask(p *plan.Plan, member []bool, tj taskJSON) (*TaskResult, error) {
 				for j, v := range dj.Probs {
 					det.Probs[j] = float64(v)
 				}
+			}
+			if raw := dj.Raw; raw != nil {
+				if raw.Pred < 0 || raw.Pred >= nClass {
+					return bad("unmitigated class %d out of range [0, %d)", raw.Pred, nClass)
+				}
+				det.Raw = &qkernel.RawDetail{Pred: raw.Pred, PAcc: float64(raw.PAcc), Probs: floatsOf(raw.Probs), Unused: float64(raw.Unused)}
+			}
+			if i > 0 && (det.Raw != nil) != (r.Details[0].Raw != nil) {
+				return bad("unmitigated decisions for some test instances only")
 			}
 			r.Details[i] = det
 		}

@@ -173,6 +173,9 @@ func (v *Verified) recompute(dir string, m *results.Manifest, opt VerifyOptions,
 	if !sameDatasets(p, m, add) {
 		return
 	}
+	if !sameDevices(p, m, add) {
+		return
+	}
 	f, err := os.Open(filepath.Join(dir, "predictions.csv"))
 	if err != nil {
 		add("predictions.csv", "missing: nothing to recompute from")
@@ -265,6 +268,40 @@ func sameDatasets(p *plan.Plan, m *results.Manifest, add func(file, format strin
 		}
 	}
 	return ok
+}
+
+// sameDevices checks the rebuilt plan's devices and calibration files
+// against the manifest's records (their SHA-256): a device description or
+// calibration file edited since the run is reported.
+func sameDevices(p *plan.Plan, m *results.Manifest, add func(file, format string, args ...any)) bool {
+	now := DeviceRecords(p)
+	if len(now) != len(m.Devices) {
+		add("manifest.json", "records %d model(s) with a device or calibration, the spec gives %d", len(m.Devices), len(now))
+		return false
+	}
+	ok := true
+	for i, r := range now {
+		was := m.Devices[i]
+		switch {
+		case was.Model != r.Model || was.Device != r.Device:
+			add("manifest.json", "model %s on device %q, the spec gives model %s on device %q", was.Model, was.Device, r.Model, r.Device)
+			ok = false
+		case was.SHA256 != r.SHA256:
+			add("manifest.json", "model %s: the description of device %s (%s) differs from the one the run used (sha256)", r.Model, r.Device, orEmbedded(r.File))
+			ok = false
+		case was.CalibrationSHA256 != r.CalibrationSHA256:
+			add("manifest.json", "model %s: calibration file %s differs from the one the run used (sha256)", r.Model, r.Calibration)
+			ok = false
+		}
+	}
+	return ok
+}
+
+func orEmbedded(file string) string {
+	if file == "" {
+		return "embedded"
+	}
+	return file
 }
 
 // applyTuning gives the tuned models' task results their grid searches
@@ -368,6 +405,18 @@ func resultsFromPredictions(p *plan.Plan, preds []results.Prediction) ([]TaskRes
 						return nil, fmt.Errorf("task %s, row %d: exact-mode class %q is not a class of the dataset", p.Key(t), row.Row, row.Exact)
 					}
 					det.Exact = ek
+				}
+				if row.RawPredicted != "" {
+					rk, ok := class[row.RawPredicted]
+					if !ok {
+						return nil, fmt.Errorf("task %s, row %d: unmitigated class %q is not a class of the dataset", p.Key(t), row.Row, row.RawPredicted)
+					}
+					// Unused before mitigation is not in predictions.csv
+					// (nor in any recomputed file).
+					det.Raw = &qkernel.RawDetail{Pred: rk, PAcc: row.RawPAcc, Probs: row.RawProbs, Unused: math.NaN()}
+				}
+				if k > 0 && (det.Raw != nil) != (r.Details[0].Raw != nil) {
+					return nil, fmt.Errorf("task %s, row %d: unmitigated decisions for some test instances only", p.Key(t), row.Row)
 				}
 				r.Details[k] = det
 			}

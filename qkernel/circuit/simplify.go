@@ -67,35 +67,83 @@ func Simplify(c *Circuit) *Circuit {
 
 // simplifyOwned simplifies d in place; d's operations must not share
 // their control or angle lists with another circuit's (a clone or a fresh
-// expansion).
+// expansion). The passes run on a compact copy of the operations (sop)
+// and the result is written back once, into d.Ops's own array.
 func simplifyOwned(d *Circuit) {
-	for {
-		ops, changed := simplifyPass(d.NQubits, d.Ops)
-		d.Ops = ops
-		if !changed {
-			return
+	cur := make([]sop, len(d.Ops))
+	for i, op := range d.Ops {
+		cur[i] = sop{gate: op.Gate, t: int32(op.Target), c: -1, angle: op.Angle, src: int32(i)}
+		if len(op.Controls) == 1 {
+			cur[i].c = int32(op.Controls[0])
+		} else if len(op.Controls) > 1 {
+			cur[i].c = multi
 		}
 	}
+	var s simplifier
+	for {
+		var changed bool
+		cur, changed = s.pass(d.NQubits, d.Ops, cur)
+		if !changed {
+			break
+		}
+	}
+	// Every kept operation comes from an operation at the same or a later
+	// position (a pass never moves one forward), so writing in place never
+	// overwrites an operation still to be read.
+	ops := d.Ops[:len(cur)]
+	for w, so := range cur {
+		switch {
+		case so.src < 0:
+			ops[w] = Op{Gate: so.gate, Target: int(so.t)}
+		default:
+			op := d.Ops[so.src]
+			op.Angle = so.angle
+			ops[w] = op
+		}
+	}
+	clear(d.Ops[len(cur):]) // drop references held by the removed tail
+	d.Ops = ops
+}
+
+// sop is an operation inside Simplify: its gate, target, single other
+// qubit (-1 for none, multi for several: read them from the source
+// operation), angle, and the index of the operation it came from in the
+// circuit being simplified (-1 for an X made from SX SX).
+type sop struct {
+	gate  Gate
+	t, c  int32
+	angle float64
+	src   int32
+}
+
+// multi marks an operation with several controls (UCRY).
+const multi = -2
+
+// simplifier holds the scratch space of Simplify's passes.
+type simplifier struct {
+	top   [][]int32 // per qubit: indices into out of its live operations
+	alive []bool
+	buf   []sop
 }
 
 // commutingCNOT returns the index in out of a live CNOT(c, t) that an
 // incoming CNOT(c, t) cancels, or -1: the nearest CNOT(c, t) such that
 // every live operation after it on t is a CNOT onto t and every one after
 // it on c is a CNOT controlled by c (these commute with CNOT(c, t)).
-func commutingCNOT(out []Op, top [][]int, c, t int) int {
+func commutingCNOT(out []sop, top [][]int32, c, t int32) int32 {
 	st := top[t]
 	for j := len(st) - 1; j >= 0; j-- {
 		o := out[st[j]]
-		if o.Gate != CNOT || o.Target != t {
+		if o.gate != CNOT || o.t != t {
 			return -1
 		}
-		if o.Controls[0] != c {
+		if o.c != c {
 			continue
 		}
 		i := st[j]
 		sc := top[c]
 		for k := len(sc) - 1; k >= 0 && sc[k] != i; k-- {
-			if p := out[sc[k]]; p.Gate != CNOT || p.Controls[0] != c {
+			if p := out[sc[k]]; p.gate != CNOT || p.c != c {
 				return -1
 			}
 		}
@@ -105,7 +153,7 @@ func commutingCNOT(out []Op, top [][]int, c, t int) int {
 }
 
 // remove deletes index i from the live-operation stack of qubit q.
-func remove(top [][]int, q, i int) {
+func remove(top [][]int32, q, i int32) {
 	s := top[q]
 	for k := len(s) - 1; k >= 0; k-- {
 		if s[k] == i {
@@ -116,94 +164,111 @@ func remove(top [][]int, q, i int) {
 	panic("circuit: simplify lost track of an operation") // broken internal invariant
 }
 
-// simplifyPass runs the rewrites of Simplify once over ops.
-func simplifyPass(n int, ops []Op) ([]Op, bool) {
-	out := make([]Op, 0, len(ops))
-	alive := make([]bool, 0, len(ops))
-	top := make([][]int, n) // per qubit: indices into out of its live ops
+// pass runs the rewrites of Simplify once over in (compact operations of
+// the circuit whose operations are ops) and returns the kept operations
+// and whether anything changed. The result may share in's array.
+func (s *simplifier) pass(n int, ops []Op, in []sop) ([]sop, bool) {
+	out := s.buf[:0]
+	if cap(out) < len(in) {
+		out = make([]sop, 0, len(in))
+	}
+	alive := s.alive[:0]
+	if cap(alive) < len(in) {
+		alive = make([]bool, 0, len(in))
+	}
+	if s.top == nil {
+		s.top = make([][]int32, n)
+	}
+	top := s.top
+	for q := range top {
+		top[q] = top[q][:0]
+	}
 	changed := false
-	last := func(q int) int {
+	last := func(q int32) int32 {
 		if s := top[q]; len(s) > 0 {
 			return s[len(s)-1]
 		}
 		return -1
 	}
-	pop := func(qs ...int) {
-		for _, q := range qs {
-			top[q] = top[q][:len(top[q])-1]
-		}
-	}
-	var insert func(op Op)
-	insert = func(op Op) {
-		switch op.Gate {
+	pop := func(q int32) { top[q] = top[q][:len(top[q])-1] }
+	var insert func(op sop)
+	insert = func(op sop) {
+		switch op.gate {
 		case RX, RY, RZ:
-			q := op.Target
-			if i := last(q); i >= 0 && out[i].Gate == op.Gate {
+			q := op.t
+			if i := last(q); i >= 0 && out[i].gate == op.gate {
 				changed = true
-				a := wrap4pi(out[i].Angle + op.Angle)
+				a := wrap4pi(out[i].angle + op.angle)
 				if Dead(a) {
 					alive[i] = false
 					pop(q)
 				} else {
-					out[i].Angle = a
+					out[i].angle = a
 				}
 				return
 			}
-			if Dead(op.Angle) {
+			if Dead(op.angle) {
 				changed = true
 				return
 			}
 		case H, X:
-			q := op.Target
-			if i := last(q); i >= 0 && out[i].Gate == op.Gate {
+			q := op.t
+			if i := last(q); i >= 0 && out[i].gate == op.gate {
 				changed = true
 				alive[i] = false
 				pop(q)
 				return
 			}
 		case SX:
-			q := op.Target
-			if i := last(q); i >= 0 && out[i].Gate == SX {
+			q := op.t
+			if i := last(q); i >= 0 && out[i].gate == SX {
 				changed = true
 				alive[i] = false
 				pop(q)
-				insert(Op{Gate: X, Target: q})
+				insert(sop{gate: X, t: q, c: -1, src: -1})
 				return
 			}
 		case CNOT:
-			if i := commutingCNOT(out, top, op.Controls[0], op.Target); i >= 0 {
+			if i := commutingCNOT(out, top, op.c, op.t); i >= 0 {
 				changed = true
 				alive[i] = false
-				remove(top, op.Controls[0], i)
-				remove(top, op.Target, i)
+				remove(top, op.c, i)
+				remove(top, op.t, i)
 				return
 			}
 		case CZ, SWAP:
-			a, b := op.Controls[0], op.Target
-			if i := last(a); i >= 0 && i == last(b) && out[i].Gate == op.Gate {
+			a, b := op.c, op.t
+			if i := last(a); i >= 0 && i == last(b) && out[i].gate == op.gate {
 				// CZ and SWAP are symmetric: either orientation cancels.
 				changed = true
 				alive[i] = false
-				pop(a, b)
+				pop(a)
+				pop(b)
 				return
 			}
 		}
-		idx := len(out)
-		out = append(out, op) // Simplify works on its own clone: no copy needed
+		idx := int32(len(out))
+		out = append(out, op)
 		alive = append(alive, true)
-		var buf [2]int
-		for _, q := range op.appendQubits(buf[:0]) {
-			top[q] = append(top[q], idx)
+		top[op.t] = append(top[op.t], idx)
+		switch {
+		case op.c >= 0:
+			top[op.c] = append(top[op.c], idx)
+		case op.c == multi:
+			for _, q := range ops[op.src].Controls {
+				top[q] = append(top[q], idx)
+			}
 		}
 	}
-	for _, op := range ops {
+	for _, op := range in {
 		insert(op)
 	}
-	kept := out[:0]
+	kept := in[:0] // in is read: write the kept operations over it
 	for i, op := range out {
 		if alive[i] {
 			kept = append(kept, op)
 		}
 	}
+	s.buf, s.alive = out, alive
 	return kept, changed
 }

@@ -227,5 +227,24 @@ func TestDecomposeDatasets(t *testing.T) {
 		if again := Simplify(dec); !reflect.DeepEqual(again.Ops, dec.Ops) {
 			t.Errorf("%s: Simplify(Decompose()) changed the circuit", tc.name)
 		}
+		// Decompose (compact expansion and simplification) is exactly
+		// Simplify(Expand()), and DecomposeElementary holds its operations.
+		if ref := Simplify(raw); !reflect.DeepEqual(ref.Ops, dec.Ops) || !reflect.DeepEqual(ref.Regs, dec.Regs) {
+			t.Errorf("%s: Decompose differs from Simplify(Expand())", tc.name)
+		}
+		el := c.DecomposeElementary()
+		if len(el) != len(dec.Ops) {
+			t.Fatalf("%s: %d elementary operations, Decompose has %d", tc.name, len(el), len(dec.Ops))
+		}
+		for i, e := range el {
+			op := dec.Ops[i]
+			ctl := int32(-1)
+			if len(op.Controls) == 1 {
+				ctl = int32(op.Controls[0])
+			}
+			if e.Gate != op.Gate || int(e.Target) != op.Target || e.Control != ctl || math.Float64bits(e.Angle) != math.Float64bits(op.Angle) {
+				t.Fatalf("%s: operation %d: %+v, Decompose %+v", tc.name, i, e, op)
+			}
+		}
 	}
 }

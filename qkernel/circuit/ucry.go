@@ -48,14 +48,14 @@ func grayControl(i, k int) int {
 	return bits.TrailingZeros(uint(i + 1))
 }
 
-// decomposeUCRY expands one UCRY into 2^k RY and, for k >= 1, 2^k CNOT.
-func decomposeUCRY(op Op) []Op {
+// decomposeUCRY expands one UCRY into 2^k RY and, for k >= 1, 2^k CNOT,
+// appended to out.
+func decomposeUCRY(out []Op, op Op) []Op {
 	k := len(op.Controls)
 	if k == 0 {
-		return []Op{{Gate: RY, Target: op.Target, Angle: op.Angles[0]}}
+		return append(out, Op{Gate: RY, Target: op.Target, Angle: op.Angles[0]})
 	}
 	theta := grayAngles(op.Angles)
-	out := make([]Op, 0, 2*len(theta))
 	ctl := make([]int, len(theta)) // one backing array for the CNOT controls
 	for i, t := range theta {
 		ctl[i] = op.Controls[grayControl(i, k)]
@@ -90,7 +90,7 @@ func (c *Circuit) Expand() *Circuit {
 	ops := make([]Op, 0, size)
 	for _, op := range d.Ops {
 		if op.Gate == UCRY {
-			ops = append(ops, decomposeUCRY(op)...)
+			ops = decomposeUCRY(ops, op)
 			continue
 		}
 		ops = append(ops, op)
@@ -106,7 +106,97 @@ func (c *Circuit) Expand() *Circuit {
 // to a global phase and the dropped angles (at most AngleTol each), so
 // every measured probability is unchanged to about 1e-12.
 func (c *Circuit) Decompose() *Circuit {
-	d := c.Expand()
-	simplifyOwned(d)
+	el := c.decomposeCompact()
+	d := &Circuit{NQubits: c.NQubits, Regs: Layout{
+		Ancilla: c.Regs.Ancilla,
+		Index:   append([]int(nil), c.Regs.Index...),
+		Data:    append([]int(nil), c.Regs.Data...),
+		Class:   append([]int(nil), c.Regs.Class...),
+	}, Ops: make([]Op, len(el))}
+	two := 0
+	for _, so := range el {
+		if so.c >= 0 {
+			two++
+		}
+	}
+	ctl := make([]int, two) // one backing array for the controls
+	k := 0
+	for i, so := range el {
+		op := Op{Gate: so.gate, Target: int(so.t), Angle: so.angle}
+		if so.c >= 0 {
+			ctl[k] = int(so.c)
+			op.Controls = ctl[k : k+1 : k+1]
+			k++
+		}
+		d.Ops[i] = op
+	}
 	return d
+}
+
+// Elementary is one operation of a decomposed circuit in compact form:
+// its gate, target, control (the other qubit of CNOT, CZ and SWAP; -1 for
+// none) and angle (RX, RY, RZ).
+type Elementary struct {
+	Gate    Gate
+	Target  int32
+	Control int32
+	Angle   float64
+}
+
+// DecomposeElementary returns the operations of Decompose, the same gates
+// in the same order, in compact form, without building them as Ops: the
+// form for a compiler that rewrites millions of gates (Op holds two
+// slices, which cost memory and the garbage collector's time). The
+// circuit must be valid (Validate).
+func (c *Circuit) DecomposeElementary() []Elementary {
+	el := c.decomposeCompact()
+	out := make([]Elementary, len(el))
+	for i, so := range el {
+		out[i] = Elementary{Gate: so.gate, Target: so.t, Control: so.c, Angle: so.angle}
+	}
+	return out
+}
+
+// decomposeCompact expands every UCRY (as Expand) straight into compact
+// operations and simplifies them to a fixed point (as Simplify). After
+// the expansion every operation has at most one control.
+func (c *Circuit) decomposeCompact() []sop {
+	size := 0
+	for _, op := range c.Ops {
+		switch {
+		case op.Gate != UCRY, len(op.Controls) == 0:
+			size++
+		default:
+			size += 2 << len(op.Controls)
+		}
+	}
+	el := make([]sop, 0, size)
+	for _, op := range c.Ops {
+		switch {
+		case op.Gate == UCRY && len(op.Controls) == 0:
+			el = append(el, sop{gate: RY, t: int32(op.Target), c: -1, angle: op.Angles[0], src: -1})
+		case op.Gate == UCRY:
+			theta := grayAngles(op.Angles)
+			k := len(op.Controls)
+			for i, th := range theta {
+				el = append(el,
+					sop{gate: RY, t: int32(op.Target), c: -1, angle: th, src: -1},
+					sop{gate: CNOT, t: int32(op.Target), c: int32(op.Controls[grayControl(i, k)]), src: -1})
+			}
+		default:
+			so := sop{gate: op.Gate, t: int32(op.Target), c: -1, angle: op.Angle, src: -1}
+			if len(op.Controls) == 1 {
+				so.c = int32(op.Controls[0])
+			}
+			el = append(el, so)
+		}
+	}
+	var s simplifier
+	for {
+		var changed bool
+		el, changed = s.pass(c.NQubits, nil, el)
+		if !changed {
+			return el
+		}
+	}
 }

@@ -8,6 +8,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"reflect"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -312,5 +313,73 @@ func TestCompileTooSmall(t *testing.T) {
 	_, err := Compile(c, dev, Options{})
 	if !errors.Is(err, ErrTooSmall) {
 		t.Errorf("17 qubits on 16: error %v, want ErrTooSmall", err)
+	}
+}
+
+// TestFidelity: Program.Fidelity is the product of 1 - error over the
+// routed program's gates and of 1 - (p01 + p10)/2 over its measured
+// qubits, recomputed here from the operations of Program.Circuit (on the
+// device's qubits) and the description's rates (derived by hand from the
+// definition); virtual rz count for nothing, and Resources.Virtual counts
+// them.
+func TestFidelity(t *testing.T) {
+	for _, name := range Names() {
+		dev, _ := Load(name)
+		p, err := Compile(smallCase(t, "iris", 4), dev, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, virtual := 1.0, 0
+		for _, op := range p.Circuit().Ops {
+			switch {
+			case op.Gate == circuit.Measure:
+				q := dev.Qubits[op.Target]
+				want *= 1 - (q.ReadoutP01+q.ReadoutP10)/2
+			case len(op.Controls) == 1:
+				want *= 1 - dev.Edges[dev.EdgeIndex(op.Target, op.Controls[0])].Error
+			case op.Gate == circuit.RZ && dev.VirtualRZ:
+				virtual++
+			default:
+				want *= 1 - dev.Qubits[op.Target].Error
+			}
+		}
+		// 1e-12: the same products in another order.
+		if got := p.Fidelity(); math.Abs(got-want) > 1e-12 || !(got > 0 && got < 1) {
+			t.Errorf("%s: fidelity %v, want %v", name, got, want)
+		}
+		if p.After.Virtual != virtual {
+			t.Errorf("%s: %d virtual rz, counted %d", name, virtual, p.After.Virtual)
+		}
+	}
+}
+
+// TestNoPairsLeft: a compiled program is a fixed point of the
+// cancellation: cancelPairs finds no pair in it (Compile runs it only when
+// a one-qubit run merged into the identity), and circuit.Simplify removes
+// none of its two-qubit gates, on every embedded device for small and
+// medium cases of several datasets.
+func TestNoPairsLeft(t *testing.T) {
+	for _, name := range Names() {
+		dev, _ := Load(name)
+		for _, tc := range []struct {
+			data string
+			m    int
+		}{{"iris", 4}, {"iris", 16}, {"wine", 8}, {"cats", 32}, {"penguins", 64}} {
+			p, err := Compile(smallCase(t, tc.data, tc.m), dev, Options{})
+			if errors.Is(err, ErrTooSmall) {
+				continue
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			if cancelPairs(slices.Clone(p.native), len(p.Region)) {
+				t.Errorf("%s %s M=%d: pairs left to cancel", name, tc.data, tc.m)
+			}
+			c := p.Compact()
+			s := circuit.Simplify(c)
+			if a, b := c.Resources(), s.Resources(); a.CNOT != b.CNOT {
+				t.Errorf("%s %s M=%d: Simplify removes two-qubit gates: %d -> %d", name, tc.data, tc.m, a.CNOT, b.CNOT)
+			}
+		}
 	}
 }

@@ -157,6 +157,10 @@ type Device struct {
 	VirtualRZ bool
 	// Source is "embedded" or the path of the file read.
 	Source string
+	// SHA256 is the hex SHA-256 of the description's bytes as read (of the
+	// embedded file for an embedded device), for run manifests and
+	// fingerprints: a changed file is told from the one a run used.
+	SHA256 string
 
 	edgeAt [][]int32 // edgeAt[a][b]: index of edge (a, b) or (b, a), -1 none
 	dist   [][]int32 // hop distances on the coupling graph (undirected), -1 unreachable

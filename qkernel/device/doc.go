@@ -61,10 +61,19 @@
 // highest degree, growing by the neighbour with the most edges into the
 // region), places the logical qubits on it (most interacting first, each
 // where its two-qubit gates to those placed are shortest), refines the
-// initial mapping by reverse traversal and routes the two-qubit gates with
+// initial mapping by reverse traversal (over the first
+// Options.RefineGates two-qubit gates, default 16384; a circuit of at
+// most TrialGates two-qubit gates is routed from five placements, refined
+// by 1, 0, 2, 3 and 4 rounds, and the program with the fewest native
+// two-qubit gates kept) and routes the two-qubit gates with
 // the SABRE heuristic (Li, Ding & Xie, ASPLOS 2019: front layer, extended
 // set of 20 with weight 0.5, decay 0.001 reset every 5 swaps; ties by a
-// fixed order, so routing is deterministic). It then writes CNOT natively
+// fixed order, so routing is deterministic; each candidate is scored by
+// the change of the gates it moves, the same integers as a full
+// recount). CNOT pairs that cancel are removed on the routed form (SWAPs
+// written as three CNOTs) before translation, and translation runs in a
+// second goroutine beside routing, on every routed gate no later one can
+// cancel (the same program as the sequential passes). It then writes CNOT natively
 // (reversed with four Hadamards on a directed edge, or CZ between
 // RY(-pi/2) and RY(pi/2)), SWAP as three CNOTs, merges every run of
 // one-qubit gates into one unitary re-synthesised in the family (at most
@@ -74,12 +83,18 @@
 // with logical qubit q ending on Program.Final[q] (the measured registers'
 // final places are the routed circuit's Regs); this is tested on every
 // embedded device and small cases of every embedded dataset (1e-10).
+// Program.Logical rebuilds the decomposed logical circuit (the program
+// keeps its gates in a compact form); Program.Regs are its registers.
 //
 // Program.Before and Program.After report qubits, two-qubit gates, SWAPs
 // added, single-qubit gates, depth and duration: the critical path of the
 // ASAP schedule with the device's durations (before routing, the device's
-// median durations). Program.QASM writes OpenQASM 3 or 2.0 on the device's
-// qubits.
+// median durations); After.Virtual counts the virtual rz among the
+// single-qubit gates. Program.Fidelity estimates the probability that no
+// gate or readout of the routed program fails (the product of 1 - error
+// over them, with the description's rates). Program.QASM writes OpenQASM
+// 3 or 2.0 on the device's qubits. Device.SHA256 is the digest of the
+// description's bytes (manifests and run fingerprints name it).
 //
 // # Calibrated noise
 //

@@ -173,7 +173,29 @@ type merger struct {
 	full    [][]gate // full chunks, in order
 	size    int      // gates in full
 	flushed int      // runs synthesised
+	// konst[q] is the index in constMats of q's pending unitary while it
+	// is one of them alone (no other gate merged in), else -1; such a run
+	// is written from constSeq, synth's output computed once.
+	konst    []int8
+	constSeq [][]gate
+	// emptied reports that some run synthesised to nothing (the
+	// identity): only then can native two-qubit gates meet that the
+	// routed form did not cancel (see Compile).
+	emptied bool
+	// sched, when set, counts the gates as they are written.
+	sched *schedule
 }
+
+// constMats are the one-qubit gates the two-qubit translations insert
+// (cnot): runs that hold one of them alone are common on SWAP-heavy
+// programs, so their synthesis is computed once per merger.
+var constMats = []mat2{hMat, ryMinusPi, ryPlusPi}
+
+const (
+	constH int8 = iota
+	constRYMinus
+	constRYPlus
+)
 
 // mergeChunk is the size of the output chunks: large outputs grow by
 // chunks and are joined once, instead of being copied at every growth.
@@ -182,7 +204,11 @@ const mergeChunk = 1 << 20
 // newMerger returns a merger for n qubits whose output is expected to hold
 // about capacity gates (it grows by chunks beyond).
 func newMerger(fam Family, n, capacity int) *merger {
-	return &merger{fam: fam, pend: make([]mat2, n), has: make([]bool, n), out: make([]gate, 0, max(capacity, 1024))}
+	m := &merger{fam: fam, pend: make([]mat2, n), has: make([]bool, n), out: make([]gate, 0, max(capacity, 1024)), konst: make([]int8, n)}
+	for _, u := range constMats {
+		m.constSeq = append(m.constSeq, synth(nil, fam, u, 0))
+	}
+	return m
 }
 
 // room starts a new chunk when the current one cannot take k more gates.
@@ -202,6 +228,7 @@ func (m *merger) room(k int) {
 }
 
 func (m *merger) one(q int16, u mat2) {
+	m.konst[q] = -1
 	if m.has[q] {
 		m.pend[q] = mul2(u, m.pend[q])
 		return
@@ -209,10 +236,33 @@ func (m *merger) one(q int16, u mat2) {
 	m.pend[q], m.has[q] = u, true
 }
 
+// oneConst is one with the gate constMats[k].
+func (m *merger) oneConst(q int16, k int8) {
+	if m.has[q] {
+		m.one(q, constMats[k])
+		return
+	}
+	m.pend[q], m.has[q], m.konst[q] = constMats[k], true, k
+}
+
 func (m *merger) flush(q int16) {
 	if m.has[q] {
 		m.room(5) // synth writes at most five gates
-		m.out = synth(m.out, m.fam, m.pend[q], q)
+		before := len(m.out)
+		if k := m.konst[q]; k >= 0 {
+			for _, g := range m.constSeq[k] {
+				g.t = q
+				m.out = append(m.out, g)
+			}
+		} else {
+			m.out = synth(m.out, m.fam, m.pend[q], q)
+		}
+		m.emptied = m.emptied || len(m.out) == before
+		if m.sched != nil {
+			for _, g := range m.out[before:] {
+				m.sched.add(g)
+			}
+		}
 		m.has[q] = false
 		m.flushed++
 	}
@@ -225,6 +275,9 @@ func (m *merger) emit(g gate) {
 	}
 	m.room(1)
 	m.out = append(m.out, g)
+	if m.sched != nil {
+		m.sched.add(g)
+	}
 }
 
 func (m *merger) finish() []gate {
@@ -261,16 +314,16 @@ var (
 func (m *merger) cnot(c, t int16, native bool) {
 	switch {
 	case m.fam == FamilyCZ:
-		m.one(t, ryMinusPi)
+		m.oneConst(t, constRYMinus)
 		m.emit(gate{kind: circuit.CZ, t: t, c: c})
-		m.one(t, ryPlusPi)
+		m.oneConst(t, constRYPlus)
 	case native:
 		m.emit(gate{kind: circuit.CNOT, t: t, c: c})
 	default:
-		m.one(c, hMat)
-		m.one(t, hMat)
+		m.oneConst(c, constH)
+		m.oneConst(t, constH)
 		m.emit(gate{kind: circuit.CNOT, t: c, c: t})
-		m.one(c, hMat)
-		m.one(t, hMat)
+		m.oneConst(c, constH)
+		m.oneConst(t, constH)
 	}
 }

@@ -1,6 +1,8 @@
 package device
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"math"
@@ -93,7 +95,7 @@ func Parse(data []byte, file string) (*Device, error) {
 			return nil, p.errf(k, ErrInvalid, "missing")
 		}
 	}
-	d := &Device{Name: fd.Name, Note: fd.Note, Directed: fd.Directed, VirtualRZ: true}
+	d := &Device{Name: fd.Name, Note: fd.Note, Directed: fd.Directed, VirtualRZ: true, SHA256: sha256Hex(data)}
 	if strings.TrimSpace(fd.Name) == "" {
 		return nil, p.errf("name", ErrInvalid, "empty name")
 	}
@@ -311,4 +313,10 @@ func (p *parser) values(key string, v any, n int, what string) ([]float64, error
 		out[i] = f
 	}
 	return out, nil
+}
+
+// sha256Hex is the hex SHA-256 of a description's bytes (Device.SHA256).
+func sha256Hex(data []byte) string {
+	sum := sha256.Sum256(data)
+	return hex.EncodeToString(sum[:])
 }

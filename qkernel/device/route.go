@@ -12,11 +12,23 @@ import (
 // CNOT), else -1.
 type gate struct {
 	kind  circuit.Gate
+	mark  uint8 // the streaming canceller's (stream.go)
 	t, c  int16
 	angle float64
 }
 
 func (g gate) two() bool { return g.c >= 0 }
+
+// endpoint is one end of a front or extended-set gate while SWAP
+// candidates are scored: the physical qubit at the other end, the gate's
+// distance, whether it is in the extended set, and the next entry listed
+// at the same qubit (-1: none).
+type endpoint struct {
+	other int16
+	ext   bool
+	d     int32
+	next  int32
+}
 
 // toGates converts decomposed operations (no UCRY).
 func toGates(ops []circuit.Op) []gate {
@@ -226,7 +238,10 @@ func (r *router) place(gates []gate, n int) []int16 {
 // brought together along a shortest path (a release valve against
 // livelock). It returns the routed gates on local qubits (when emit), the
 // final mapping and the number of SWAPs.
-func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int) {
+//
+// With a sink (emit true), the routed gates go to sink in order instead
+// of the returned slice (which is then nil).
+func (r *router) route(all []gate, l2p []int16, emit bool, sink ...func(gate)) ([]gate, []int16, int) {
 	n := len(l2p)
 	l2p = slices.Clone(l2p)
 	// Only two-qubit gates enter the dependency graph. The one-qubit gates
@@ -234,12 +249,31 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 	// place at that time, just before the qubit's next two-qubit gate (or
 	// at the end): on each qubit the order is kept, and a one-qubit gate
 	// commutes with everything on other qubits.
-	gates := make([]gate, 0, len(all))
 	var ones [][]gate   // per logical qubit, its one-qubit gates in order
 	var upto [][2]int32 // per two-qubit gate: one-qubit gates due on (t, c) before it
+	nTwo := 0
 	if emit {
+		per := make([]int, n)
+		for _, g := range all {
+			if g.two() {
+				nTwo++
+			} else {
+				per[g.t]++
+			}
+		}
 		ones = make([][]gate, n)
+		for q := range ones {
+			ones[q] = make([]gate, 0, per[q])
+		}
+		upto = make([][2]int32, 0, nTwo)
+	} else {
+		for _, g := range all {
+			if g.two() {
+				nTwo++
+			}
+		}
 	}
+	gates := make([]gate, 0, nTwo)
 	for _, g := range all {
 		switch {
 		case g.two():
@@ -253,10 +287,14 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 	}
 	done := make([]int32, n) // one-qubit gates written per logical qubit
 	var out []gate
+	put := func(g gate) { out = append(out, g) }
+	if len(sink) > 0 {
+		put = sink[0]
+	}
 	writeOnes := func(q int16, until int32) {
 		for _, g := range ones[q][done[q]:until] {
 			g.t = l2p[q]
-			out = append(out, g)
+			put(g)
 		}
 		done[q] = until
 	}
@@ -296,7 +334,7 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 			last[g.c] = int32(i)
 		}
 	}
-	if emit {
+	if emit && len(sink) == 0 {
 		out = make([]gate, 0, len(all)+len(all)/2)
 	}
 	front := make([]int32, 0, 16)
@@ -321,6 +359,12 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 	cand := make([][2]int16, 0, 32)
 	candSeen := make([]uint32, r.k*r.k)
 	candStamp := uint32(0)
+	ends := make([]endpoint, 0, 64)
+	head := make([]int32, r.k) // per physical qubit: its first entry in ends, -1 none
+	for i := range head {
+		head[i] = -1
+	}
+	touched := make([]int16, 0, 64)
 	ext := make([]int32, 0, E)
 	queue := make([]int32, 0, 64)
 	swaps, stuck, sinceReset := 0, 0, 0
@@ -362,7 +406,7 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 			l2p[b] = p
 		}
 		if emit {
-			out = append(out, gate{kind: circuit.SWAP, t: q, c: p})
+			put(gate{kind: circuit.SWAP, t: q, c: p})
 		}
 		swaps++
 	}
@@ -383,7 +427,7 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 					writeOnes(g.c, upto[gi][1])
 					pg := g
 					pg.t, pg.c = l2p[g.t], l2p[g.c]
-					out = append(out, pg)
+					put(pg)
 				}
 				progress, ran = true, true
 				for _, s := range succ[gi] {
@@ -440,30 +484,55 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 				}
 			}
 		}
+		// Score every candidate by the change it makes: a swap (p, q)
+		// moves only the gates with a qubit on p or q, so the sums of
+		// distances are the current ones plus the changes of those gates
+		// (the same integers as summing every gate again, hence the same
+		// choice). Each front and extended-set gate is listed at both of
+		// its physical qubits (head, ends: linked lists in flat arrays).
+		ends = ends[:0]
+		var sf0, se0 int32
+		list := func(gi int32, ext bool) int32 {
+			g := gates[gi]
+			a, b := l2p[g.t], l2p[g.c]
+			d := r.d(a, b)
+			if head[a] < 0 {
+				touched = append(touched, a)
+			}
+			ends = append(ends, endpoint{other: b, d: d, ext: ext, next: head[a]})
+			head[a] = int32(len(ends) - 1)
+			if head[b] < 0 {
+				touched = append(touched, b)
+			}
+			ends = append(ends, endpoint{other: a, d: d, ext: ext, next: head[b]})
+			head[b] = int32(len(ends) - 1)
+			return d
+		}
+		for _, gi := range front {
+			sf0 += list(gi, false)
+		}
+		for _, gi := range ext {
+			se0 += list(gi, true)
+		}
 		best, bestH := 0, 0.0
 		for ci, c := range cand {
 			p, q := c[0], c[1]
-			pos := func(x int16) int16 {
-				switch v := l2p[x]; v {
-				case p:
-					return q
-				case q:
-					return p
-				default:
-					return v
+			sf, se := sf0, se0
+			for _, pq := range [2][2]int16{{p, q}, {q, p}} {
+				for e := head[pq[0]]; e >= 0; e = ends[e].next {
+					en := &ends[e]
+					if en.other == pq[1] {
+						continue // the gate on (p, q) keeps its distance
+					}
+					if delta := r.d(pq[1], en.other) - en.d; en.ext {
+						se += delta
+					} else {
+						sf += delta
+					}
 				}
-			}
-			var sf, se int32
-			for _, gi := range front {
-				g := gates[gi]
-				sf += r.d(pos(g.t), pos(g.c))
 			}
 			h := float64(sf) / float64(len(front))
 			if len(ext) > 0 {
-				for _, gi := range ext {
-					g := gates[gi]
-					se += r.d(pos(g.t), pos(g.c))
-				}
 				h += W * float64(se) / float64(len(ext))
 			}
 			h *= max(decay[p], decay[q])
@@ -471,6 +540,10 @@ func (r *router) route(all []gate, l2p []int16, emit bool) ([]gate, []int16, int
 				best, bestH = ci, h
 			}
 		}
+		for _, x := range touched {
+			head[x] = -1
+		}
+		touched = touched[:0]
 		p, q := cand[best][0], cand[best][1]
 		doSwap(p, q)
 		decay[p] += delta

@@ -284,6 +284,19 @@ func (nc *NoisyCircuit) runDensity(ctx context.Context) ([]float64, error) {
 			if p := t.Depolarizing; p != 0 {
 				pd.then(op.Target, DepolarizingSuperop(p))
 			}
+		} else if op.Gate != circuit.SWAP && pos[qs[0]] >= 0 && pos[qs[1]] >= 0 {
+			// Both qubits joined: their pending superoperators, the gate
+			// and its depolarizing in one pass (the arithmetic of the
+			// branch below).
+			var pre [2]*Superop
+			for j, q := range qs {
+				if pd.set[q] {
+					s := pd.s[q]
+					pre[j] = &s
+					pd.set[q] = false
+				}
+			}
+			d.fusedGate2(pos[qs[0]], pos[qs[1]], pre[0], pre[1], op.Gate, t.Depolarizing)
 		} else {
 			for j, q := range qs {
 				if pos[q] < 0 {

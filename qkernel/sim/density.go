@@ -208,20 +208,27 @@ func superRealRows(row0, row1 []complex128, cm int, s *[4][4]float64) {
 }
 
 // superComplexRows is superRealRows for a complex superoperator.
-func superComplexRows(row0, row1 []complex128, cm int, s *Superop) {
+func superComplexRows(row0, row1 []complex128, cm int, sp *Superop) {
 	row1 = row1[:len(row0)]
 	if cm >= 4 {
 		for b := 0; b < len(row0); b += 2 * cm {
-			superComplex(row0[b:b+cm:b+cm], row0[b+cm:b+2*cm:b+2*cm], row1[b:b+cm:b+cm], row1[b+cm:b+2*cm:b+2*cm], s)
+			superComplex(row0[b:b+cm:b+cm], row0[b+cm:b+2*cm:b+2*cm], row1[b:b+cm:b+cm], row1[b+cm:b+2*cm:b+2*cm], sp)
 		}
 		return
 	}
+	// The entries of the superoperator as locals: a store to the rows
+	// cannot change them, so they are not loaded again for every column
+	// (the same arithmetic).
+	s00, s01, s02, s03 := sp[0][0], sp[0][1], sp[0][2], sp[0][3]
+	s10, s11, s12, s13 := sp[1][0], sp[1][1], sp[1][2], sp[1][3]
+	s20, s21, s22, s23 := sp[2][0], sp[2][1], sp[2][2], sp[2][3]
+	s30, s31, s32, s33 := sp[3][0], sp[3][1], sp[3][2], sp[3][3]
 	for c := 0; c+cm < len(row0); c = (c | cm + 1) &^ cm {
 		v0, v1, v2, v3 := row0[c], row0[c+cm], row1[c], row1[c+cm]
-		row0[c] = s[0][0]*v0 + s[0][1]*v1 + s[0][2]*v2 + s[0][3]*v3
-		row0[c+cm] = s[1][0]*v0 + s[1][1]*v1 + s[1][2]*v2 + s[1][3]*v3
-		row1[c] = s[2][0]*v0 + s[2][1]*v1 + s[2][2]*v2 + s[2][3]*v3
-		row1[c+cm] = s[3][0]*v0 + s[3][1]*v1 + s[3][2]*v2 + s[3][3]*v3
+		row0[c] = s00*v0 + s01*v1 + s02*v2 + s03*v3
+		row0[c+cm] = s10*v0 + s11*v1 + s12*v2 + s13*v3
+		row1[c] = s20*v0 + s21*v1 + s22*v2 + s23*v3
+		row1[c+cm] = s30*v0 + s31*v1 + s32*v2 + s33*v3
 	}
 }
 
@@ -238,14 +245,18 @@ func superReal(lo0, hi0, lo1, hi1 []complex128, s *[4][4]float64) {
 	}
 }
 
-func superComplex(lo0, hi0, lo1, hi1 []complex128, s *Superop) {
+func superComplex(lo0, hi0, lo1, hi1 []complex128, sp *Superop) {
 	hi0, lo1, hi1 = hi0[:len(lo0)], lo1[:len(lo0)], hi1[:len(lo0)]
+	s00, s01, s02, s03 := sp[0][0], sp[0][1], sp[0][2], sp[0][3] // locals, as in superComplexRows
+	s10, s11, s12, s13 := sp[1][0], sp[1][1], sp[1][2], sp[1][3]
+	s20, s21, s22, s23 := sp[2][0], sp[2][1], sp[2][2], sp[2][3]
+	s30, s31, s32, s33 := sp[3][0], sp[3][1], sp[3][2], sp[3][3]
 	for j, v0 := range lo0 {
 		v1, v2, v3 := hi0[j], lo1[j], hi1[j]
-		lo0[j] = s[0][0]*v0 + s[0][1]*v1 + s[0][2]*v2 + s[0][3]*v3
-		hi0[j] = s[1][0]*v0 + s[1][1]*v1 + s[1][2]*v2 + s[1][3]*v3
-		lo1[j] = s[2][0]*v0 + s[2][1]*v1 + s[2][2]*v2 + s[2][3]*v3
-		hi1[j] = s[3][0]*v0 + s[3][1]*v1 + s[3][2]*v2 + s[3][3]*v3
+		lo0[j] = s00*v0 + s01*v1 + s02*v2 + s03*v3
+		hi0[j] = s10*v0 + s11*v1 + s12*v2 + s13*v3
+		lo1[j] = s20*v0 + s21*v1 + s22*v2 + s23*v3
+		hi1[j] = s30*v0 + s31*v1 + s32*v2 + s33*v3
 	}
 }
 

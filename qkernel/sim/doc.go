@@ -90,7 +90,9 @@
 // plus a final channel and readout errors per qubit; package qkernel/device
 // builds one from a device description. SimulateNoisy runs it on the
 // density matrix (consecutive one-qubit operations and channels on a qubit
-// fused into one superoperator) or by trajectories (quantum jumps), with
+// fused into one superoperator, which a two-qubit gate applies to both its
+// qubits in the same pass as the gate and its depolarizing channel, bit
+// for bit the separate passes) or by trajectories (quantum jumps), with
 // the output layout of Simulate. ThermalRelaxationKraus gives relaxation
 // over a time t from T1 and T2: amplitude damping gamma = 1 - exp(-t/T1)
 // composed with phase damping for 1/T_phi = 1/T2 - 1/(2 T1) (N&C 2010,

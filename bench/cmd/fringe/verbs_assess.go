@@ -31,6 +31,7 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	weights := fs.String("weights", "balanced", "index weights of the assessed form: balanced (1/(C*M_k)) or uniform (as published)")
 	ratio := fs.Float64("ratio", 10, "p2/p1: two-qubit over single-qubit error rate in the noise budget")
 	workers := fs.Int("workers", runtime.NumCPU(), "concurrent tasks")
+	devName, devInstances := assessDeviceFlags(fs)
 	quiet := fs.Bool("quiet", false, "print nothing but errors")
 	margin := fs.Float64("margin", assess.DefaultMargin, "equivalence margin of the verdict: the gap is called on par with the best baseline only when its whole interval lies within ±margin (a practical-equivalence band, the two one-sided tests of Schuirmann 1987); a gap whose interval holds 0 but leaves the band is not significantly different, which is not the same")
 	pos, err := parse(fs, args, stderr)
@@ -82,6 +83,9 @@ func runAssess(ctx context.Context, c *command, args []string, stdout, stderr io
 	}
 	if opt.Subsets, err = parseInts(*subsetsFlag); err != nil {
 		return usagef("-subsets: %v", err)
+	}
+	if err := setAssessDevice(fs, &opt, *devName, *devInstances); err != nil {
+		return err
 	}
 	dir := filepath.Join("fringe-out", "assess")
 	if len(pos) == 1 {

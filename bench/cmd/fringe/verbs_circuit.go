@@ -14,6 +14,7 @@ import (
 	"fringe/bench/plan"
 	"fringe/bench/spec"
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 )
 
 func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr io.Writer) error {
@@ -31,12 +32,23 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 	exportDir := fs.String("export", "", "write the OpenQASM 3 program of every test instance of a spec's splits into folder `DIR`, with index.csv mapping files to (dataset, pipeline, repeat, fold, row): fringe circuit -export DIR SPEC.toml")
 	model := fs.String("model", "", "with -export: the spec's interference or counts model whose balance and train_subset the circuits use (default: the first counts model, else the first interference model)")
 	workers := fs.Int("workers", runtime.NumCPU(), "with -export: splits compiled at once")
+	devName := fs.String("device", "", "compile to the device `NAME|FILE` (embedded: "+strings.Join(device.Names(), ", ")+"; or a device file): logical and routed native resources side by side; with -qasm, -qasm2 or -export the native routed programs")
+	qasm2 := fs.Bool("qasm2", false, "print OpenQASM 2.0 instead of the resources (with -export: write OpenQASM 2.0 files)")
 	pos, err := parse(fs, args, stderr)
 	if err != nil {
 		return helpOK(err)
 	}
+	var dev *device.Device
+	if *devName != "" {
+		if dev, err = loadDevice(*devName); err != nil {
+			return err
+		}
+	}
+	if *qasm && *qasm2 {
+		return usagef("-qasm (OpenQASM 3) and -qasm2 (OpenQASM 2.0) exclude each other")
+	}
 	if *exportDir != "" {
-		return runExport(ctx, fs, pos, *exportDir, *model, *workers, stdout, stderr)
+		return runExport(ctx, fs, pos, *exportDir, *model, *workers, dev, *qasm2, stdout, stderr)
 	}
 	if *model != "" {
 		return usagef("-model applies with -export only")
@@ -68,6 +80,14 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 	if err != nil {
 		return err
 	}
+	if dev != nil || *qasm2 {
+		switch {
+		case *qasm || *qasm2:
+			return printCircuitQASM(stdout, res, *ds, *pipeline, *balance, dev, map[bool]int{false: 3, true: 2}[*qasm2])
+		default:
+			return printDeviceResources(stdout, res, *ds, *pipeline, dev)
+		}
+	}
 	if *qasm {
 		text, err := circuit.QASM3(res.Circuit)
 		if err != nil {
@@ -94,11 +114,11 @@ func runCircuit(ctx context.Context, c *command, args []string, stdout, stderr i
 // runExport is `fringe circuit -export DIR SPEC.toml`: the circuits of
 // every test instance of the spec, for a device or simulator of the
 // user's choice, whose counts a model of kind counts reads back.
-func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model string, workers int, stdout, stderr io.Writer) error {
+func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model string, workers int, dev *device.Device, qasm2 bool, stdout, stderr io.Writer) error {
 	var clash []string
 	fs.Visit(func(f *flag.Flag) {
 		switch f.Name {
-		case "export", "model", "workers":
+		case "export", "model", "workers", "device", "qasm2":
 		default:
 			clash = append(clash, "-"+f.Name)
 		}
@@ -121,7 +141,12 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 		return err
 	}
 	printWarnings(s, stderr)
-	sum, err := export.Circuits(ctx, pl, dir, export.Options{Model: model, Workers: workers})
+	opt := export.Options{Model: model, Workers: workers, Device: dev}
+	version := "OpenQASM 3"
+	if qasm2 {
+		opt.QASMVersion, version = 2, "OpenQASM 2.0"
+	}
+	sum, err := export.Circuits(ctx, pl, dir, opt)
 	if err != nil {
 		return err
 	}
@@ -137,7 +162,13 @@ func runExport(ctx context.Context, fs *flag.FlagSet, pos []string, dir, model s
 		}
 		settings = fmt.Sprintf("settings of model %s: %s, %s", sum.Model, w, sub)
 	}
-	fmt.Fprintf(stdout, "wrote %d OpenQASM 3 programs (%.1f MB, at most %d qubits) and index.csv to %s\n", sum.Circuits, float64(sum.Bytes)/1e6, sum.MaxQubits, sum.Dir)
+	if sum.Device != "" {
+		fmt.Fprintf(stdout, "wrote %d native %s programs routed on device %s (%.1f MB, at most %d qubits, %d two-qubit gates, %.1f us) and index.csv to %s\n",
+			sum.Circuits, version, sum.Device, float64(sum.Bytes)/1e6, sum.MaxQubits, sum.MaxTwoQubit, sum.MaxDurationNS/1000, sum.Dir)
+		fmt.Fprintf(stdout, "index.csv names each program's measured physical qubits (%s); the bits keep their names, so counts are reported as without a device\n", strings.Join(export.DeviceIndexColumns[1:3], ", "))
+	} else {
+		fmt.Fprintf(stdout, "wrote %d %s programs (%.1f MB, at most %d qubits) and index.csv to %s\n", sum.Circuits, version, float64(sum.Bytes)/1e6, sum.MaxQubits, sum.Dir)
+	}
 	fmt.Fprintf(stdout, "circuits: %s\n", settings)
 	fmt.Fprintf(stdout, "report outcomes as CSV with columns %s (and pipeline when the spec has several); class is the bit string class_out[q-1]...class_out[0]\n", strings.Join(modelkit.CountsColumns, ","))
 	return nil
