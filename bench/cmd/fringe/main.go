@@ -96,8 +96,8 @@ type command struct {
 
 func commands() []*command {
 	return []*command{
-		{name: "demo", args: "[-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet]", short: "run the built-in demo experiment on embedded data", run: runDemo},
-		{name: "run", args: "SPEC.toml [-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet]", short: "run an experiment spec (an interrupted run continues where it stopped)", run: runSpec},
+		{name: "demo", args: "[-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-cpuprofile FILE]", short: "run the built-in demo experiment on embedded data", run: runDemo},
+		{name: "run", args: "SPEC.toml [-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-cpuprofile FILE]", short: "run an experiment spec (an interrupted run continues where it stopped)", run: runSpec},
 		{name: "list", args: "", short: "list embedded datasets, pipeline steps and models", run: runList},
 		{name: "rank", args: "SCORES.csv [-alpha A] [-json] [-plot FILE]", short: "rank models across datasets from a dataset,model,score CSV (Friedman, Iman-Davenport, Nemenyi CD)", run: runRank},
 		{name: "compare", args: "BASELINE_DIR NEW_DIR [-tol T] [-alpha A] [-metric M] [-json]", short: "compare a new run directory with a baseline run; exit status 1 on a significant regression", run: runCompare},

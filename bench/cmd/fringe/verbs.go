@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"runtime"
+	"runtime/pprof"
 	"strings"
 	"time"
 
@@ -68,6 +69,7 @@ type runFlags struct {
 	figures bool
 	grace   time.Duration
 	memory  float64 // GiB
+	profile string  // -cpuprofile FILE
 }
 
 func addRunFlags(fs *flag.FlagSet) *runFlags {
@@ -79,6 +81,7 @@ func addRunFlags(fs *flag.FlagSet) *runFlags {
 	fs.BoolVar(&rf.fresh, "fresh", false, "discard the unfinished run kept in the partial run directory instead of resuming it")
 	fs.BoolVar(&rf.figures, "figures", true, "write the figures (SVG, PDF, PNG); -figures=false keeps only tables and CSV files")
 	fs.Float64Var(&rf.memory, "memory", 8, "memory limit in GiB for the tasks that run at once: a plan whose models' estimate (an SVM's kernel cache and vectors per task, times -workers) exceeds it is refused before it starts")
+	fs.StringVar(&rf.profile, "cpuprofile", "", "write a CPU profile of the whole run (planning, tasks, files and figures) to `FILE`, for go tool pprof")
 	fs.DurationVar(&rf.grace, "grace", runner.DefaultGrace, "after an interrupt (SIGINT, SIGTERM), how long the tasks in flight may still finish before they are abandoned (a second interrupt abandons them at once; finished tasks are always kept)")
 	return rf
 }
@@ -93,6 +96,11 @@ func runDemo(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) > 0 {
 		return usagef("demo takes no arguments, got %q", pos[0])
 	}
+	stop, err := startProfile(rf.profile)
+	if err != nil {
+		return err
+	}
+	defer stop()
 	s, err := spec.Demo()
 	if err != nil {
 		return err
@@ -113,11 +121,37 @@ func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) != 1 {
 		return usagef("run takes exactly one spec file (see 'fringe run -h')")
 	}
+	stop, err := startProfile(rf.profile)
+	if err != nil {
+		return err
+	}
+	defer stop()
 	s, err := spec.Load(pos[0])
 	if err != nil {
 		return err
 	}
 	return execute(ctx, s, rf, append([]string{"fringe", "run"}, args...), stdout, stderr)
+}
+
+// startProfile starts a CPU profile written to path (-cpuprofile) and
+// returns the function that stops it and closes the file; with path ""
+// it does nothing. A file that cannot be created is bad usage.
+func startProfile(path string) (stop func(), err error) {
+	if path == "" {
+		return func() {}, nil
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return nil, usagef("-cpuprofile: %v", err)
+	}
+	if err := pprof.StartCPUProfile(f); err != nil {
+		f.Close()
+		return nil, usagef("-cpuprofile: %v", err)
+	}
+	return func() {
+		pprof.StopCPUProfile()
+		f.Close()
+	}, nil
 }
 
 func helpOK(err error) error {
