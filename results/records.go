@@ -76,16 +76,25 @@ func Fmt(v float64) string {
 		v = 0 // no "-0.000000"
 	}
 	s := strconv.FormatFloat(v, 'f', FloatDigits, 64)
-	if s == "-0."+strings.Repeat("0", FloatDigits) {
+	if s == negZero {
 		s = s[1:]
 	}
 	return s
 }
 
+// negZero is how a tiny negative value prints with FloatDigits decimals.
+var negZero = "-0." + strings.Repeat("0", FloatDigits)
+
 // WritePredictions writes predictions.csv.
 func WritePredictions(w io.Writer, rows []Prediction) error {
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "unused", "exact_predicted"})
+	// Names repeat from row to row (a task's rows share dataset, pipeline
+	// and model; labels are class names): each is escaped once.
+	var esc cellCache
+	rec := make([]string, 14)
+	var probs []string
+	var joined strings.Builder
 	for _, r := range rows {
 		correct := "0"
 		if r.Label == r.Predicted {
@@ -95,19 +104,51 @@ func WritePredictions(w io.Writer, rows []Prediction) error {
 		if r.Shots > 0 {
 			shots = strconv.Itoa(r.Shots)
 		}
-		probs := make([]string, len(r.Probs))
-		for i, v := range r.Probs {
-			probs[i] = Fmt(v)
-			if math.IsNaN(v) {
-				probs[i] = "nan"
+		ps := ""
+		if len(r.Probs) > 0 {
+			probs = probs[:0]
+			for _, v := range r.Probs {
+				if math.IsNaN(v) {
+					probs = append(probs, "nan")
+				} else {
+					probs = append(probs, Fmt(v))
+				}
 			}
+			joined.Reset()
+			for i, p := range probs {
+				if i > 0 {
+					joined.WriteByte(';')
+				}
+				joined.WriteString(p)
+			}
+			ps = joined.String()
 		}
-		name := csvTexts(r.Dataset, r.Pipeline, r.Model, r.Label, r.Predicted, r.Exact)
-		cw.Write([]string{name[0], name[1], name[2], strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, strings.Join(probs, ";"), Fmt(r.Unused), name[5]})
+		rec[0], rec[1], rec[2] = esc.get(r.Dataset), esc.get(r.Pipeline), esc.get(r.Model)
+		rec[3], rec[4], rec[5] = strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold), strconv.Itoa(r.Row)
+		rec[6], rec[7], rec[8] = esc.get(r.Label), esc.get(r.Predicted), correct
+		rec[9], rec[10], rec[11], rec[12], rec[13] = Fmt(r.PAcc), shots, ps, Fmt(r.Unused), esc.get(r.Exact)
+		cw.Write(rec)
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// cellCache remembers EscapeCSVCell of the texts it was asked for.
+type cellCache map[string]string
+
+func (c *cellCache) get(s string) string {
+	if s == "" {
+		return ""
+	}
+	if *c == nil {
+		*c = map[string]string{}
+	}
+	if e, ok := (*c)[s]; ok {
+		return e
+	}
+	e := EscapeCSVCell(s)
+	(*c)[s] = e
+	return e
 }
 
 // WriteFolds writes folds.csv.

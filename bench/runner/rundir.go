@@ -27,9 +27,13 @@ const Version = "0.1.0-dev"
 // timings.csv, in task order.
 func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fold, []results.Timing) {
 	res = runOnly(res)
-	var preds []results.Prediction
-	var folds []results.Fold
-	var times []results.Timing
+	nPred := 0
+	for _, r := range res {
+		nPred += len(p.Datasets[r.Task.Dataset].Splits[r.Task.Split].Test)
+	}
+	preds := make([]results.Prediction, 0, nPred)
+	folds := make([]results.Fold, 0, len(res))
+	times := make([]results.Timing, 0, len(res))
 	for _, r := range res {
 		t := r.Task
 		d := p.Datasets[t.Dataset]
