@@ -43,6 +43,12 @@ type Options struct {
 	// SaveEvery is the longest a finished task waits before it is handed
 	// to Save; 0 means DefaultSaveEvery.
 	SaveEvery time.Duration
+	// Keep, if set, receives the results still pending when every task
+	// has succeeded, instead of Save (Partial.Hold keeps them in memory):
+	// for a caller that writes the complete run at once, so that a run
+	// shorter than SaveEvery writes no task files only to delete them
+	// again. A failed or interrupted run still saves them.
+	Keep func(batch []TaskResult)
 	// Grace is how long the tasks in flight may still run once ctx is
 	// done (no task starts after that): after it their contexts are
 	// cancelled, so that simulators stop between gates and external
@@ -165,6 +171,9 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	inFlight, cancelTasks := context.WithCancelCause(context.Background())
 	defer cancelTasks(nil)
 	sv := newSaver(opt.Save, opt.SaveEvery, cancelStop)
+	if sv != nil {
+		sv.keep = opt.Keep
+	}
 	var mu sync.Mutex
 	done, running := 0, 0
 	totalFits := p.FitsOf(tasks)
@@ -260,7 +269,7 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	mu.Lock()
 	gaveUp = true
 	mu.Unlock()
-	saveErr := sv.close()
+	saveErr := sv.close(ctx.Err() == nil && context.Cause(stop) == nil)
 	cause := context.Cause(stop)
 	switch {
 	case ctx.Err() != nil:
@@ -283,6 +292,10 @@ type saver struct {
 	err     error
 	stop    chan struct{}
 	done    chan struct{}
+	// keep receives what is pending at close after a successful run
+	// instead of save (Options.Keep).
+	keep     func([]TaskResult)
+	keepLast bool // set by close: the last batch goes to keep
 }
 
 func newSaver(save func([]TaskResult) error, every time.Duration, fail context.CancelCauseFunc) *saver {
@@ -302,7 +315,19 @@ func newSaver(save func([]TaskResult) error, every time.Duration, fail context.C
 			case <-tick.C:
 				s.flush()
 			case <-s.stop:
-				s.flush()
+				s.mu.Lock()
+				keep := s.keepLast
+				s.mu.Unlock()
+				if keep {
+					s.mu.Lock()
+					batch := s.pending
+					s.pending = nil
+					s.mu.Unlock()
+					sort.Slice(batch, func(a, b int) bool { return batch[a].Task.Index < batch[b].Task.Index })
+					s.keep(batch)
+				} else {
+					s.flush()
+				}
 				return
 			}
 		}
@@ -340,11 +365,15 @@ func (s *saver) flush() {
 	}
 }
 
-// close flushes what is pending and returns the first save error.
-func (s *saver) close() error {
+// close flushes what is pending (to keep instead, when the run succeeded
+// and keep is set) and returns the first save error.
+func (s *saver) close(succeeded bool) error {
 	if s == nil {
 		return nil
 	}
+	s.mu.Lock()
+	s.keepLast = s.keep != nil && succeeded && s.err == nil
+	s.mu.Unlock()
 	close(s.stop)
 	<-s.done
 	s.mu.Lock()

@@ -390,6 +390,28 @@ func (pr *Partial) Save(batch []TaskResult) error {
 	return nil
 }
 
+// Hold records a batch of finished tasks of the shard in memory only, as
+// Save without writing them: Results returns them, a later run does not
+// find them. It is Options.Keep for Execute, when the run directory is
+// written right after. It panics as Save does.
+func (pr *Partial) Hold(batch []TaskResult) {
+	pr.mu.Lock()
+	defer pr.mu.Unlock()
+	for _, r := range batch {
+		i := r.Task.Index
+		if i < 0 || i >= len(pr.member) || !pr.member[i] {
+			panic(fmt.Sprintf("runner: Partial.Hold: task %d is not part of shard %s", i, pr.shard))
+		}
+		if pr.have[i] != nil {
+			panic(fmt.Sprintf("runner: Partial.Hold: task %d held or saved twice", i))
+		}
+	}
+	for _, r := range batch {
+		pr.have[r.Task.Index] = &r
+		pr.nHave++
+	}
+}
+
 // create makes the directory and writes run.json first (only if no other
 // process has created it meanwhile; then it is locked), then tasks/ and
 // PARTIAL. Killed at any point, it leaves a directory that OpenPartial

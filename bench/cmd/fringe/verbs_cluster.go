@@ -53,6 +53,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		partialDir = out
 	}
 	start := time.Now()
+	if rf.figures && !sharded {
+		// Built once per process, beside planning and the tasks, so
+		// that the figures do not wait for it.
+		go results.WarmFigureFonts()
+	}
 	pl, err := plan.New(s)
 	if err != nil {
 		return err
@@ -89,6 +94,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 			grace = -1 // -grace 0: abandon at once
 		}
 		opt := runner.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery, Grace: grace, Abandon: abandonOf(ctx)}
+		if !sharded {
+			// The run directory is written as soon as the tasks are
+			// done: the tasks still pending then need no task file.
+			opt.Keep = pr.Hold
+		}
 		var prog *runner.Progress
 		if !rf.quiet {
 			all, err := pl.ShardTasks(shard)
