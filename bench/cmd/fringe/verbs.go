@@ -80,7 +80,7 @@ func addRunFlags(fs *flag.FlagSet) *runFlags {
 	fs.StringVar(&rf.shard, "shard", "", "run only shard `i/n`, the i-th of n deterministic slices of the tasks, and write a partial run directory for 'fringe merge'")
 	fs.BoolVar(&rf.fresh, "fresh", false, "discard the unfinished run kept in the partial run directory instead of resuming it")
 	fs.BoolVar(&rf.figures, "figures", true, "write the figures (SVG, PDF, PNG); -figures=false keeps only tables and CSV files")
-	fs.Float64Var(&rf.memory, "memory", 8, "memory limit in GiB for the tasks that run at once: a plan whose models' estimate (an SVM's kernel cache and vectors per task, times -workers) exceeds it is refused before it starts")
+	fs.Float64Var(&rf.memory, "memory", 8, "memory limit in GiB for the tasks that run at once: a plan whose estimate (the largest task's model and prepared data on the largest training part, times -workers, plus the loaded datasets) exceeds it is refused before it starts, naming the key to change")
 	fs.StringVar(&rf.profile, "cpuprofile", "", "write a CPU profile of the whole run (planning, tasks, files and figures) to `FILE`, for go tool pprof")
 	fs.DurationVar(&rf.grace, "grace", runner.DefaultGrace, "after an interrupt (SIGINT, SIGTERM), how long the tasks in flight may still finish before they are abandoned (a second interrupt abandons them at once; finished tasks are always kept)")
 	return rf
