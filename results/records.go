@@ -1,6 +1,7 @@
 package results
 
 import (
+	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -85,70 +86,128 @@ func Fmt(v float64) string {
 // negZero is how a tiny negative value prints with FloatDigits decimals.
 var negZero = "-0." + strings.Repeat("0", FloatDigits)
 
-// WritePredictions writes predictions.csv.
+// WritePredictions writes predictions.csv. The file is what encoding/csv
+// writes for these records (fields quoted only where csv.Writer quotes
+// them); it is formed directly, since it is the largest file of a run
+// (one row per test instance of every task): every distinct name is
+// escaped and quoted once, numbers are appended without temporary
+// strings.
 func WritePredictions(w io.Writer, rows []Prediction) error {
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "unused", "exact_predicted"})
-	// Names repeat from row to row (a task's rows share dataset, pipeline
-	// and model; labels are class names): each is escaped once.
-	var esc cellCache
-	rec := make([]string, 14)
-	var probs []string
-	var joined strings.Builder
-	for _, r := range rows {
-		correct := "0"
-		if r.Label == r.Predicted {
-			correct = "1"
-		}
-		shots := ""
-		if r.Shots > 0 {
-			shots = strconv.Itoa(r.Shots)
-		}
-		ps := ""
-		if len(r.Probs) > 0 {
-			probs = probs[:0]
-			for _, v := range r.Probs {
-				if math.IsNaN(v) {
-					probs = append(probs, "nan")
-				} else {
-					probs = append(probs, Fmt(v))
-				}
-			}
-			joined.Reset()
-			for i, p := range probs {
-				if i > 0 {
-					joined.WriteByte(';')
-				}
-				joined.WriteString(p)
-			}
-			ps = joined.String()
-		}
-		rec[0], rec[1], rec[2] = esc.get(r.Dataset), esc.get(r.Pipeline), esc.get(r.Model)
-		rec[3], rec[4], rec[5] = strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold), strconv.Itoa(r.Row)
-		rec[6], rec[7], rec[8] = esc.get(r.Label), esc.get(r.Predicted), correct
-		rec[9], rec[10], rec[11], rec[12], rec[13] = Fmt(r.PAcc), shots, ps, Fmt(r.Unused), esc.get(r.Exact)
-		cw.Write(rec)
+	var names csvNames
+	if b, ok := w.(*bytes.Buffer); ok {
+		b.Grow(64 * len(rows)) // a typical row takes 40 to 80 bytes
 	}
-	cw.Flush()
-	return cw.Error()
+	buf := make([]byte, 0, 64<<10)
+	buf = append(buf, "dataset,pipeline,model,repeat,fold,row,label,predicted,correct,p_acc,shots,probs,unused,exact_predicted\n"...)
+	for _, r := range rows {
+		buf = append(buf, names.get(r.Dataset)...)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Pipeline)...)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Model)...)
+		buf = append(buf, ',')
+		buf = strconv.AppendInt(buf, int64(r.Repeat), 10)
+		buf = append(buf, ',')
+		buf = strconv.AppendInt(buf, int64(r.Fold), 10)
+		buf = append(buf, ',')
+		buf = strconv.AppendInt(buf, int64(r.Row), 10)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Label)...)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Predicted)...)
+		if r.Label == r.Predicted {
+			buf = append(buf, ",1,"...)
+		} else {
+			buf = append(buf, ",0,"...)
+		}
+		buf = appendFmt(buf, r.PAcc)
+		buf = append(buf, ',')
+		if r.Shots > 0 {
+			buf = strconv.AppendInt(buf, int64(r.Shots), 10)
+		}
+		buf = append(buf, ',')
+		for i, v := range r.Probs {
+			if i > 0 {
+				buf = append(buf, ';')
+			}
+			if math.IsNaN(v) {
+				buf = append(buf, "nan"...)
+			} else {
+				buf = appendFmt(buf, v)
+			}
+		}
+		buf = append(buf, ',')
+		buf = appendFmt(buf, r.Unused)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Exact)...)
+		buf = append(buf, '\n')
+		if len(buf) >= 60<<10 {
+			if _, err := w.Write(buf); err != nil {
+				return err
+			}
+			buf = buf[:0]
+		}
+	}
+	_, err := w.Write(buf)
+	return err
 }
 
-// cellCache remembers EscapeCSVCell of the texts it was asked for.
-type cellCache map[string]string
+// appendFmt appends Fmt(v).
+func appendFmt(dst []byte, v float64) []byte {
+	if math.IsNaN(v) {
+		return dst
+	}
+	if v == 0 {
+		v = 0 // no "-0.000000"
+	}
+	start := len(dst)
+	dst = strconv.AppendFloat(dst, v, 'f', FloatDigits, 64)
+	if string(dst[start:]) == negZero {
+		dst = append(dst[:start], dst[start+1:]...)
+	}
+	return dst
+}
 
-func (c *cellCache) get(s string) string {
+// csvNames remembers the CSV field of each text it was asked for: the text
+// escaped (EscapeCSVCell) and quoted as encoding/csv quotes a field. The
+// last texts asked for are compared first (consecutive rows mostly repeat
+// them).
+type csvNames struct {
+	fields    map[string]string
+	last      [4]string
+	lastField [4]string
+	next      int
+}
+
+func (c *csvNames) get(s string) string {
 	if s == "" {
 		return ""
 	}
-	if *c == nil {
-		*c = map[string]string{}
+	for i, l := range c.last {
+		if l == s {
+			return c.lastField[i]
+		}
 	}
-	if e, ok := (*c)[s]; ok {
-		return e
+	f := c.field(s)
+	c.last[c.next], c.lastField[c.next] = s, f
+	c.next = (c.next + 1) % len(c.last)
+	return f
+}
+
+func (c *csvNames) field(s string) string {
+	if c.fields == nil {
+		c.fields = map[string]string{}
 	}
-	e := EscapeCSVCell(s)
-	(*c)[s] = e
-	return e
+	if f, ok := c.fields[s]; ok {
+		return f
+	}
+	var b strings.Builder
+	cw := csv.NewWriter(&b)
+	cw.Write([]string{EscapeCSVCell(s), ""}) // two fields: one empty field alone is written differently
+	cw.Flush()
+	f := strings.TrimSuffix(b.String(), ",\n")
+	c.fields[s] = f
+	return f
 }
 
 // WriteFolds writes folds.csv.
