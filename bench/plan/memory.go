@@ -128,6 +128,20 @@ func (p *Plan) DataBytes() int64 {
 	return b
 }
 
+// MemoryNeed estimates the peak memory of the run with workers tasks at
+// once: the loaded data (DataBytes) and workers times the largest task
+// (TaskMemory), in bytes. Models whose estimate fails count nothing (their
+// error is reported, located, when the split is prepared).
+func (p *Plan) MemoryNeed(workers int) int64 {
+	var worst int64
+	for mi := range p.Spec.Models {
+		if m, err := p.TaskMemory(mi); err == nil {
+			worst = max(worst, m.Bytes)
+		}
+	}
+	return p.DataBytes() + int64(max(1, workers))*worst
+}
+
 // CheckMemory refuses a plan whose tasks would need more than limit bytes
 // when workers of them run at once, each as large as the largest
 // (TaskMemory), beside the loaded datasets (DataBytes): an input error

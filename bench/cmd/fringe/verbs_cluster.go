@@ -65,9 +65,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 	if !(rf.memory > 0) {
 		return usagef("-memory must be a positive number of GiB, got %v", rf.memory)
 	}
-	if err := pl.CheckMemory(rf.workers, int64(rf.memory*(1<<30))); err != nil {
+	limit := int64(rf.memory * (1 << 30))
+	if err := pl.CheckMemory(rf.workers, limit); err != nil {
 		return err
 	}
+	defer runner.SetGC(pl.MemoryNeed(rf.workers), limit)()
 	pr, err := runner.OpenPartial(partialDir, pl, shard, runner.PartialOptions{Fresh: rf.fresh, Workers: rf.workers, Start: start})
 	if err != nil {
 		return err
