@@ -139,15 +139,24 @@ func (a runIdentity) differences(b runIdentity) string {
 	return strings.Join(d, "; ")
 }
 
-// identity builds the identity of a plan's shard.
+// identity builds the identity of a plan's shard, but for its PlanSHA,
+// which withPlan adds: the plan's fingerprint digests all its data and
+// tasks, and a run that finishes before it saves anything never needs it.
 func identity(p *plan.Plan, s plan.Shard, nShardTasks, workers int, started time.Time) runIdentity {
 	dir := absDir(p.Spec.Dir) // "" for a built-in spec
 	return runIdentity{
 		Format: partialFormat, Version: Version,
 		SpecName: p.Spec.Name, SpecSHA: spec.CanonicalSHA(p.Spec.Source), Seed: p.Spec.Seed,
-		PlanSHA: p.Fingerprint(), Tasks: len(p.Tasks), Shard: s.String(), ShardTasks: nShardTasks,
+		Tasks: len(p.Tasks), Shard: s.String(), ShardTasks: nShardTasks,
 		SpecFile: p.Spec.File, SpecDir: dir, SpecText: string(p.Spec.Source),
 		Started: started.UTC().Format(time.RFC3339Nano), Workers: workers,
+	}
+}
+
+// withPlan sets the identity's PlanSHA to the fingerprint of p, once.
+func (a *runIdentity) withPlan(p *plan.Plan) {
+	if a.PlanSHA == "" {
+		a.PlanSHA = p.Fingerprint()
 	}
 }
 
@@ -236,6 +245,7 @@ func OpenPartial(dir string, p *plan.Plan, s plan.Shard, opt PartialOptions) (*P
 	if err != nil && !opt.Fresh {
 		return nil, bad("%v; run again with -fresh to discard it", err)
 	}
+	pr.id.withPlan(p)
 	if err == nil && !opt.Fresh && !have.same(pr.id) {
 		return nil, bad("holds the tasks of %s; they are not mixed with this run: finish that run with its own spec and flags, or run again with -fresh to discard it",
 			have.differences(pr.id))
@@ -366,6 +376,7 @@ func (pr *Partial) Save(batch []TaskResult) error {
 		}
 	}
 	if !pr.created {
+		pr.id.withPlan(pr.plan)
 		if err := pr.create(); err != nil {
 			return err
 		}
