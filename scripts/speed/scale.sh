@@ -6,7 +6,9 @@
 # flakes, 16 bands), with 2 classes (PET or not) and 10 (polymers), at each
 # size in SIZES rows. Protocol: pipeline std+l2, stratified 5-fold CV
 # (seed 7), one model at a time: the exact interference classifier, k-NN
-# (k = 5), RBF SVM (C = 1, gamma "scale") and logistic regression (C = 1).
+# (k = 5), RBF SVM (C = 1, gamma "scale") and logistic regression (C = 1);
+# on fringe's side also k-NN forced to brute force (search = "brute"), the
+# reference of its default search (a k-d tree where its probe says it pays).
 #
 # Each model runs alone, on one core on both sides (fringe -workers 1 with
 # GOMAXPROCS=1; Python with OPENBLAS_NUM_THREADS=1 and OMP_NUM_THREADS=1, as
@@ -42,13 +44,14 @@ model_toml() { # kind
   case $1 in
   interference) printf '[[model]]\nkind = "interference"\n' ;;
   knn) printf '[[model]]\nkind = "knn"\nk = 5\n' ;;
+  knnbrute) printf '[[model]]\nkind = "knn"\nk = 5\nsearch = "brute"\nname = "knn-brute"\n' ;;
   svm) printf '[[model]]\nkind = "svm"\nkernel = "rbf"\nC = 1.0\ngamma = "scale"\n' ;;
   logreg) printf '[[model]]\nkind = "logreg"\nC = 1.0\n' ;;
   esac
 }
 model_name() {
   case $1 in
-  interference) echo interference ;; knn) echo knn-k5 ;; svm) echo svm-rbf-C1 ;; logreg) echo logreg-C1 ;;
+  interference) echo interference ;; knn) echo knn-k5 ;; knnbrute) echo knn-brute ;; svm) echo svm-rbf-C1 ;; logreg) echo logreg-C1 ;;
   esac
 }
 spec() { # name csv kinds...
@@ -62,13 +65,18 @@ for k in $classes; do
   for n in $sizes; do
     csv="$d/flakes-$k-$n.csv"
     "$d/scaledata" -rows "$n" -classes "$k" -out "$csv"
-    for m in interference knn svm logreg; do
+    for m in interference knn knnbrute svm logreg; do
       name=$(model_name $m)
       spec "s$k-$n-$m" "$csv" "$m" > "$d/s.toml"
       GOMAXPROCS=1 "$d/fringe" run "$d/s.toml" -out "$d/run" -workers 1 -quiet -fresh -figures=false
       go_s=$(awk -F, 'NR > 1 {s += $6} END {printf "%.3f", s}' "$d/run/timings.csv")
       go_acc=$(awk -F, 'NR == 2 {print $6}' "$d/run/summary.csv")
-      read -r _ py_s py_acc < <($py scripts/speed/scale.py "$csv" "$d/run/predictions.csv" "$name")
+      if [[ $m == knnbrute ]]; then
+        # fringe's k-NN forced to brute force: the reference of its k-d tree.
+        py_s=nan py_acc=nan
+      else
+        read -r _ py_s py_acc < <($py scripts/speed/scale.py "$csv" "$d/run/predictions.csv" "$name")
+      fi
       echo "$m $k $n $go_s $py_s $go_acc $py_acc" | tee -a "$d/rows.txt" >&2
     done
   done
@@ -76,13 +84,18 @@ done
 
 printf '\nper model, one core each side, seconds summed over 5 folds (fit + predict, pipeline included)\n'
 printf '%-13s %7s %7s %10s %12s %7s %9s %9s\n' model classes rows fringe_s sklearn_s ratio acc_fr acc_sk
-awk '{printf "%-13s %7s %7s %10.3f %12.3f %7.1f %9.4f %9.4f\n", $1, $2, $3, $4, $5, $5/$4, $6, $7}' "$d/rows.txt"
+awk '{if ($5 == "nan") printf "%-13s %7s %7s %10.3f %12s %7s %9.4f %9s\n", $1, $2, $3, $4, "-", "-", $6, "-";
+      else printf "%-13s %7s %7s %10.3f %12.3f %7.1f %9.4f %9.4f\n", $1, $2, $3, $4, $5, $5/$4, $6, $7}' "$d/rows.txt"
+printf '\nk-NN: the default search (k-d tree where its probe pays, else brute force) against brute force, fringe\n'
+printf '%7s %7s %10s %10s %7s\n' classes rows auto_s brute_s brute/auto
+awk '$1 == "knn" {a[$2 " " $3] = $4} $1 == "knnbrute" {printf "%7s %7s %10.3f %10.3f %7.2f\n", $2, $3, a[$2 " " $3], $4, $4/a[$2 " " $3]}' "$d/rows.txt"
 printf '\ngrowth exponent (least-squares slope of log time against log rows over %s rows)\n' "$sizes"
 printf '%-13s %7s %8s %8s\n' model classes fringe sklearn
 awk '{key = $1 " " $2; if (!(key in seen)) {seen[key] = 1; order[++n] = key}
       x = log($3); nn[key]++; sx[key] += x; sxx[key] += x*x; sy[key] += log($4); sxy[key] += x*log($4); sz[key] += log($5); sxz[key] += x*log($5)}
      END {for (i = 1; i <= n; i++) {k = order[i]; split(k, p, " "); den = nn[k]*sxx[k] - sx[k]^2
           if (den == 0) continue
+          if (p[1] == "knnbrute") {printf "%-13s %7s %8.2f %8s\n", p[1], p[2], (nn[k]*sxy[k] - sx[k]*sy[k])/den, "-"; continue}
           printf "%-13s %7s %8.2f %8.2f\n", p[1], p[2], (nn[k]*sxy[k] - sx[k]*sy[k])/den, (nn[k]*sxz[k] - sx[k]*sz[k])/den}}' "$d/rows.txt"
 
 big=$(echo $sizes | tr ' ' '\n' | sort -g | tail -1)
