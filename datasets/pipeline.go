@@ -294,8 +294,11 @@ func (p *Pipeline) fit(X *mat.Dense, y, rows []int, wantOut bool) (*mat.Dense, e
 	cur := X
 	for i, s := range p.Steps {
 		var err error
+		cs, checked := s.(checkedStep) // cur is checked: the input, or a step's checked output
 		if ls, ok := s.(LabeledStep); ok && y != nil {
 			err = ls.FitLabeled(cur, y)
+		} else if checked {
+			err = cs.fitChecked(cur)
 		} else {
 			err = s.Fit(cur)
 		}
@@ -305,7 +308,12 @@ func (p *Pipeline) fit(X *mat.Dense, y, rows []int, wantOut bool) (*mat.Dense, e
 		if i == len(p.Steps)-1 && !wantOut {
 			return nil, nil
 		}
-		next, err := s.Transform(cur, rows)
+		var next *mat.Dense
+		if checked {
+			next, err = cs.transformChecked(cur, rows)
+		} else {
+			next, err = s.Transform(cur, rows)
+		}
 		if err == nil {
 			err = stepCheckOutput(s, next, rows)
 		}
@@ -327,7 +335,13 @@ func (p *Pipeline) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	}
 	cur := X
 	for _, s := range p.Steps {
-		next, err := s.Transform(cur, rows)
+		var next *mat.Dense
+		var err error
+		if cs, ok := s.(checkedStep); ok {
+			next, err = cs.transformChecked(cur, rows) // cur is checked, as in fit
+		} else {
+			next, err = s.Transform(cur, rows)
+		}
 		if err == nil {
 			err = stepCheckOutput(s, next, rows)
 		}
@@ -443,6 +457,38 @@ func stepCheckTransform(name string, fittedDim int, X *mat.Dense, rows []int) er
 	return nil
 }
 
+// stepCheckFitted is stepCheckTransform for an input already known to be
+// a non-empty matrix of finite values (checkedStep).
+func stepCheckFitted(name string, fittedDim int, X *mat.Dense, rows []int) error {
+	if fittedDim == 0 {
+		return fmt.Errorf("%s: %w", name, ErrNotFitted)
+	}
+	r, c := X.Dims()
+	if rows != nil && len(rows) != r {
+		return fmt.Errorf("%s: %d row ids for %d rows", name, len(rows), r)
+	}
+	if c != fittedDim {
+		return fmt.Errorf("%s: fitted on %d features, got %d", name, fittedDim, c)
+	}
+	return nil
+}
+
+// checkedStep is a step whose Fit and Transform first check that their
+// input is a non-empty matrix of finite values, and which offers the rest
+// of them on their own: a Pipeline, which checks its input and the output
+// of every step, calls these, so that no matrix is checked twice. The
+// results and the other errors are those of Fit and Transform.
+type checkedStep interface {
+	fitChecked(X *mat.Dense) error
+	transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error)
+}
+
+var (
+	_ checkedStep = (*Standardize)(nil)
+	_ checkedStep = (*MinMax)(nil)
+	_ checkedStep = (*UnitNorm)(nil)
+)
+
 // Standardize is the step "std": each feature is centred on the training mean
 // and divided by the training population standard deviation (divisor n, as
 // scikit-learn's StandardScaler). A feature that is constant on the training
@@ -468,6 +514,10 @@ func (s *Standardize) Fit(X *mat.Dense) error {
 	if err := stepCheckInput(X, nil); err != nil {
 		return fmt.Errorf("std: %w", err)
 	}
+	return s.fitChecked(X)
+}
+
+func (s *Standardize) fitChecked(X *mat.Dense) error {
 	r, c := X.Dims()
 	n := float64(r)
 	mean := make([]float64, c)
@@ -518,6 +568,13 @@ func (s *Standardize) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckTransform("std", len(s.Mean), X, rows); err != nil {
 		return nil, err
 	}
+	return s.transformChecked(X, rows)
+}
+
+func (s *Standardize) transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error) {
+	if err := stepCheckFitted("std", len(s.Mean), X, rows); err != nil {
+		return nil, err
+	}
 	r, c := X.Dims()
 	out := mat.NewDense(r, c, nil)
 	mean, scale := s.Mean[:c], s.Scale[:c]
@@ -562,6 +619,10 @@ func (s *MinMax) Fit(X *mat.Dense) error {
 	if err := stepCheckInput(X, nil); err != nil {
 		return fmt.Errorf("minmax: %w", err)
 	}
+	return s.fitChecked(X)
+}
+
+func (s *MinMax) fitChecked(X *mat.Dense) error {
 	r, c := X.Dims()
 	lo := make([]float64, c)
 	rng := make([]float64, c)
@@ -586,6 +647,13 @@ func (s *MinMax) Fit(X *mat.Dense) error {
 // Transform returns (x - min) / range per feature.
 func (s *MinMax) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckTransform("minmax", len(s.Min), X, rows); err != nil {
+		return nil, err
+	}
+	return s.transformChecked(X, rows)
+}
+
+func (s *MinMax) transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error) {
+	if err := stepCheckFitted("minmax", len(s.Min), X, rows); err != nil {
 		return nil, err
 	}
 	r, c := X.Dims()
@@ -625,12 +693,21 @@ func (s *UnitNorm) Fit(X *mat.Dense) error {
 	return nil
 }
 
+func (s *UnitNorm) fitChecked(*mat.Dense) error { return nil }
+
 // Transform scales each row to unit Euclidean norm.
 func (s *UnitNorm) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckInput(X, rows); err != nil {
 		return nil, fmt.Errorf("l2: %w", err)
 	}
+	return s.transformChecked(X, rows)
+}
+
+func (s *UnitNorm) transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	r, c := X.Dims()
+	if rows != nil && len(rows) != r {
+		return nil, fmt.Errorf("l2: %d row ids for %d rows", len(rows), r)
+	}
 	out := mat.NewDense(r, c, nil)
 	for i := range r {
 		row := out.RawRowView(i)
