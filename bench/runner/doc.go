@@ -18,6 +18,11 @@
 //     written atomically; every file but the manifest and the timings is
 //     byte-identical for the same spec and seed (rundir.go).
 //   - Progress draws the progress bar or log lines (progress.go).
+//   - SetGC tunes the garbage collector for a run from its plan's memory
+//     estimate: small runs let the heap grow before collecting, every run
+//     keeps under the memory limit (gc.go). Options.Keep lets a whole run
+//     hold its last batch of results instead of saving task files it
+//     would delete at once (Partial.Hold).
 //
 // Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
 // bench/report, bench/outdir, bench/stats, bench/cv (inner folds of tuned
