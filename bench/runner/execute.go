@@ -239,11 +239,32 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	}()
 	g := new(errgroup.Group)
 	g.SetLimit(workers)
+	// Few units (a large dataset's folds) would leave workers idle while
+	// one unit runs its models one after the other: then every task is
+	// its own piece of work, and the tasks of a unit share its prepared
+	// split (sharedUnit).
+	perTask := len(units) < splitUnits*workers
 	go func() {
 		defer close(all)
 		for _, u := range units {
 			if stop.Err() != nil {
 				break
+			}
+			if perTask && len(u) > 1 {
+				su := &sharedUnit{left: len(u)}
+				for _, i := range u {
+					g.Go(func() error {
+						if err := stop.Err(); err != nil {
+							return err
+						}
+						err := runShared(stop, inFlight, p, su, u[0], i, len(u), started, finished, failed)
+						if err != nil && stop.Err() == nil {
+							cancelStop(err)
+						}
+						return err
+					})
+				}
+				continue
 			}
 			g.Go(func() error {
 				if err := stop.Err(); err != nil {
@@ -409,6 +430,74 @@ func runUnit(stop, inFlight context.Context, p *plan.Plan, unit []int, started f
 		r.Elapsed += shared
 		finished(i, r)
 	}
+	return nil
+}
+
+// splitUnits: with fewer than splitUnits units per worker, Execute runs
+// every task as its own piece of work (see sharedUnit). With the 5 units
+// of a 5-fold run and two workers, whole units could keep both busy for at
+// most 5/3 of the time of one; tasks of four models keep them busy to the
+// end (the 50,000-row run of scripts/speed/scale.sh). With hundreds of
+// units (the speed grid), units are kept: their tasks would otherwise
+// wait for each other's pipeline.
+const splitUnits = 8
+
+// sharedUnit is the prepared split of a unit whose tasks run as pieces of
+// work of their own: the first of them to start prepares it (the others
+// wait for it), the last to finish lets it go.
+type sharedUnit struct {
+	once sync.Once
+	pr   *plan.Prepared
+	err  error
+	took time.Duration // preparing it
+
+	mu   sync.Mutex
+	left int // tasks not finished
+}
+
+// get prepares the unit once (its first task's split, as runUnit does).
+func (su *sharedUnit) get(p *plan.Plan, first plan.Task) (*plan.Prepared, time.Duration, error) {
+	su.once.Do(func() {
+		start := time.Now()
+		su.pr, su.err = p.PrepareTask(first)
+		su.took = time.Since(start)
+	})
+	return su.pr, su.took, su.err
+}
+
+// release counts a finished task and drops the prepared split after the
+// last one, so that its memory is not held to the end of the run.
+func (su *sharedUnit) release() {
+	su.mu.Lock()
+	defer su.mu.Unlock()
+	if su.left--; su.left == 0 {
+		su.pr = nil
+	}
+}
+
+// runShared runs task i of a unit of n tasks whose first task is first,
+// on the unit's shared prepared split, as runUnit runs each of its tasks:
+// its Elapsed includes a 1/n share of the preparation.
+func runShared(stop, inFlight context.Context, p *plan.Plan, su *sharedUnit, first, i, n int, started func(), finished func(int, TaskResult), failed func()) error {
+	defer su.release()
+	pr, took, err := su.get(p, p.Tasks[first])
+	if err != nil {
+		return err
+	}
+	if err := stop.Err(); err != nil {
+		return err
+	}
+	started()
+	r, err := runModel(inFlight, p, p.Tasks[i], pr)
+	if err != nil {
+		failed()
+		if errors.Is(err, input.ErrBad) {
+			return err
+		}
+		return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+	}
+	r.Elapsed += took / time.Duration(n)
+	finished(i, r)
 	return nil
 }
 
