@@ -3,7 +3,8 @@
 //   - Execute runs a plan's tasks (all of them, or one shard's, or those a
 //     resumed run still lacks) on a worker pool, one unit of work
 //     (dataset, pipeline, split) at a time so that the pipeline is fitted
-//     once for all models; every task's model gets a seed derived from the
+//     once for all models (with few units per worker, every task on its
+//     own, sharing its unit's prepared split); every task's model gets a seed derived from the
 //     run seed and its key, so results never depend on the worker count
 //     or on scheduling (execute.go).
 //   - Partial directories keep finished tasks as they complete, so that a

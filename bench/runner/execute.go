@@ -131,7 +131,11 @@ type TaskResult struct {
 //
 // Tasks that share a dataset, pipeline and split are scheduled together as
 // one unit of work, so the pipeline is fitted and applied once for all the
-// models of that split; models never modify their input matrices.
+// models of that split; models never modify their input matrices. When
+// there are fewer than 8 units per worker, each task is scheduled on its
+// own instead, and the tasks of a unit share its split, prepared once by
+// the first of them to start (so that a few large folds still keep every
+// worker busy).
 //
 // Execute panics if opt.Tasks holds an index out of range or twice: that
 // is a broken invariant of the caller, not bad input.
