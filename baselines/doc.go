@@ -8,12 +8,15 @@
 //   - KNN: k nearest neighbours, exact (brute force or a k-d tree, chosen
 //     by a documented rule, with identical answers), with Euclidean,
 //     Manhattan or cosine distance and uniform or 1/d vote weights.
+//     MemoryBytes estimates its peak memory (linear in the rows: no
+//     distance matrix is ever held).
 //   - Centroid: nearest class mean (Euclidean); a sanity baseline.
 //   - LogReg: logistic regression with an L2 penalty on the coefficients
 //     in scikit-learn's default forms: binary (one weight vector, C as in
 //     LogisticRegression(C=...)) for two classes, multinomial for three or
 //     more; fitted by L-BFGS (finished by Newton steps) to a gradient
-//     tolerance.
+//     tolerance. MemoryBytes estimates its peak memory (linear in the
+//     rows).
 //   - SVM: the support-vector machine with its kernels (its own files),
 //     with a bounded kernel-row cache (CacheMiB) and shrinking; FitPath
 //     fits several C on the same data sharing kernel rows and warm starts;

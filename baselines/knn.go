@@ -673,14 +673,21 @@ func checkFiniteMatrix(model, what string, X *mat.Dense) error {
 	r, _ := X.Dims()
 	for i := range r {
 		// 0*v is 0 for finite v and NaN for NaN or ±Inf, and NaN stays in
-		// a sum: one multiply-add per entry, the column search only on
-		// failure.
-		var acc float64
+		// a sum: one multiply-add per entry (four sums, so that the
+		// additions overlap), the column search only on failure.
+		var a0, a1, a2, a3 float64
 		row := X.RawRowView(i)
-		for _, v := range row {
-			acc += 0 * v
+		j := 0
+		for ; j+4 <= len(row); j += 4 {
+			a0 += 0 * row[j]
+			a1 += 0 * row[j+1]
+			a2 += 0 * row[j+2]
+			a3 += 0 * row[j+3]
 		}
-		if acc == 0 {
+		for ; j < len(row); j++ {
+			a0 += 0 * row[j]
+		}
+		if a0+a1+a2+a3 == 0 {
 			continue
 		}
 		for j, v := range row {

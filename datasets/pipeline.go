@@ -294,8 +294,11 @@ func (p *Pipeline) fit(X *mat.Dense, y, rows []int, wantOut bool) (*mat.Dense, e
 	cur := X
 	for i, s := range p.Steps {
 		var err error
+		cs, checked := s.(checkedStep) // cur is checked: the input, or a step's checked output
 		if ls, ok := s.(LabeledStep); ok && y != nil {
 			err = ls.FitLabeled(cur, y)
+		} else if checked {
+			err = cs.fitChecked(cur)
 		} else {
 			err = s.Fit(cur)
 		}
@@ -305,7 +308,12 @@ func (p *Pipeline) fit(X *mat.Dense, y, rows []int, wantOut bool) (*mat.Dense, e
 		if i == len(p.Steps)-1 && !wantOut {
 			return nil, nil
 		}
-		next, err := s.Transform(cur, rows)
+		var next *mat.Dense
+		if checked {
+			next, err = cs.transformChecked(cur, rows)
+		} else {
+			next, err = s.Transform(cur, rows)
+		}
 		if err == nil {
 			err = stepCheckOutput(s, next, rows)
 		}
@@ -327,7 +335,13 @@ func (p *Pipeline) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	}
 	cur := X
 	for _, s := range p.Steps {
-		next, err := s.Transform(cur, rows)
+		var next *mat.Dense
+		var err error
+		if cs, ok := s.(checkedStep); ok {
+			next, err = cs.transformChecked(cur, rows) // cur is checked, as in fit
+		} else {
+			next, err = s.Transform(cur, rows)
+		}
 		if err == nil {
 			err = stepCheckOutput(s, next, rows)
 		}
@@ -362,6 +376,9 @@ func stepCheckInput(X *mat.Dense, rows []int) error {
 	if rows != nil && len(rows) != r {
 		return fmt.Errorf("%d row ids for %d rows", len(rows), r)
 	}
+	if allFinite(X) {
+		return nil
+	}
 	for i := range r {
 		for j := range c {
 			if v := X.At(i, j); math.IsNaN(v) || math.IsInf(v, 0) {
@@ -372,10 +389,40 @@ func stepCheckInput(X *mat.Dense, rows []int) error {
 	return nil
 }
 
+// allFinite reports whether every value of X is finite, in one pass over
+// its rows: 0·v is 0 for a finite v and NaN for NaN and ±Inf, and a NaN
+// stays in a sum (the steps check every matrix they see, several times
+// per fold: this is the cheap test, the search for the culprit runs only
+// when it fails).
+func allFinite(X *mat.Dense) bool {
+	raw := X.RawMatrix()
+	for i := range raw.Rows {
+		row := raw.Data[i*raw.Stride : i*raw.Stride+raw.Cols]
+		var a0, a1, a2, a3 float64 // four sums, so that the additions overlap
+		j := 0
+		for ; j+4 <= len(row); j += 4 {
+			a0 += 0 * row[j]
+			a1 += 0 * row[j+1]
+			a2 += 0 * row[j+2]
+			a3 += 0 * row[j+3]
+		}
+		for ; j < len(row); j++ {
+			a0 += 0 * row[j]
+		}
+		if a0+a1+a2+a3 != 0 {
+			return false
+		}
+	}
+	return true
+}
+
 // stepCheckOutput reports the first value of a step's output that is not
 // finite (an overflow: every step's input is checked to be finite) as a
 // *RowError naming the dataset row and wrapping ErrNotFiniteValue.
 func stepCheckOutput(s Step, Z *mat.Dense, rows []int) error {
+	if allFinite(Z) {
+		return nil
+	}
 	r, _ := Z.Dims()
 	for i := range r {
 		for j, v := range Z.RawRowView(i) {
@@ -410,6 +457,38 @@ func stepCheckTransform(name string, fittedDim int, X *mat.Dense, rows []int) er
 	return nil
 }
 
+// stepCheckFitted is stepCheckTransform for an input already known to be
+// a non-empty matrix of finite values (checkedStep).
+func stepCheckFitted(name string, fittedDim int, X *mat.Dense, rows []int) error {
+	if fittedDim == 0 {
+		return fmt.Errorf("%s: %w", name, ErrNotFitted)
+	}
+	r, c := X.Dims()
+	if rows != nil && len(rows) != r {
+		return fmt.Errorf("%s: %d row ids for %d rows", name, len(rows), r)
+	}
+	if c != fittedDim {
+		return fmt.Errorf("%s: fitted on %d features, got %d", name, fittedDim, c)
+	}
+	return nil
+}
+
+// checkedStep is a step whose Fit and Transform first check that their
+// input is a non-empty matrix of finite values, and which offers the rest
+// of them on their own: a Pipeline, which checks its input and the output
+// of every step, calls these, so that no matrix is checked twice. The
+// results and the other errors are those of Fit and Transform.
+type checkedStep interface {
+	fitChecked(X *mat.Dense) error
+	transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error)
+}
+
+var (
+	_ checkedStep = (*Standardize)(nil)
+	_ checkedStep = (*MinMax)(nil)
+	_ checkedStep = (*UnitNorm)(nil)
+)
+
 // Standardize is the step "std": each feature is centred on the training mean
 // and divided by the training population standard deviation (divisor n, as
 // scikit-learn's StandardScaler). A feature that is constant on the training
@@ -435,6 +514,10 @@ func (s *Standardize) Fit(X *mat.Dense) error {
 	if err := stepCheckInput(X, nil); err != nil {
 		return fmt.Errorf("std: %w", err)
 	}
+	return s.fitChecked(X)
+}
+
+func (s *Standardize) fitChecked(X *mat.Dense) error {
 	r, c := X.Dims()
 	n := float64(r)
 	mean := make([]float64, c)
@@ -485,16 +568,24 @@ func (s *Standardize) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckTransform("std", len(s.Mean), X, rows); err != nil {
 		return nil, err
 	}
+	return s.transformChecked(X, rows)
+}
+
+func (s *Standardize) transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error) {
+	if err := stepCheckFitted("std", len(s.Mean), X, rows); err != nil {
+		return nil, err
+	}
 	r, c := X.Dims()
 	out := mat.NewDense(r, c, nil)
+	mean, scale := s.Mean[:c], s.Scale[:c]
 	for i := range r {
-		for j := range c {
-			x := X.At(i, j)
-			v := (x - s.Mean[j]) / s.Scale[j]
+		dst, src := out.RawRowView(i)[:c], X.RawRowView(i)[:c]
+		for j, x := range src {
+			v := (x - mean[j]) / scale[j]
 			if math.IsInf(v, 0) || math.IsNaN(v) {
-				v = x/s.Scale[j] - s.Mean[j]/s.Scale[j] // x - mean overflowed
+				v = x/scale[j] - mean[j]/scale[j] // x - mean overflowed
 			}
-			out.Set(i, j, v)
+			dst[j] = v
 		}
 	}
 	return out, nil
@@ -528,6 +619,10 @@ func (s *MinMax) Fit(X *mat.Dense) error {
 	if err := stepCheckInput(X, nil); err != nil {
 		return fmt.Errorf("minmax: %w", err)
 	}
+	return s.fitChecked(X)
+}
+
+func (s *MinMax) fitChecked(X *mat.Dense) error {
 	r, c := X.Dims()
 	lo := make([]float64, c)
 	rng := make([]float64, c)
@@ -554,16 +649,23 @@ func (s *MinMax) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckTransform("minmax", len(s.Min), X, rows); err != nil {
 		return nil, err
 	}
+	return s.transformChecked(X, rows)
+}
+
+func (s *MinMax) transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error) {
+	if err := stepCheckFitted("minmax", len(s.Min), X, rows); err != nil {
+		return nil, err
+	}
 	r, c := X.Dims()
 	out := mat.NewDense(r, c, nil)
 	for i := range r {
-		for j := range c {
-			x := X.At(i, j)
+		dst, src := out.RawRowView(i)[:c], X.RawRowView(i)[:c]
+		for j, x := range src {
 			if j < len(s.half) && s.half[j] != 0 {
-				out.Set(i, j, (x/2-s.Min[j]/2)/s.half[j])
+				dst[j] = (x/2 - s.Min[j]/2) / s.half[j]
 				continue
 			}
-			out.Set(i, j, (x-s.Min[j])/s.Range[j])
+			dst[j] = (x - s.Min[j]) / s.Range[j]
 		}
 	}
 	return out, nil
@@ -591,16 +693,25 @@ func (s *UnitNorm) Fit(X *mat.Dense) error {
 	return nil
 }
 
+func (s *UnitNorm) fitChecked(*mat.Dense) error { return nil }
+
 // Transform scales each row to unit Euclidean norm.
 func (s *UnitNorm) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	if err := stepCheckInput(X, rows); err != nil {
 		return nil, fmt.Errorf("l2: %w", err)
 	}
+	return s.transformChecked(X, rows)
+}
+
+func (s *UnitNorm) transformChecked(X *mat.Dense, rows []int) (*mat.Dense, error) {
 	r, c := X.Dims()
+	if rows != nil && len(rows) != r {
+		return nil, fmt.Errorf("l2: %d row ids for %d rows", len(rows), r)
+	}
 	out := mat.NewDense(r, c, nil)
 	for i := range r {
 		row := out.RawRowView(i)
-		mat.Row(row, i, X)
+		copy(row, X.RawRowView(i))
 		if !unitScale(row) {
 			return nil, fmt.Errorf("l2: %w", &RowError{Row: stepRowID(rows, i), Err: ErrZeroVector})
 		}
@@ -612,7 +723,15 @@ func (s *UnitNorm) Transform(X *mat.Dense, rows []int) (*mat.Dense, error) {
 // reports whether it could (false: v is all zeros, left unchanged). Dividing
 // by the largest magnitude first keeps the sum of squares in range.
 func unitScale(v []float64) bool {
-	top := floats.Norm(v, math.Inf(1))
+	// The largest magnitude, as floats.Norm(v, Inf) computes it (math.Max
+	// of the magnitudes; for finite values a plain comparison gives the
+	// same number).
+	var top float64
+	for _, x := range v {
+		if a := math.Abs(x); a > top {
+			top = a
+		}
+	}
 	if top == 0 {
 		return false
 	}

@@ -158,7 +158,11 @@
 //	set train_subset or simulator = "trajectories"
 //
 // The density matrix costs O(4^n) per gate, so TrainSubset is the practical
-// way to run gate-level noise on real data.
+// way to run gate-level noise on real data. MemoryBytes estimates a fit
+// and prediction's peak memory before they run (for a planner): linear in
+// the rows in ModeExact and ModeShots, 4^a bytes for the density matrix on
+// the a = 1 + index + data qubits active while the data register is loaded
+// and 2^n for state vectors.
 //
 // # Training subsets
 //

@@ -4,13 +4,16 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"image"
 	"image/color"
+	"image/png"
 	"math"
 	"sync"
 	"time"
 
 	"codeberg.org/go-pdf/fpdf"
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -82,15 +85,22 @@ func (f Figure) Render(format string) ([]byte, error) {
 			fpdf.SetDefaultModificationDate(pdfEpoch)
 			fpdf.SetDefaultCatalogSort(true)
 		})
+		warmPDFFonts()
 		c := vgpdf.New(f.Width, f.Height)
-		f.draw(draw.New(c))
+		f.draw(draw.New(pdfText{c}))
 		if _, err := c.WriteTo(&buf); err != nil {
 			return nil, fmt.Errorf("results: render %s.pdf: %w", f.Name, err)
 		}
 	case "png":
 		c := vgimg.NewWith(vgimg.UseWH(f.Width, f.Height), vgimg.UseDPI(PNGDPI))
 		f.draw(draw.New(c))
-		if _, err := (vgimg.PngCanvas{Canvas: c}).WriteTo(&buf); err != nil {
+		var err error
+		if img, ok := c.Image().(*image.RGBA); ok {
+			err = writePNG(&buf, img)
+		} else {
+			err = (&png.Encoder{CompressionLevel: png.BestSpeed}).Encode(&buf, c.Image())
+		}
+		if err != nil {
 			return nil, fmt.Errorf("results: render %s.png: %w", f.Name, err)
 		}
 	default:
@@ -98,6 +108,70 @@ func (f Figure) Render(format string) ([]byte, error) {
 	}
 	return buf.Bytes(), nil
 }
+
+// pdfTextSize is the one font size at which PDF figures set text; other
+// sizes are drawn at it and scaled (pdfText).
+const pdfTextSize = vg.Length(12)
+
+// pdfText draws text on a PDF canvas at the single size pdfTextSize,
+// scaled about the text's anchor to the size asked for, so that a PDF
+// figure embeds one font program per typeface (fpdf builds an embedded
+// font, parsing and compressing the whole TrueType file, once per
+// process for each distinct face and size it is asked for: tens of
+// milliseconds each, the largest cost of a PDF figure when every size is
+// its own). The glyphs, their positions and the text's extents are those
+// of the size asked for: the scale is applied to the whole text box.
+type pdfText struct{ *vgpdf.Canvas }
+
+// FillString draws text at size fnt.Font.Size, set at pdfTextSize and
+// scaled.
+func (c pdfText) FillString(fnt font.Face, pt vg.Point, text string) {
+	size := fnt.Font.Size
+	if size == 0 {
+		return
+	}
+	if size == pdfTextSize {
+		c.Canvas.FillString(fnt, pt, text)
+		return
+	}
+	k := float64(size / pdfTextSize)
+	fnt.Font.Size = pdfTextSize
+	c.Push()
+	c.Translate(pt)
+	c.Scale(k, k)
+	c.Canvas.FillString(fnt, vg.Point{}, text)
+	c.Pop()
+}
+
+// pdfFontsWarm guards WarmFigureFonts.
+var pdfFontsWarm sync.Once
+
+// warmPDFFonts builds, once per process, fpdf's embedded form of every
+// face the figures draw text in (at pdfTextSize), so that concurrent PDF
+// renderings find it built instead of each building its own.
+func warmPDFFonts() {
+	pdfFontsWarm.Do(func() {
+		for _, fnt := range figureFonts() {
+			c := vgpdf.New(vg.Points(10), vg.Points(10))
+			face := plot.DefaultTextHandler.Cache().Lookup(fnt, pdfTextSize)
+			c.FillString(face, vg.Point{}, "x")
+		}
+	})
+}
+
+// figureFonts lists the fonts the figures draw text in: gonum/plot's
+// default font (titles, labels, ticks and legends all use it).
+func figureFonts() []font.Font {
+	return []font.Font{plot.DefaultFont}
+}
+
+// WarmFigureFonts prepares, once per process, what every PDF figure
+// embeds (the font programs, see Figure.Render), which takes tens of
+// milliseconds. Render does it on first use; a caller that will render
+// figures may start it early in a goroutine of its own, beside other
+// work, so that rendering does not wait for it. It is safe for
+// concurrent use and changes no output.
+func WarmFigureFonts() { warmPDFFonts() }
 
 // palette is the colour-blind-safe palette of Okabe & Ito ("Color
 // Universal Design", 2008), black moved last; lines cycle through it.

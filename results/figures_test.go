@@ -223,3 +223,47 @@ func TestRenderConcurrent(t *testing.T) {
 		}
 	}
 }
+
+// TestRenderFormatsConcurrent renders every format of each figure at once,
+// several times over, and compares the bytes with lone renderings: the
+// formats of one figure may be drawn concurrently (Render does not modify
+// the figure's plot).
+func TestRenderFormatsConcurrent(t *testing.T) {
+	figs := testFigures(t)
+	want := map[string][]byte{}
+	for _, f := range figs {
+		for _, format := range FigureFormats {
+			b, err := f.Render(format)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want[f.Name+"."+format] = b
+		}
+	}
+	for range 3 {
+		var mu sync.Mutex
+		got := map[string][]byte{}
+		var wg sync.WaitGroup
+		for _, f := range figs {
+			for _, format := range FigureFormats {
+				wg.Add(1)
+				go func() {
+					defer wg.Done()
+					b, err := f.Render(format)
+					if err != nil {
+						t.Error(err)
+					}
+					mu.Lock()
+					got[f.Name+"."+format] = b
+					mu.Unlock()
+				}()
+			}
+		}
+		wg.Wait()
+		for name, b := range want {
+			if !bytes.Equal(got[name], b) {
+				t.Errorf("%s: concurrent rendering differs from a lone one", name)
+			}
+		}
+	}
+}

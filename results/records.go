@@ -1,6 +1,7 @@
 package results
 
 import (
+	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -90,55 +91,159 @@ func Fmt(v float64) string {
 		v = 0 // no "-0.000000"
 	}
 	s := strconv.FormatFloat(v, 'f', FloatDigits, 64)
-	if s == "-0."+strings.Repeat("0", FloatDigits) {
+	if s == negZero {
 		s = s[1:]
 	}
 	return s
 }
 
-// WritePredictions writes predictions.csv.
+// negZero is how a tiny negative value prints with FloatDigits decimals.
+var negZero = "-0." + strings.Repeat("0", FloatDigits)
+
+// WritePredictions writes predictions.csv. The file is what encoding/csv
+// writes for these records (fields quoted only where csv.Writer quotes
+// them); it is formed directly, since it is the largest file of a run
+// (one row per test instance of every task): every distinct name is
+// escaped and quoted once, numbers are appended without temporary
+// strings.
 func WritePredictions(w io.Writer, rows []Prediction) error {
-	cw := csv.NewWriter(w)
-	head := []string{"dataset", "pipeline", "model", "repeat", "fold", "row", "label", "predicted", "correct", "p_acc", "shots", "probs", "unused", "exact_predicted"}
+	var names csvNames
+	if b, ok := w.(*bytes.Buffer); ok {
+		b.Grow(64 * len(rows)) // a typical row takes 40 to 80 bytes
+	}
 	raw := false
 	for _, r := range rows {
 		raw = raw || r.RawPredicted != ""
 	}
+	buf := make([]byte, 0, 64<<10)
+	buf = append(buf, "dataset,pipeline,model,repeat,fold,row,label,predicted,correct,p_acc,shots,probs,unused,exact_predicted"...)
 	if raw {
-		head = append(head, "raw_predicted", "raw_p_acc", "raw_probs")
+		buf = append(buf, ",raw_predicted,raw_p_acc,raw_probs"...)
 	}
-	cw.Write(head)
+	buf = append(buf, '\n')
 	for _, r := range rows {
-		correct := "0"
+		buf = append(buf, names.get(r.Dataset)...)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Pipeline)...)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Model)...)
+		buf = append(buf, ',')
+		buf = strconv.AppendInt(buf, int64(r.Repeat), 10)
+		buf = append(buf, ',')
+		buf = strconv.AppendInt(buf, int64(r.Fold), 10)
+		buf = append(buf, ',')
+		buf = strconv.AppendInt(buf, int64(r.Row), 10)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Label)...)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Predicted)...)
 		if r.Label == r.Predicted {
-			correct = "1"
+			buf = append(buf, ",1,"...)
+		} else {
+			buf = append(buf, ",0,"...)
 		}
-		shots := ""
+		buf = appendFmt(buf, r.PAcc)
+		buf = append(buf, ',')
 		if r.Shots > 0 {
-			shots = strconv.Itoa(r.Shots)
+			buf = strconv.AppendInt(buf, int64(r.Shots), 10)
 		}
-		name := csvTexts(r.Dataset, r.Pipeline, r.Model, r.Label, r.Predicted, r.Exact)
-		rec := []string{name[0], name[1], name[2], strconv.Itoa(r.Repeat), strconv.Itoa(r.Fold),
-			strconv.Itoa(r.Row), name[3], name[4], correct, Fmt(r.PAcc), shots, fmtProbs(r.Probs), Fmt(r.Unused), name[5]}
+		buf = append(buf, ',')
+		buf = appendProbs(buf, r.Probs)
+		buf = append(buf, ',')
+		buf = appendFmt(buf, r.Unused)
+		buf = append(buf, ',')
+		buf = append(buf, names.get(r.Exact)...)
 		if raw {
-			rec = append(rec, csvTexts(r.RawPredicted)[0], Fmt(r.RawPAcc), fmtProbs(r.RawProbs))
+			buf = append(buf, ',')
+			buf = append(buf, names.get(r.RawPredicted)...)
+			buf = append(buf, ',')
+			buf = appendFmt(buf, r.RawPAcc)
+			buf = append(buf, ',')
+			buf = appendProbs(buf, r.RawProbs)
 		}
-		cw.Write(rec)
+		buf = append(buf, '\n')
+		if len(buf) >= 60<<10 {
+			if _, err := w.Write(buf); err != nil {
+				return err
+			}
+			buf = buf[:0]
+		}
 	}
-	cw.Flush()
-	return cw.Error()
+	_, err := w.Write(buf)
+	return err
 }
 
-// fmtProbs writes class probabilities separated by ';' ("nan" for NaN).
-func fmtProbs(ps []float64) string {
-	out := make([]string, len(ps))
-	for i, v := range ps {
-		out[i] = Fmt(v)
+// appendProbs appends class probabilities joined by ';', NaN as "nan".
+func appendProbs(dst []byte, probs []float64) []byte {
+	for i, v := range probs {
+		if i > 0 {
+			dst = append(dst, ';')
+		}
 		if math.IsNaN(v) {
-			out[i] = "nan"
+			dst = append(dst, "nan"...)
+		} else {
+			dst = appendFmt(dst, v)
 		}
 	}
-	return strings.Join(out, ";")
+	return dst
+}
+
+// appendFmt appends Fmt(v).
+func appendFmt(dst []byte, v float64) []byte {
+	if math.IsNaN(v) {
+		return dst
+	}
+	if v == 0 {
+		v = 0 // no "-0.000000"
+	}
+	start := len(dst)
+	dst = strconv.AppendFloat(dst, v, 'f', FloatDigits, 64)
+	if string(dst[start:]) == negZero {
+		dst = append(dst[:start], dst[start+1:]...)
+	}
+	return dst
+}
+
+// csvNames remembers the CSV field of each text it was asked for: the text
+// escaped (EscapeCSVCell) and quoted as encoding/csv quotes a field. The
+// last texts asked for are compared first (consecutive rows mostly repeat
+// them).
+type csvNames struct {
+	fields    map[string]string
+	last      [4]string
+	lastField [4]string
+	next      int
+}
+
+func (c *csvNames) get(s string) string {
+	if s == "" {
+		return ""
+	}
+	for i, l := range c.last {
+		if l == s {
+			return c.lastField[i]
+		}
+	}
+	f := c.field(s)
+	c.last[c.next], c.lastField[c.next] = s, f
+	c.next = (c.next + 1) % len(c.last)
+	return f
+}
+
+func (c *csvNames) field(s string) string {
+	if c.fields == nil {
+		c.fields = map[string]string{}
+	}
+	if f, ok := c.fields[s]; ok {
+		return f
+	}
+	var b strings.Builder
+	cw := csv.NewWriter(&b)
+	cw.Write([]string{EscapeCSVCell(s), ""}) // two fields: one empty field alone is written differently
+	cw.Flush()
+	f := strings.TrimSuffix(b.String(), ",\n")
+	c.fields[s] = f
+	return f
 }
 
 // WriteFolds writes folds.csv.

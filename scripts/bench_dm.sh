@@ -18,14 +18,23 @@
 # ns/gate, its ratio and the speed-up REV / current.
 #
 # Usage: scripts/bench_dm.sh [--base REV] [ROUNDS]     (default 3 rounds)
-# Environment: PERF_DIR (default <repo>/../shared/perf).
+# Environment: PERF_DIR (default <repo>/../shared/perf, or ../../shared/perf
+# from a worktree).
 set -euo pipefail
 
 base=""
 if [[ "${1:-}" == "--base" ]]; then base=$2; shift 2; fi
 rounds=${1:-3}
 root=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
-perf=${PERF_DIR:-$root/../shared/perf}
+# The reference kernels sit in shared/perf beside the main checkout; from a
+# worktree one level deeper, one more level up.
+perf=${PERF_DIR:-}
+if [[ -z "$perf" ]]; then
+	for cand in "$root/../shared/perf" "$root/../../shared/perf"; do
+		if [[ -f "$cand/stream.c" ]]; then perf=$cand; break; fi
+	done
+fi
+[[ -f "${perf:-}/stream.c" ]] || { echo "bench_dm.sh: stream.c not found; set PERF_DIR" >&2; exit 2; }
 
 tmp=$(mktemp -d)
 trap 'rm -rf "$tmp"' EXIT

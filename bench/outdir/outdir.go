@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"fmt"
 	"os"
-	"path"
 	"path/filepath"
 	"runtime"
 	"strings"
@@ -42,11 +41,8 @@ func FigureFiles(figs []results.Figure) []File {
 // into place only when every file is complete; an existing dir is replaced
 // only then. On error nothing is left behind.
 //
-// Rendering runs concurrently, each file into its own buffer, and the
-// files are written in order afterwards. The formats of one figure are
-// drawn one after another in one goroutine: drawing a plot is not safe for
-// concurrent use (drawing the same plot in two formats at once gave
-// different bytes).
+// Rendering runs concurrently (Render), each file into its own buffer,
+// and the files are written in order afterwards.
 func Write(dir string, files []File) error {
 	out, err := Render(files)
 	if err != nil {
@@ -61,33 +57,24 @@ type Rendered struct {
 	Data []byte
 }
 
-// Render renders files concurrently, each into its own buffer, and returns
-// them in the order given. The formats of one figure (files named
-// figures/<name>.<ext>) are rendered one after another in one goroutine,
-// as Write says. The first error is returned, naming its file.
-func Render(files []File) ([]Rendered, error) {
+// Render renders files concurrently, at most runtime.NumCPU() at a time
+// (RenderLimit).
+func Render(files []File) ([]Rendered, error) { return RenderLimit(files, runtime.NumCPU()) }
+
+// RenderLimit renders files concurrently, at most limit at a time (at
+// least one), each into its own buffer, and returns them in the order
+// given. Every file, each format of a figure included, is its own piece
+// of work, started in the order given (Figure.Render draws one plot in
+// several formats at once with the bytes of lone renderings, tested in
+// results). The first error is returned, naming its file.
+func RenderLimit(files []File, limit int) ([]Rendered, error) {
 	bufs := make([]bytes.Buffer, len(files))
 	var g errgroup.Group
-	g.SetLimit(runtime.NumCPU())
-	groups := map[string][]int{}
-	var order []string
-	for i, f := range files {
-		key := f.Name
-		if strings.HasPrefix(f.Name, "figures/") {
-			key = strings.TrimSuffix(f.Name, path.Ext(f.Name))
-		}
-		if _, ok := groups[key]; !ok {
-			order = append(order, key)
-		}
-		groups[key] = append(groups[key], i)
-	}
-	for _, key := range order {
-		idx := groups[key]
+	g.SetLimit(max(1, limit))
+	for i := range files {
 		g.Go(func() error {
-			for _, i := range idx {
-				if err := files[i].Render(&bufs[i]); err != nil {
-					return fmt.Errorf("write %s: %w", files[i].Name, err)
-				}
+			if err := files[i].Render(&bufs[i]); err != nil {
+				return fmt.Errorf("write %s: %w", files[i].Name, err)
 			}
 			return nil
 		})

@@ -10,6 +10,15 @@
 // the models' device and calibration files (modelkit.Spec.Resolve,
 // relative to the spec's folder); their digests enter the Fingerprint.
 //
+// Memory: TaskMemory estimates one task's peak memory (the model's own
+// estimate, from baselines and qkernel, on the largest training part, and
+// the prepared data of its unit, with the garbage collector's headroom);
+// DataBytes the loaded datasets; CheckMemory refuses a plan whose workers
+// tasks at once and the data exceed a limit (the command's -memory), as an
+// input error naming the model's key (cache_mib of an SVM whose cache is
+// smaller than its kernel matrix, train_subset of a circuit simulated gate
+// by gate, the model otherwise) with the estimate and the remedies.
+//
 // Seeds: Seed and NewRand derive generators from the run seed and a key,
 // never from scheduling. The splits of a dataset depend only on the seed,
 // its display name and the repeat, so every pipeline and model sees the

@@ -485,61 +485,6 @@ func (p *Plan) checkKernels() error {
 	return nil
 }
 
-// MemoryBytes estimates the peak memory one task of model mi needs on the
-// plan's largest training part after each pipeline (0 for models without
-// an estimate), and says for which dataset and pipeline.
-func (p *Plan) MemoryBytes(mi int) (bytes int64, where string, err error) {
-	for _, m := range p.Spec.Models[mi].Configs() {
-		svm, ok := m.New(0).(*baselines.SVM)
-		if !ok {
-			continue
-		}
-		for _, ps := range p.Spec.Pipelines {
-			pipe, err := datasets.ParsePipeline(ps)
-			if err != nil {
-				return 0, "", err
-			}
-			for _, d := range p.Datasets {
-				nTrain := 0
-				for _, sp := range d.Splits {
-					nTrain = max(nTrain, len(sp.Train))
-				}
-				width, err := pipe.CheckDims(nTrain, d.Data.Dim())
-				if err != nil {
-					return 0, "", err
-				}
-				b, err := svm.MemoryBytes(nTrain, width, len(d.Data.Classes))
-				if err != nil {
-					return 0, "", err
-				}
-				if b > bytes {
-					bytes, where = b, fmt.Sprintf("dataset %s, pipeline %s (%d training rows, %d features)", d.Name, ps, nTrain, width)
-				}
-			}
-		}
-	}
-	return bytes, where, nil
-}
-
-// CheckMemory refuses a plan whose models would need more than limit
-// bytes when workers tasks run at once, each holding the largest training
-// part's memory (MemoryBytes), with the estimate and the key to change.
-func (p *Plan) CheckMemory(workers int, limit int64) error {
-	for mi, m := range p.Spec.Models {
-		b, where, err := p.MemoryBytes(mi)
-		if err != nil || b == 0 {
-			continue
-		}
-		if need := b * int64(max(1, workers)); need > limit {
-			key := fmt.Sprintf("model[%d].cache_mib", mi+1)
-			return &input.Error{File: p.Spec.File, Line: p.Spec.LineOf(key), Key: key,
-				Err: fmt.Errorf("model %s needs about %.2f GiB per task on %s, %.2f GiB with %d workers, above the memory limit of %.2f GiB: lower cache_mib (now %v MiB), use fewer workers or rows, or raise -memory",
-					m.Name, float64(b)/(1<<30), where, float64(need)/(1<<30), workers, float64(limit)/(1<<30), m.Params["cache_mib"])}
-		}
-	}
-	return nil
-}
-
 // checkQubits rejects an interference model whose circuit, for the largest
 // training part (or its train_subset) and the features after each pipeline,
 // needs more qubits than the simulator it will run on holds: the density

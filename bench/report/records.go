@@ -30,12 +30,17 @@ func foldsByCell(folds []results.Fold) map[cellID]map[foldKey]results.Fold {
 // the prediction was right.
 func correctByCell(preds []results.Prediction) map[cellID]map[instKey]bool {
 	out := map[cellID]map[instKey]bool{}
+	var last cellID
+	var cell map[instKey]bool // out[last]; consecutive predictions mostly share their cell
 	for _, p := range preds {
-		id := cellID{p.Dataset, p.Pipeline, p.Model}
-		if out[id] == nil {
-			out[id] = map[instKey]bool{}
+		if id := (cellID{p.Dataset, p.Pipeline, p.Model}); cell == nil || id != last {
+			if cell = out[id]; cell == nil {
+				cell = map[instKey]bool{}
+				out[id] = cell
+			}
+			last = id
 		}
-		out[id][instKey{p.Repeat, p.Row}] = p.Label == p.Predicted
+		cell[instKey{p.Repeat, p.Row}] = p.Label == p.Predicted
 	}
 	return out
 }

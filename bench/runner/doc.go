@@ -3,7 +3,8 @@
 //   - Execute runs a plan's tasks (all of them, or one shard's, or those a
 //     resumed run still lacks) on a worker pool, one unit of work
 //     (dataset, pipeline, split) at a time so that the pipeline is fitted
-//     once for all models; every task's model gets a seed derived from the
+//     once for all models (with few units per worker, every task on its
+//     own, sharing its unit's prepared split); every task's model gets a seed derived from the
 //     run seed and its key, so results never depend on the worker count
 //     or on scheduling (execute.go).
 //   - Partial directories keep finished tasks as they complete, so that a
@@ -24,6 +25,11 @@
 //     the models' devices and calibration files with their SHA-256
 //     (DeviceRecords), and Verify reports one that changed since the run.
 //   - Progress draws the progress bar or log lines (progress.go).
+//   - SetGC tunes the garbage collector for a run from its plan's memory
+//     estimate: small runs let the heap grow before collecting, every run
+//     keeps under the memory limit (gc.go). Options.Keep lets a whole run
+//     hold its last batch of results instead of saving task files it
+//     would delete at once (Partial.Hold).
 //
 // Imports: bench/input, bench/spec, bench/modelkit, bench/plan,
 // bench/report, bench/outdir, bench/stats, bench/cv (inner folds of tuned

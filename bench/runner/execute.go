@@ -43,6 +43,12 @@ type Options struct {
 	// SaveEvery is the longest a finished task waits before it is handed
 	// to Save; 0 means DefaultSaveEvery.
 	SaveEvery time.Duration
+	// Keep, if set, receives the results still pending when every task
+	// has succeeded, instead of Save (Partial.Hold keeps them in memory):
+	// for a caller that writes the complete run at once, so that a run
+	// shorter than SaveEvery writes no task files only to delete them
+	// again. A failed or interrupted run still saves them.
+	Keep func(batch []TaskResult)
 	// Grace is how long the tasks in flight may still run once ctx is
 	// done (no task starts after that): after it their contexts are
 	// cancelled, so that simulators stop between gates and external
@@ -125,7 +131,11 @@ type TaskResult struct {
 //
 // Tasks that share a dataset, pipeline and split are scheduled together as
 // one unit of work, so the pipeline is fitted and applied once for all the
-// models of that split; models never modify their input matrices.
+// models of that split; models never modify their input matrices. When
+// there are fewer than 8 units per worker, each task is scheduled on its
+// own instead, and the tasks of a unit share its split, prepared once by
+// the first of them to start (so that a few large folds still keep every
+// worker busy).
 //
 // Execute panics if opt.Tasks holds an index out of range or twice: that
 // is a broken invariant of the caller, not bad input.
@@ -165,6 +175,9 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	inFlight, cancelTasks := context.WithCancelCause(context.Background())
 	defer cancelTasks(nil)
 	sv := newSaver(opt.Save, opt.SaveEvery, cancelStop)
+	if sv != nil {
+		sv.keep = opt.Keep
+	}
 	var mu sync.Mutex
 	done, running := 0, 0
 	totalFits := p.FitsOf(tasks)
@@ -230,11 +243,32 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	}()
 	g := new(errgroup.Group)
 	g.SetLimit(workers)
+	// Few units (a large dataset's folds) would leave workers idle while
+	// one unit runs its models one after the other: then every task is
+	// its own piece of work, and the tasks of a unit share its prepared
+	// split (sharedUnit).
+	perTask := len(units) < splitUnits*workers
 	go func() {
 		defer close(all)
 		for _, u := range units {
 			if stop.Err() != nil {
 				break
+			}
+			if perTask && len(u) > 1 {
+				su := &sharedUnit{left: len(u)}
+				for _, i := range u {
+					g.Go(func() error {
+						if err := stop.Err(); err != nil {
+							return err
+						}
+						err := runShared(stop, inFlight, p, su, u[0], i, len(u), started, finished, failed)
+						if err != nil && stop.Err() == nil {
+							cancelStop(err)
+						}
+						return err
+					})
+				}
+				continue
 			}
 			g.Go(func() error {
 				if err := stop.Err(); err != nil {
@@ -260,7 +294,7 @@ func Execute(ctx context.Context, p *plan.Plan, opt Options) ([]TaskResult, erro
 	mu.Lock()
 	gaveUp = true
 	mu.Unlock()
-	saveErr := sv.close()
+	saveErr := sv.close(ctx.Err() == nil && context.Cause(stop) == nil)
 	cause := context.Cause(stop)
 	switch {
 	case ctx.Err() != nil:
@@ -283,6 +317,10 @@ type saver struct {
 	err     error
 	stop    chan struct{}
 	done    chan struct{}
+	// keep receives what is pending at close after a successful run
+	// instead of save (Options.Keep).
+	keep     func([]TaskResult)
+	keepLast bool // set by close: the last batch goes to keep
 }
 
 func newSaver(save func([]TaskResult) error, every time.Duration, fail context.CancelCauseFunc) *saver {
@@ -302,7 +340,19 @@ func newSaver(save func([]TaskResult) error, every time.Duration, fail context.C
 			case <-tick.C:
 				s.flush()
 			case <-s.stop:
-				s.flush()
+				s.mu.Lock()
+				keep := s.keepLast
+				s.mu.Unlock()
+				if keep {
+					s.mu.Lock()
+					batch := s.pending
+					s.pending = nil
+					s.mu.Unlock()
+					sort.Slice(batch, func(a, b int) bool { return batch[a].Task.Index < batch[b].Task.Index })
+					s.keep(batch)
+				} else {
+					s.flush()
+				}
 				return
 			}
 		}
@@ -340,11 +390,15 @@ func (s *saver) flush() {
 	}
 }
 
-// close flushes what is pending and returns the first save error.
-func (s *saver) close() error {
+// close flushes what is pending (to keep instead, when the run succeeded
+// and keep is set) and returns the first save error.
+func (s *saver) close(succeeded bool) error {
 	if s == nil {
 		return nil
 	}
+	s.mu.Lock()
+	s.keepLast = s.keep != nil && succeeded && s.err == nil
+	s.mu.Unlock()
 	close(s.stop)
 	<-s.done
 	s.mu.Lock()
@@ -380,6 +434,74 @@ func runUnit(stop, inFlight context.Context, p *plan.Plan, unit []int, started f
 		r.Elapsed += shared
 		finished(i, r)
 	}
+	return nil
+}
+
+// splitUnits: with fewer than splitUnits units per worker, Execute runs
+// every task as its own piece of work (see sharedUnit). With the 5 units
+// of a 5-fold run and two workers, whole units could keep both busy for at
+// most 5/3 of the time of one; tasks of four models keep them busy to the
+// end (the 50,000-row run of scripts/speed/scale.sh). With hundreds of
+// units (the speed grid), units are kept: their tasks would otherwise
+// wait for each other's pipeline.
+const splitUnits = 8
+
+// sharedUnit is the prepared split of a unit whose tasks run as pieces of
+// work of their own: the first of them to start prepares it (the others
+// wait for it), the last to finish lets it go.
+type sharedUnit struct {
+	once sync.Once
+	pr   *plan.Prepared
+	err  error
+	took time.Duration // preparing it
+
+	mu   sync.Mutex
+	left int // tasks not finished
+}
+
+// get prepares the unit once (its first task's split, as runUnit does).
+func (su *sharedUnit) get(p *plan.Plan, first plan.Task) (*plan.Prepared, time.Duration, error) {
+	su.once.Do(func() {
+		start := time.Now()
+		su.pr, su.err = p.PrepareTask(first)
+		su.took = time.Since(start)
+	})
+	return su.pr, su.took, su.err
+}
+
+// release counts a finished task and drops the prepared split after the
+// last one, so that its memory is not held to the end of the run.
+func (su *sharedUnit) release() {
+	su.mu.Lock()
+	defer su.mu.Unlock()
+	if su.left--; su.left == 0 {
+		su.pr = nil
+	}
+}
+
+// runShared runs task i of a unit of n tasks whose first task is first,
+// on the unit's shared prepared split, as runUnit runs each of its tasks:
+// its Elapsed includes a 1/n share of the preparation.
+func runShared(stop, inFlight context.Context, p *plan.Plan, su *sharedUnit, first, i, n int, started func(), finished func(int, TaskResult), failed func()) error {
+	defer su.release()
+	pr, took, err := su.get(p, p.Tasks[first])
+	if err != nil {
+		return err
+	}
+	if err := stop.Err(); err != nil {
+		return err
+	}
+	started()
+	r, err := runModel(inFlight, p, p.Tasks[i], pr)
+	if err != nil {
+		failed()
+		if errors.Is(err, input.ErrBad) {
+			return err
+		}
+		return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+	}
+	r.Elapsed += took / time.Duration(n)
+	finished(i, r)
 	return nil
 }
 

@@ -139,15 +139,24 @@ func (a runIdentity) differences(b runIdentity) string {
 	return strings.Join(d, "; ")
 }
 
-// identity builds the identity of a plan's shard.
+// identity builds the identity of a plan's shard, but for its PlanSHA,
+// which withPlan adds: the plan's fingerprint digests all its data and
+// tasks, and a run that finishes before it saves anything never needs it.
 func identity(p *plan.Plan, s plan.Shard, nShardTasks, workers int, started time.Time) runIdentity {
 	dir := absDir(p.Spec.Dir) // "" for a built-in spec
 	return runIdentity{
 		Format: partialFormat, Version: Version,
 		SpecName: p.Spec.Name, SpecSHA: spec.CanonicalSHA(p.Spec.Source), Seed: p.Spec.Seed,
-		PlanSHA: p.Fingerprint(), Tasks: len(p.Tasks), Shard: s.String(), ShardTasks: nShardTasks,
+		Tasks: len(p.Tasks), Shard: s.String(), ShardTasks: nShardTasks,
 		SpecFile: p.Spec.File, SpecDir: dir, SpecText: string(p.Spec.Source),
 		Started: started.UTC().Format(time.RFC3339Nano), Workers: workers,
+	}
+}
+
+// withPlan sets the identity's PlanSHA to the fingerprint of p, once.
+func (a *runIdentity) withPlan(p *plan.Plan) {
+	if a.PlanSHA == "" {
+		a.PlanSHA = p.Fingerprint()
 	}
 }
 
@@ -236,6 +245,7 @@ func OpenPartial(dir string, p *plan.Plan, s plan.Shard, opt PartialOptions) (*P
 	if err != nil && !opt.Fresh {
 		return nil, bad("%v; run again with -fresh to discard it", err)
 	}
+	pr.id.withPlan(p)
 	if err == nil && !opt.Fresh && !have.same(pr.id) {
 		return nil, bad("holds the tasks of %s; they are not mixed with this run: finish that run with its own spec and flags, or run again with -fresh to discard it",
 			have.differences(pr.id))
@@ -366,6 +376,7 @@ func (pr *Partial) Save(batch []TaskResult) error {
 		}
 	}
 	if !pr.created {
+		pr.id.withPlan(pr.plan)
 		if err := pr.create(); err != nil {
 			return err
 		}
@@ -388,6 +399,28 @@ func (pr *Partial) Save(batch []TaskResult) error {
 		pr.nHave++
 	}
 	return nil
+}
+
+// Hold records a batch of finished tasks of the shard in memory only, as
+// Save without writing them: Results returns them, a later run does not
+// find them. It is Options.Keep for Execute, when the run directory is
+// written right after. It panics as Save does.
+func (pr *Partial) Hold(batch []TaskResult) {
+	pr.mu.Lock()
+	defer pr.mu.Unlock()
+	for _, r := range batch {
+		i := r.Task.Index
+		if i < 0 || i >= len(pr.member) || !pr.member[i] {
+			panic(fmt.Sprintf("runner: Partial.Hold: task %d is not part of shard %s", i, pr.shard))
+		}
+		if pr.have[i] != nil {
+			panic(fmt.Sprintf("runner: Partial.Hold: task %d held or saved twice", i))
+		}
+	}
+	for _, r := range batch {
+		pr.have[r.Task.Index] = &r
+		pr.nHave++
+	}
 }
 
 // create makes the directory and writes run.json first (only if no other

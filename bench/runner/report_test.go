@@ -52,7 +52,7 @@ func renderSpec(t *testing.T, src string) map[string][]byte {
 	if err != nil {
 		t.Fatal(err)
 	}
-	c, err := renderRun(p, res, true)
+	c, err := renderRun(p, res, true, 1)
 	if err != nil {
 		t.Fatal(err)
 	}

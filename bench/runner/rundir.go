@@ -27,9 +27,13 @@ const Version = "0.1.0-dev"
 // timings.csv, in task order.
 func Records(p *plan.Plan, res []TaskResult) ([]results.Prediction, []results.Fold, []results.Timing) {
 	res = runOnly(res)
-	var preds []results.Prediction
-	var folds []results.Fold
-	var times []results.Timing
+	nPred := 0
+	for _, r := range res {
+		nPred += len(p.Datasets[r.Task.Dataset].Splits[r.Task.Split].Test)
+	}
+	preds := make([]results.Prediction, 0, nPred)
+	folds := make([]results.Fold, 0, len(res))
+	times := make([]results.Timing, 0, len(res))
 	for _, r := range res {
 		t := r.Task
 		d := p.Datasets[t.Dataset]
@@ -300,7 +304,7 @@ func relPath(dir, path string) string {
 // into place only when every file is complete; an existing dir is
 // replaced only then. On error nothing is left behind.
 func Write(p *plan.Plan, dir string, res []TaskResult, info RunInfo, warnings []string) error {
-	c, err := renderRun(p, res, info.NoFigures)
+	c, err := renderRun(p, res, info.NoFigures, info.Workers)
 	if err != nil {
 		return err
 	}
@@ -397,9 +401,18 @@ type renderedRun struct {
 	warnings []string
 }
 
-// renderRun renders the deterministic files of a run directory.
-func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, error) {
+// renderRun renders the deterministic files of a run directory, at most
+// workers files at a time. With two workers or more, predictions.csv and
+// folds.csv (the largest files, which need only the records) are rendered
+// beside the analysis of the run, the others once the report is made; the
+// bytes do not depend on workers.
+func renderRun(p *plan.Plan, res []TaskResult, noFigures bool, workers int) (*renderedRun, error) {
 	preds, folds, times := Records(p, res)
+	records := []outdir.File{
+		{Name: "predictions.csv", Render: func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
+		{Name: "folds.csv", Render: func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
+	}
+	early := renderBeside(records, workers > 1)
 	in := reportInput(p, res, preds, folds)
 	summary := in.Summary
 	rep, err := report.Analyse(in)
@@ -428,8 +441,6 @@ func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, er
 		return nil, err
 	}
 	files := []outdir.File{
-		{Name: "predictions.csv", Render: func(b *bytes.Buffer) error { return results.WritePredictions(b, preds) }},
-		{Name: "folds.csv", Render: func(b *bytes.Buffer) error { return results.WriteFolds(b, folds) }},
 		{Name: "summary.csv", Render: func(b *bytes.Buffer) error { return results.WriteSummary(b, summary) }},
 		{Name: "summary.tex", Render: func(b *bytes.Buffer) error { b.WriteString(tex.Text); return nil }},
 		{Name: results.StandaloneName, Render: func(b *bytes.Buffer) error {
@@ -457,12 +468,38 @@ func renderRun(p *plan.Plan, res []TaskResult, noFigures bool) (*renderedRun, er
 		files = append(files, outdir.File{Name: "tuning.csv", Render: func(b *bytes.Buffer) error { return results.WriteTuning(b, tuning) }})
 	}
 	files = append(files, outdir.FigureFiles(figs)...)
-	out, err := outdir.Render(files)
+	rest, err := outdir.RenderLimit(files, workers)
 	if err != nil {
 		return nil, err
 	}
+	first, err := early()
+	if err != nil {
+		return nil, err
+	}
+	out := append(first, rest...)
 	warns := append(append([]string(nil), rep.Warnings...), tex.Warnings...)
 	return &renderedRun{files: out, times: times, warnings: warns}, nil
+}
+
+// renderBeside renders files in a goroutine of its own when beside is
+// set (else at once, in the caller's); the returned function waits for
+// them and returns them in order, or the first error.
+func renderBeside(files []outdir.File, beside bool) func() ([]outdir.Rendered, error) {
+	if !beside {
+		out, err := outdir.RenderLimit(files, 1)
+		return func() ([]outdir.Rendered, error) { return out, err }
+	}
+	var out []outdir.Rendered
+	var err error
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		out, err = outdir.RenderLimit(files, 1)
+	}()
+	return func() ([]outdir.Rendered, error) {
+		<-done
+		return out, err
+	}
 }
 
 // Report analyses a finished run: report.Analyse on its records, with

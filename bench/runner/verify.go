@@ -211,7 +211,7 @@ func (v *Verified) recompute(dir string, m *results.Manifest, opt VerifyOptions,
 			return
 		}
 	}
-	c, err := renderRun(p, res, true)
+	c, err := renderRun(p, res, true, 1)
 	if err != nil {
 		add("predictions.csv", "the records do not give a report: %v", err)
 		return

@@ -97,8 +97,8 @@ type command struct {
 
 func commands() []*command {
 	return []*command{
-		{name: "demo", args: "[-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-figures=false] [-memory GiB] [-max-estimate D] [-yes] [-grace D]", short: "run the built-in demo experiment on embedded data", run: runDemo},
-		{name: "run", args: "SPEC.toml [-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-figures=false] [-memory GiB] [-max-estimate D] [-yes] [-grace D]", short: "run an experiment spec (an interrupted run continues where it stopped)", run: runSpec},
+		{name: "demo", args: "[-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-figures=false] [-memory GiB] [-max-estimate D] [-yes] [-grace D] [-cpuprofile FILE]", short: "run the built-in demo experiment on embedded data", run: runDemo},
+		{name: "run", args: "SPEC.toml [-out DIR] [-workers N] [-shard i/n] [-fresh] [-quiet] [-figures=false] [-memory GiB] [-max-estimate D] [-yes] [-grace D] [-cpuprofile FILE]", short: "run an experiment spec (an interrupted run continues where it stopped)", run: runSpec},
 		{name: "plan", args: "SPEC.toml [-workers N] [-shard i/n] [-cells] [-max-estimate D]", short: "show a spec's tasks and their estimated cost (qubits, gates, simulator, time per model) without running anything", run: runPlan},
 		{name: "list", args: "", short: "list embedded datasets, pipeline steps and models", run: runList},
 		{name: "rank", args: "SCORES.csv [-alpha A] [-json] [-plot FILE]", short: "rank models across datasets from a dataset,model,score CSV (Friedman, Iman-Davenport, Nemenyi CD)", run: runRank},

@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"runtime"
+	"runtime/pprof"
 	"strings"
 	"time"
 
@@ -77,6 +78,7 @@ type runFlags struct {
 	maxEst  time.Duration
 	yes     bool
 	spec    string // the spec file of fringe run, for the hint to fringe plan
+	profile string // -cpuprofile FILE
 }
 
 func addRunFlags(fs *flag.FlagSet) *runFlags {
@@ -87,9 +89,10 @@ func addRunFlags(fs *flag.FlagSet) *runFlags {
 	fs.StringVar(&rf.shard, "shard", "", "run only shard `i/n`, the i-th of n deterministic slices of the tasks, and write a partial run directory for 'fringe merge'")
 	fs.BoolVar(&rf.fresh, "fresh", false, "discard the unfinished run kept in the partial run directory instead of resuming it")
 	fs.BoolVar(&rf.figures, "figures", true, "write the figures (SVG, PDF, PNG); -figures=false keeps only tables and CSV files")
-	fs.Float64Var(&rf.memory, "memory", 8, "memory limit in GiB for the tasks that run at once: a plan whose models' estimate (an SVM's kernel cache and vectors per task, times -workers) exceeds it is refused before it starts")
+	fs.Float64Var(&rf.memory, "memory", 8, "memory limit in GiB for the tasks that run at once: a plan whose estimate (the largest task's model and prepared data on the largest training part, times -workers, plus the loaded datasets) exceeds it is refused before it starts, naming the key to change")
 	fs.DurationVar(&rf.maxEst, "max-estimate", DefaultMaxEstimate, "a run started from a terminal whose estimated wall-clock time (see 'fringe plan') is above this is refused unless -yes is given, with the spec keys that make it faster; without a terminal (scripts, CI, cluster jobs) that is printed as a warning and the run starts; 0: no limit")
 	fs.BoolVar(&rf.yes, "yes", false, "start even when the estimate is above -max-estimate")
+	fs.StringVar(&rf.profile, "cpuprofile", "", "write a CPU profile of the whole run (planning, tasks, files and figures) to `FILE`, for go tool pprof")
 	fs.DurationVar(&rf.grace, "grace", runner.DefaultGrace, "after an interrupt (SIGINT, SIGTERM), how long the tasks in flight may still finish before they are abandoned (a second interrupt abandons them at once; finished tasks are always kept)")
 	return rf
 }
@@ -104,6 +107,11 @@ func runDemo(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) > 0 {
 		return usagef("demo takes no arguments, got %q", pos[0])
 	}
+	stop, err := startProfile(rf.profile)
+	if err != nil {
+		return err
+	}
+	defer stop()
 	s, err := spec.Demo()
 	if err != nil {
 		return err
@@ -124,6 +132,11 @@ func runSpec(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	if len(pos) != 1 {
 		return usagef("run takes exactly one spec file (see 'fringe run -h')")
 	}
+	stop, err := startProfile(rf.profile)
+	if err != nil {
+		return err
+	}
+	defer stop()
 	s, err := loadSpec(pos[0], stderr)
 	if err != nil {
 		return err
@@ -144,6 +157,27 @@ func printWarnings(s *spec.Spec, stderr io.Writer) {
 	for _, w := range s.Warnings {
 		fmt.Fprintln(stderr, "fringe: warning:", w)
 	}
+}
+
+// startProfile starts a CPU profile written to path (-cpuprofile) and
+// returns the function that stops it and closes the file; with path ""
+// it does nothing. A file that cannot be created is bad usage.
+func startProfile(path string) (stop func(), err error) {
+	if path == "" {
+		return func() {}, nil
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return nil, usagef("-cpuprofile: %v", err)
+	}
+	if err := pprof.StartCPUProfile(f); err != nil {
+		f.Close()
+		return nil, usagef("-cpuprofile: %v", err)
+	}
+	return func() {
+		pprof.StopCPUProfile()
+		f.Close()
+	}, nil
 }
 
 func helpOK(err error) error {

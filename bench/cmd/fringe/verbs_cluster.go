@@ -55,6 +55,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 		partialDir = out
 	}
 	start := time.Now()
+	if rf.figures && !sharded {
+		// Built once per process, beside planning and the tasks, so
+		// that the figures do not wait for it.
+		go results.WarmFigureFonts()
+	}
 	pl, err := plan.New(s)
 	if err != nil {
 		return err
@@ -62,9 +67,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 	if !(rf.memory > 0) {
 		return usagef("-memory must be a positive number of GiB, got %v", rf.memory)
 	}
-	if err := pl.CheckMemory(rf.workers, int64(rf.memory*(1<<30))); err != nil {
+	limit := int64(rf.memory * (1 << 30))
+	if err := pl.CheckMemory(rf.workers, limit); err != nil {
 		return err
 	}
+	defer runner.SetGC(pl.MemoryNeed(rf.workers), limit)()
 	if rf.maxEst < 0 {
 		return usagef("-max-estimate must not be negative, got %v", rf.maxEst)
 	}
@@ -131,6 +138,11 @@ func execute(ctx context.Context, s *spec.Spec, rf *runFlags, cmdline []string, 
 			grace = -1 // -grace 0: abandon at once
 		}
 		opt := runner.Options{Workers: rf.workers, Tasks: todo, Save: pr.Save, SaveEvery: saveEvery, Grace: grace, Abandon: abandonOf(ctx)}
+		if !sharded {
+			// The run directory is written as soon as the tasks are
+			// done: the tasks still pending then need no task file.
+			opt.Keep = pr.Hold
+		}
 		var prog *runner.Progress
 		if !rf.quiet {
 			all, err := pl.ShardTasks(shard)
