@@ -173,7 +173,8 @@ func TestList(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	for _, w := range []string{"iris", "wine", "breast-cancer", "sha256", "licence", "std", "l2", "pad", "lift", "interference", "knn", "svm", "logreg", "centroid"} {
+	for _, w := range []string{"iris", "wine", "breast-cancer", "sha256", "licence", "std", "l2", "pad", "lift", "interference", "knn", "svm", "logreg", "centroid",
+		"DEVICES", "line-16", "grid-4x4", "heavy-27", "ions-20", "27 qubits, native rz-sx-x-cx"} {
 		if !strings.Contains(out, w) {
 			t.Errorf("list output lacks %q", w)
 		}

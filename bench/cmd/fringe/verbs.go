@@ -16,6 +16,7 @@ import (
 	"fringe/bench/runner"
 	"fringe/bench/spec"
 	"fringe/datasets"
+	"fringe/qkernel/device"
 )
 
 // newFlags makes a verb's flag set; -h prints the verb's usage to stdout.
@@ -235,6 +236,16 @@ func runList(ctx context.Context, c *command, args []string, stdout, stderr io.W
 	for _, n := range modelkit.NoiseKeys {
 		w.item(n.Key, n.Meaning)
 	}
+	w.head("DEVICES (embedded; device = NAME in an interference or counts model, -device NAME for circuit and assess)")
+	for _, name := range device.Names() {
+		d, err := device.Load(name)
+		if err != nil {
+			return err
+		}
+		w.item(d.Name, fmt.Sprintf("%d qubits, native %s", d.N(), d.Family))
+		w.more(d.Note)
+	}
+	w.item("PATH.toml", "your own device file: coupling, native gates, T1/T2, readout and gate errors, durations (see the README)")
 	return w.err
 }
 
