@@ -5,6 +5,7 @@ import (
 	"time"
 
 	"fringe/qkernel/circuit"
+	"fringe/qkernel/device"
 	"fringe/qkernel/sim"
 )
 
@@ -22,6 +23,12 @@ type CostEstimate struct {
 	// with sim.Auto resolved as Fit resolves it; else sim.Auto.
 	Simulated bool
 	Method    sim.Method
+	// Device names the device a ModeNoisy run compiles every row's
+	// circuit to ("" for none); DeviceTwoQubit is the native two-qubit
+	// gate count of the routed circuit of the sizes, SWAPs included, and
+	// DeviceGate that gate's name ("cx" or "cz").
+	Device, DeviceGate string
+	DeviceTwoQubit     int
 	// PerRow is the estimated time of one test prediction, Total that of
 	// nTest predictions (Fit excluded: it costs O(n d)).
 	PerRow, Total time.Duration
@@ -44,7 +51,10 @@ type CostEstimate struct {
 // middle of sim.Shared per row plus its preparation once per training set:
 // once in all without TrainSubset, once per row with it (an upper bound:
 // rows whose subsets have the same labels share it). Compiling the row's
-// circuit (O(M d)) is not counted. Estimates are CPU time of one thread;
+// circuit (O(M d)) is not counted. On a device (Classifier.Device), a row
+// costs its compilation to the device, timed once here on the circuit of
+// the sizes, and the simulation of the routed program under the device's
+// noise (sim.CostModel.EstimateNoisy). Estimates are CPU time of one thread;
 // see sim.CostModel for their accuracy.
 func (c *Classifier) EstimateCost(cm *sim.CostModel, nTrain, nFeatures, nClass, nTest int) (CostEstimate, error) {
 	if err := c.Validate(); err != nil {
@@ -105,7 +115,24 @@ func (c *Classifier) EstimateCost(cm *sim.CostModel, nTrain, nFeatures, nClass, 
 			noise = sim.NoiseModel{}
 		}
 		opt := sim.Options{Noise: noise, Method: p.method, Trajectories: c.Trajectories}
-		if p.method == sim.DensityMatrix && c.Mode == ModeNoisy && !c.noShare {
+		if c.Device != nil && c.Mode == ModeNoisy {
+			t0 := time.Now()
+			prog, err := device.Compile(circ, c.Device, device.Options{})
+			compile := time.Since(t0)
+			if err != nil {
+				return CostEstimate{}, fmt.Errorf("qkernel: estimate: %w", err)
+			}
+			nc, err := prog.Noisy()
+			if err != nil {
+				return CostEstimate{}, fmt.Errorf("qkernel: estimate: %w", err)
+			}
+			t, err := cm.EstimateNoisy(nc, sim.Options{Method: p.method, Trajectories: c.Trajectories})
+			if err != nil {
+				return CostEstimate{}, fmt.Errorf("qkernel: estimate: %w", err)
+			}
+			row += float64(compile + t)
+			est.Device, est.DeviceGate, est.DeviceTwoQubit = c.Device.Name, prog.After.Gate, prog.After.TwoQubit
+		} else if p.method == sim.DensityMatrix && c.Mode == ModeNoisy && !c.noShare {
 			from, to := dataOps(circ)
 			prep, run, err := cm.EstimateShared(circ, from, to, opt)
 			if err != nil {

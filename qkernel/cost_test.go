@@ -9,6 +9,7 @@ import (
 	"testing"
 	"time"
 
+	"fringe/qkernel/device"
 	"fringe/qkernel/sim"
 )
 
@@ -57,6 +58,42 @@ func TestEstimateCostStructure(t *testing.T) {
 			t.Errorf("mode %v: costs %v per row, %v in all", c.Mode, est.PerRow, est.Total)
 		}
 	}
+	// On a device: the routed program of the sizes, its two-qubit count
+	// as device.Compile gives it, and a cost of at least the simulation's
+	// share alone.
+	for _, name := range device.Names() {
+		dev, err := device.Load(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c := Classifier{Mode: ModeNoisy, TrainSubset: 8, Shots: 1000, Device: dev}
+		est, err := c.EstimateCost(cm, nTrain, d, f.nClass, nTest)
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		circ, err := sizeCircuit(8, d, f.nClass)
+		if err != nil {
+			t.Fatal(err)
+		}
+		prog, err := device.Compile(circ, dev, device.Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		nc, err := prog.Noisy()
+		if err != nil {
+			t.Fatal(err)
+		}
+		simOnly, err := cm.EstimateNoisy(nc, sim.Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !est.Simulated || est.Method != sim.DensityMatrix || est.Device != name || est.DeviceTwoQubit != prog.After.TwoQubit || est.DeviceGate != prog.After.Gate {
+			t.Errorf("%s: estimate %+v; routed program of the sizes: %d %s", name, est, prog.After.TwoQubit, prog.After.Gate)
+		}
+		if est.PerRow < simOnly {
+			t.Errorf("%s: %v per row, below the %v of simulating the routed program alone", name, est.PerRow, simOnly)
+		}
+	}
 	if _, err := (&Classifier{TrainSubset: 200}).EstimateCost(cm, nTrain, d, 3, 15); !errors.Is(err, ErrSubset) {
 		t.Errorf("subset beyond the training set: err = %v", err)
 	}
@@ -73,7 +110,8 @@ func TestEstimateCostStructure(t *testing.T) {
 
 // TestEstimateCostAgainstRun compares EstimateCost with the measured thread
 // CPU time of Fit and Predict for gate-level noisy runs at two sizes (7 and
-// 9 qubits, training subsets) and trajectories: within a factor of 3, a
+// 9 qubits, training subsets), trajectories and two devices (routed
+// programs under calibrated noise): within a factor of 3, a
 // loose bound on purpose. Runs only with FRINGE_TIMING=1.
 func TestEstimateCostAgainstRun(t *testing.T) {
 	// A timed check depends on the machine's load, so it never runs by
@@ -90,6 +128,14 @@ func TestEstimateCostAgainstRun(t *testing.T) {
 	}
 	noise := sim.NoiseModel{Depolarizing: [2]float64{0.001, 0.01}, AmplitudeDamping: 0.001}
 	rng := rand.New(rand.NewPCG(81, 82))
+	heavy, err := device.Load("heavy-27")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ions, err := device.Load("ions-20")
+	if err != nil {
+		t.Fatal(err)
+	}
 	for _, tc := range []struct {
 		name        string
 		c           Classifier
@@ -98,6 +144,8 @@ func TestEstimateCostAgainstRun(t *testing.T) {
 		{"density 7 qubits", Classifier{Mode: ModeNoisy, TrainSubset: 8, Noise: noise, Shots: 100, Seed: 1}, 60, 10, 4},
 		{"density 9 qubits", Classifier{Mode: ModeNoisy, TrainSubset: 16, Noise: noise, Shots: 100, Seed: 1}, 60, 4, 8},
 		{"trajectories 9 qubits", Classifier{Mode: ModeNoisy, TrainSubset: 16, Noise: noise, Method: sim.Trajectories, Trajectories: 20, Seed: 1}, 60, 4, 8},
+		{"heavy-27, 8 qubits", Classifier{Mode: ModeNoisy, TrainSubset: 8, Device: heavy, Shots: 100, Seed: 1}, 60, 6, 4},
+		{"ions-20, 9 qubits", Classifier{Mode: ModeNoisy, TrainSubset: 16, Device: ions, Shots: 100, Seed: 1}, 60, 3, 8},
 	} {
 		X, y, T := randomProblem(rng, tc.n, tc.nTest, tc.d, 2)
 		est, err := tc.c.EstimateCost(cm, tc.n, tc.d, 2, tc.nTest)

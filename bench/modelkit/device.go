@@ -315,6 +315,23 @@ func (u unresolvedModel) Predict(*mat.Dense) ([]int, error) {
 	return nil, fmt.Errorf("modelkit: model %s: %w", u.name, baselines.ErrNotFitted)
 }
 
+// Costed returns the interference configuration as its tasks run it, for
+// the estimates of cost and memory made before a run: Interference with
+// the resolved device (nil for other kinds). Readout mitigation is left
+// out: it costs a few small matrix products per row, and confusion
+// matrices from a calibration file by register bit are only picked at
+// Fit, when the class count is known.
+func (m Spec) Costed() *qkernel.Classifier {
+	if m.Interference == nil {
+		return nil
+	}
+	c := *m.Interference
+	if m.hw != nil && m.hw.resolved {
+		c.Device = m.hw.dev
+	}
+	return &c
+}
+
 // configure sets the device and the mitigation of a classifier from the
 // resolved hardware; perBit reports whether the confusion matrices come
 // per register bit from a calibration file (they are set at Fit, when

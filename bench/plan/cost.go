@@ -23,8 +23,10 @@ type Cost struct {
 	Qubits, CNOT, SingleQubit int
 	// Simulator names how the test rows are computed: "closed form",
 	// "closed form + shots", or the simulator of a gate-level run ("state
-	// vector", "density matrix", "trajectories (T)"); several, joined by
-	// ", ", when datasets or grid points differ. "" for classical models.
+	// vector", "density matrix", "trajectories (T)"), on a device with
+	// its name and the routed two-qubit gates ("density matrix on heavy-27
+	// (149 cx routed)"); several, joined by ", ", when datasets or grid
+	// points differ. "" for classical models.
 	Simulator string
 	// Estimated is false when no task of the group has an estimate; Why
 	// then says why (NotEstimated).
@@ -289,7 +291,7 @@ func (c *fitCost) merge(f fitCost, n int) {
 func fitEstimate(cm *sim.CostModel, ms modelkit.Spec, nTrain, nFeatures, nClass, nTest int) (fitCost, error) {
 	switch ms.Kind {
 	case "interference":
-		est, err := ms.Interference.EstimateCost(cm, nTrain, nFeatures, nClass, nTest)
+		est, err := ms.Costed().EstimateCost(cm, nTrain, nFeatures, nClass, nTest)
 		if err != nil {
 			return fitCost{}, err
 		}
@@ -314,17 +316,21 @@ func simulatorName(c *qkernel.Classifier, est qkernel.CostEstimate) string {
 		}
 		return "closed form"
 	}
+	name := est.Method.String()
 	switch est.Method {
 	case sim.StateVector:
-		return "state vector"
+		name = "state vector"
 	case sim.DensityMatrix:
-		return "density matrix"
+		name = "density matrix"
 	case sim.Trajectories:
 		t := c.Trajectories
 		if t == 0 {
 			t = sim.DefaultTrajectories
 		}
-		return fmt.Sprintf("trajectories (%d)", t)
+		name = fmt.Sprintf("trajectories (%d)", t)
 	}
-	return est.Method.String()
+	if est.Device != "" {
+		name = fmt.Sprintf("%s on %s (%d %s routed)", name, est.Device, est.DeviceTwoQubit, est.DeviceGate)
+	}
+	return name
 }

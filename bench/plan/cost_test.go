@@ -2,6 +2,7 @@ package plan_test
 
 import (
 	"slices"
+	"strings"
 	"testing"
 	"time"
 
@@ -199,5 +200,46 @@ kind = "knn"
 	}
 	if e.Tasks != 6 || e.CPU < want-6 || e.CPU > want+6 {
 		t.Errorf("%d tasks, estimate %v; want 6 and %v", e.Tasks, e.CPU, want)
+	}
+}
+
+// TestEstimateDevice checks that a model on a device is estimated as its
+// tasks run it: every row's circuit compiled to the device and its routed
+// program simulated on the density matrix under the device's noise (not
+// the closed form of the same keys without the device), with the device
+// and the routed two-qubit gates named in the simulator column.
+func TestEstimateDevice(t *testing.T) {
+	p := benchtest.Plan(t, "t.toml", `
+name = "device-cost"
+seed = 3
+datasets = ["iris"]
+pipelines = ["std+l2"]
+[cv]
+folds = 3
+[[model]]
+kind = "interference"
+mode = "noisy"
+train_subset = 8
+shots = 512
+device = "heavy-27"
+[[model]]
+kind = "interference"
+mode = "shots"
+train_subset = 8
+shots = 512
+`)
+	e, err := p.Estimate(fixedCost(), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dev, plain := e.Models[0], e.Models[1]
+	if !strings.HasPrefix(dev.Simulator, "density matrix on heavy-27 (") || !strings.HasSuffix(dev.Simulator, " cx routed)") {
+		t.Errorf("device model: simulator %q", dev.Simulator)
+	}
+	if plain.Simulator != "closed form + shots" {
+		t.Errorf("shot model: simulator %q", plain.Simulator)
+	}
+	if !dev.Estimated || dev.CPU <= 10*plain.CPU {
+		t.Errorf("device model estimated %v (%v), the closed form with shots %v", dev.Estimated, dev.CPU, plain.CPU)
 	}
 }

@@ -64,7 +64,7 @@ func (p *Plan) TaskMemory(mi int) (Memory, error) {
 				switch {
 				case m.Interference != nil:
 					var q int
-					b, q, err = m.Interference.MemoryBytes(nTrain, nTest, width, nClass)
+					b, q, err = m.Costed().MemoryBytes(nTrain, nTest, width, nClass)
 					if q > 0 {
 						est.Key = key + ".train_subset"
 						est.Remedy = fmt.Sprintf("set or lower train_subset (fewer index qubits; the circuit of %d qubits is simulated gate by gate)", q)

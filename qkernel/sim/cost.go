@@ -542,3 +542,74 @@ func (cm *CostModel) EstimateShared(c *circuit.Circuit, from, to int, opt Option
 	run = time.Duration(cm.opsCost(DensityMatrix, mid, opt.Noise) + tail + alloc)
 	return prepare, run, nil
 }
+
+// EstimateNoisy returns the estimated duration of SimulateNoisy(nc, opt)
+// (opt.Method Auto resolved as SimulateNoisy resolves it). On the density
+// matrix, which composes one-qubit gates and channels into pending
+// superoperators and holds only the qubits entangled so far, it counts one
+// noisy pass (DensityDamp: a gate with its channels) per two-qubit gate
+// over the qubits joined at that point, and one per qubit for the pending
+// operations at the end; with trajectories, every operation and each of
+// its channels on the whole state vector, per trajectory.
+func (cm *CostModel) EstimateNoisy(nc *NoisyCircuit, opt Options) (time.Duration, error) {
+	if err := nc.validate(); err != nil {
+		return 0, err
+	}
+	n := nc.NQubits
+	m := opt.Method
+	if m == Auto {
+		m = DensityMatrix
+		if n > MaxDensityQubits {
+			m = Trajectories
+		}
+	}
+	ns := 0.0
+	switch m {
+	case DensityMatrix:
+		if n > MaxDensityQubits {
+			return 0, fmt.Errorf("sim: %d qubits exceed the density-matrix limit of %d qubits", n, MaxDensityQubits)
+		}
+		joined := make([]bool, n)
+		k := 0
+		for _, t := range nc.Ops {
+			qs := t.Op.Qubits()
+			if t.Op.Gate == circuit.Measure || len(qs) < 2 {
+				continue
+			}
+			for _, q := range qs {
+				if !joined[q] {
+					joined[q] = true
+					k++
+				}
+			}
+			ns += cm.DensityDamp.at(1 << (2 * k))
+		}
+		ns += float64(n) * cm.DensityDamp.at(1<<(2*max(k, 1)))
+		ns += cm.Alloc * float64(int(1)<<(2*n))
+	case Trajectories:
+		T := opt.Trajectories
+		if T == 0 {
+			T = DefaultTrajectories
+		}
+		per := 0.0
+		for _, t := range nc.Ops {
+			if t.Op.Gate == circuit.Measure {
+				continue
+			}
+			channels := 0
+			for j := range 2 {
+				if t.Before[j] != nil {
+					channels++
+				}
+				if t.After[j] != nil {
+					channels++
+				}
+			}
+			per += cm.Trajectory.at(1<<n) + cm.Jump*float64(int(1)<<n)*float64(channels)
+		}
+		ns = per*float64(T) + cm.Alloc*float64(int(1)<<n)
+	default:
+		return 0, fmt.Errorf("sim: a noisy circuit runs on the density matrix or trajectories, not %v", m)
+	}
+	return time.Duration(ns), nil
+}
