@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 
 	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/mat"
@@ -57,13 +58,9 @@ func connected(d *device.Device) int {
 
 // deviceAccuracy simulates the assessed form of the classifier (mode
 // noisy on the device, train_subset m, the assessment's weights) on a
-// sample of the test instances of pipeline pi: o.DeviceInstances of them
-// shared out over the folds of the first repeat one per fold, round after
-// round, and within a fold's test part t of its n instances at positions
-// floor(j n / t), j = 0..t-1 (spread evenly: stratified test parts keep
-// the rows in dataset order, so the classes come in their proportions).
-// Each fold's
-// classifier has the run's interference seed of that split, so its
+// sample of the test instances of pipeline pi (deviceSample: o.DeviceInstances
+// of the first repeat's test rows, the classes in their proportions).
+// Each fold's classifier has the run's interference seed of that split, so its
 // training subsets are those every interference model of a run would
 // draw. It fills Instances, Accuracy, Exact (the noiseless decision on the
 // same subset, qkernel.Detail.Exact) and Changed. Circuits beyond the
@@ -84,27 +81,17 @@ func deviceAccuracy(o Options, ad *assessDataset, pi, m int, d *results.AssessDe
 			folds = append(folds, si)
 		}
 	}
-	take := make([]int, len(folds)) // test instances taken per fold
-	left := o.DeviceInstances
-	for j := 0; left > 0; j++ {
-		more := false
-		for f, si := range folds {
-			if left > 0 && j < len(ds.Splits[si].Test) {
-				take[f]++
-				left--
-				more = true
-			}
-		}
-		if !more {
-			break
-		}
+	tests := make([][]int, len(folds))
+	for f, si := range folds {
+		tests[f] = ds.Splits[si].Test
 	}
+	picks := deviceSample(tests, ad.data.Y, len(ad.data.Classes), o.DeviceInstances)
 	type tally struct{ n, right, exact, changed int }
 	out := make([]tally, len(folds))
 	g, ctx := errgroup.WithContext(o.ctx)
 	g.SetLimit(max(1, o.Workers))
 	for f, si := range folds {
-		if take[f] == 0 {
+		if len(picks[f]) == 0 {
 			continue
 		}
 		g.Go(func() error {
@@ -112,15 +99,12 @@ func deviceAccuracy(o Options, ad *assessDataset, pi, m int, d *results.AssessDe
 			if err != nil {
 				return err
 			}
-			// take[f] positions spread evenly over the test part (which
-			// is in split order, so classes come in their proportions).
 			test := ds.Splits[si].Test
 			_, dim := prep.Zte.Dims()
-			pos := make([]int, take[f])
-			Zte := mat.NewDense(take[f], dim, nil)
-			for j := range pos {
-				pos[j] = j * len(test) / take[f]
-				Zte.SetRow(j, prep.Zte.RawRowView(pos[j]))
+			pos := picks[f]
+			Zte := mat.NewDense(len(pos), dim, nil)
+			for j, p := range pos {
+				Zte.SetRow(j, prep.Zte.RawRowView(p))
 			}
 			q := &qkernel.Classifier{Mode: qkernel.ModeNoisy, Device: o.Device, TrainSubset: m, Balance: !o.Uniform,
 				Seed: ad.quantum.InterferenceSeed(0, si)}
@@ -164,6 +148,96 @@ func deviceAccuracy(o Options, ad *assessDataset, pi, m int, d *results.AssessDe
 		d.Accuracy, d.Exact, d.Changed = float64(sum.right)/n, float64(sum.exact)/n, float64(sum.changed)/n
 	}
 	return nil
+}
+
+// deviceSample chooses t test instances among the test parts of the
+// folds (tests[f]: dataset rows; y: the rows' classes) and returns, per
+// fold, the positions in its test part, ascending. The classes get their
+// share of t by largest remainder (ties to the earlier class), every
+// present class at least one instance while t allows (taken from the
+// share furthest above its quota). The instances then go round the folds, class after
+// class, one fold after the other (a fold without an unused row of the
+// class passes its turn to the next), and within a fold a class's rows are
+// taken from the middle of its run on. Evenly spread positions within each
+// fold alone would not do: a test part keeps the dataset's order, and on
+// Iris, sorted by class, two instances per fold were always a setosa and a
+// versicolor, never a virginica.
+func deviceSample(tests [][]int, y []int, nClass, t int) [][]int {
+	nFold := len(tests)
+	rows := make([][][]int, nClass) // rows[c][f]: positions of class c in fold f
+	count := make([]int, nClass)
+	total := 0
+	for c := range rows {
+		rows[c] = make([][]int, nFold)
+	}
+	for f, test := range tests {
+		for p, row := range test {
+			rows[y[row]][f] = append(rows[y[row]][f], p)
+			count[y[row]]++
+			total++
+		}
+	}
+	t = min(t, total)
+	share := make([]int, nClass)
+	quota := make([]float64, nClass)
+	if t > 0 {
+		rem := make([]float64, nClass)
+		given := 0
+		for c, n := range count {
+			quota[c] = float64(t) * float64(n) / float64(total)
+			share[c] = int(quota[c])
+			rem[c] = quota[c] - float64(share[c])
+			given += share[c]
+		}
+		for ; given < t; given++ {
+			best := -1
+			for c := range count {
+				if share[c] < count[c] && (best < 0 || rem[c] > rem[best]) {
+					best = c
+				}
+			}
+			share[best]++
+			rem[best] = -1
+		}
+		present := 0
+		for _, n := range count {
+			if n > 0 {
+				present++
+			}
+		}
+		for c, n := range count {
+			if n == 0 || share[c] > 0 || t < present {
+				continue
+			}
+			big := -1 // the share furthest above its quota
+			for b := range share {
+				if share[b] > 1 && (big < 0 || float64(share[b])-quota[b] > float64(share[big])-quota[big]) {
+					big = b
+				}
+			}
+			share[big]--
+			share[c]++
+		}
+	}
+	picks := make([][]int, nFold)
+	g := 0
+	for c := range nClass {
+		for range share[c] {
+			f := g % nFold
+			for len(rows[c][f]) == 0 {
+				f = (f + 1) % nFold
+			}
+			l := rows[c][f]
+			i := len(l) / 2 // the middle of the run first, then outwards
+			picks[f] = append(picks[f], l[i])
+			rows[c][f] = append(l[:i:i], l[i+1:]...)
+			g = f + 1
+		}
+	}
+	for f := range picks {
+		slices.Sort(picks[f])
+	}
+	return picks
 }
 
 // withContext returns o carrying ctx for the device simulations.

@@ -11,7 +11,7 @@ import (
 // assessDeviceFlags defines the device flags of fringe assess.
 func assessDeviceFlags(fs *flag.FlagSet) (name *string, instances *int) {
 	name = fs.String("device", "", "also assess every circuit on the device `NAME|FILE` (embedded: "+strings.Join(device.Names(), ", ")+"; or a device file): routed counts, duration, noise budget and fidelity, and the accuracy under its calibrated noise for the -subsets sizes, simulated")
-	instances = fs.Int("device-instances", assess.DefaultDeviceInstances, "with -device: test instances simulated per dataset, pipeline and subset size (shared out over the folds of the first repeat, spread evenly over each test part)")
+	instances = fs.Int("device-instances", assess.DefaultDeviceInstances, "with -device: test instances simulated per dataset, pipeline and subset size (from the first repeat's test parts, the classes in their proportions, round the folds)")
 	return name, instances
 }
 
