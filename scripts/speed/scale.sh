@@ -6,7 +6,7 @@
 # flakes, 16 bands), with 2 classes (PET or not) and 10 (polymers), at each
 # size in SIZES rows. Protocol: pipeline std+l2, stratified 5-fold CV
 # (seed 7), one model at a time: the exact interference classifier, k-NN
-# (k = 5), RBF SVM (C = 1, gamma "scale") and logistic regression (C = 1);
+# (k = 5), RBF SVM (C = 1, gamma "inverse-variance", scikit-learn's "scale") and logistic regression (C = 1);
 # on fringe's side also k-NN forced to brute force (search = "brute"), the
 # reference of its default search (a k-d tree where its probe says it pays).
 #
@@ -45,7 +45,7 @@ model_toml() { # kind
   interference) printf '[[model]]\nkind = "interference"\n' ;;
   knn) printf '[[model]]\nkind = "knn"\nk = 5\n' ;;
   knnbrute) printf '[[model]]\nkind = "knn"\nk = 5\nsearch = "brute"\nname = "knn-brute"\n' ;;
-  svm) printf '[[model]]\nkind = "svm"\nkernel = "rbf"\nC = 1.0\ngamma = "scale"\n' ;;
+  svm) printf '[[model]]\nkind = "svm"\nkernel = "rbf"\nC = 1.0\ngamma = "inverse-variance"\n' ;;
   logreg) printf '[[model]]\nkind = "logreg"\nC = 1.0\n' ;;
   esac
 }
@@ -68,7 +68,7 @@ for k in $classes; do
     for m in interference knn knnbrute svm logreg; do
       name=$(model_name $m)
       spec "s$k-$n-$m" "$csv" "$m" > "$d/s.toml"
-      GOMAXPROCS=1 "$d/fringe" run "$d/s.toml" -out "$d/run" -workers 1 -quiet -fresh -figures=false
+      GOMAXPROCS=1 "$d/fringe" run "$d/s.toml" -out "$d/run" -workers 1 -quiet -fresh -figures=false > /dev/null
       go_s=$(awk -F, 'NR > 1 {s += $6} END {printf "%.3f", s}' "$d/run/timings.csv")
       go_acc=$(awk -F, 'NR == 2 {print $6}' "$d/run/summary.csv")
       if [[ $m == knnbrute ]]; then
@@ -104,7 +104,7 @@ for k in $classes; do
   csv="$d/flakes-$k-$big.csv"
   spec "all$k" "$csv" interference knn svm logreg > "$d/all.toml"
   for w in 1 2; do
-    /usr/bin/time -v "$d/fringe" run "$d/all.toml" -out "$d/all" -workers "$w" -quiet -fresh 2> "$d/time.txt"
+    /usr/bin/time -v "$d/fringe" run "$d/all.toml" -out "$d/all" -workers "$w" -quiet -fresh > /dev/null 2> "$d/time.txt"
     wall=$(awk -F': ' '/Elapsed \(wall clock\)/ {n = split($2, t, ":"); s = 0; for (i = 1; i <= n; i++) s = s*60 + t[i]; print s}' "$d/time.txt")
     rss=$(awk -F': ' '/Maximum resident set size/ {printf "%.0f", $2/1024}' "$d/time.txt")
     echo "$k $w $wall $rss" >> "$d/all.txt"
