@@ -9,7 +9,8 @@ import (
 // folds laid out like a stratified split of a dataset sorted by class
 // (Iris: 10 folds of 15 rows, 5 of each class, in dataset order): every
 // class gets its share of the sample (largest remainder, at least one
-// each), every fold is reached, no instance twice, and the positions name
+// each; the expected shares derived by hand from the class counts), every
+// fold is reached, no instance twice, and the positions name
 // rows of the fold's test part. The old rule (evenly spread within each
 // fold) took a setosa and a versicolor from every fold and no virginica.
 func TestDeviceSample(t *testing.T) {

@@ -423,13 +423,9 @@ func runUnit(stop, inFlight context.Context, p *plan.Plan, unit []int, started f
 			return err
 		}
 		started()
-		r, err := runModel(inFlight, p, p.Tasks[i], pr)
+		r, err := runTask(inFlight, p, i, pr, failed)
 		if err != nil {
-			failed()
-			if errors.Is(err, input.ErrBad) {
-				return err
-			}
-			return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+			return err
 		}
 		r.Elapsed += shared
 		finished(i, r)
@@ -492,13 +488,9 @@ func runShared(stop, inFlight context.Context, p *plan.Plan, su *sharedUnit, fir
 		return err
 	}
 	started()
-	r, err := runModel(inFlight, p, p.Tasks[i], pr)
+	r, err := runTask(inFlight, p, i, pr, failed)
 	if err != nil {
-		failed()
-		if errors.Is(err, input.ErrBad) {
-			return err
-		}
-		return fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+		return err
 	}
 	r.Elapsed += took / time.Duration(n)
 	finished(i, r)
@@ -509,6 +501,21 @@ func runShared(stop, inFlight context.Context, p *plan.Plan, su *sharedUnit, fir
 // interference classifier: between gates and rows).
 type contextDetailer interface {
 	PredictDetailContext(ctx context.Context, X *mat.Dense) ([]int, []qkernel.Detail, error)
+}
+
+// runTask runs task i on its prepared split (runModel); on an error it
+// calls failed and returns the error, bad input as it is and anything
+// else with the task's key.
+func runTask(ctx context.Context, p *plan.Plan, i int, pr *plan.Prepared, failed func()) (TaskResult, error) {
+	r, err := runModel(ctx, p, p.Tasks[i], pr)
+	if err != nil {
+		failed()
+		if errors.Is(err, input.ErrBad) {
+			return TaskResult{}, err
+		}
+		return TaskResult{}, fmt.Errorf("task %s: %w", p.Key(p.Tasks[i]), err)
+	}
+	return r, nil
 }
 
 // runModel fits one task's model on the prepared (transformed) training

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -48,28 +47,7 @@ func TestBadDeviceInput(t *testing.T) {
 	cases := badDeviceCases
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {
-			work := t.TempDir()
-			out := filepath.Join(work, "out")
-			code, _, stderr := runCmd(t, work, "run", filepath.Join(bad, c.spec), "-out", out, "-workers", "2")
-			if code != 2 {
-				t.Fatalf("exit status %d, want 2; stderr:\n%s", code, stderr)
-			}
-			msg := strings.TrimSpace(stderr)
-			if strings.Count(msg, "\n") != 0 {
-				t.Errorf("message has %d lines, want one:\n%s", strings.Count(msg, "\n")+1, msg)
-			}
-			for _, w := range c.want {
-				if !strings.Contains(msg, w) {
-					t.Errorf("message %q lacks %q", msg, w)
-				}
-			}
-			entries, err := os.ReadDir(work)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, e := range entries {
-				t.Errorf("left %s behind in the working directory", e.Name())
-			}
+			checkRefused(t, []string{"run", filepath.Join(bad, c.spec), "-workers", "2"}, c.want)
 		})
 	}
 }

@@ -86,28 +86,7 @@ func TestBadInput(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {
-			work := t.TempDir()
-			out := filepath.Join(work, "out")
-			code, _, stderr := runCmd(t, work, "run", filepath.Join(bad, c.spec), "-out", out, "-workers", "2")
-			if code != 2 {
-				t.Fatalf("exit status %d, want 2; stderr:\n%s", code, stderr)
-			}
-			msg := strings.TrimSpace(stderr)
-			if strings.Count(msg, "\n") != 0 {
-				t.Errorf("message has %d lines, want one:\n%s", strings.Count(msg, "\n")+1, msg)
-			}
-			for _, w := range c.want {
-				if !strings.Contains(msg, w) {
-					t.Errorf("message %q lacks %q", msg, w)
-				}
-			}
-			entries, err := os.ReadDir(work)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, e := range entries {
-				t.Errorf("left %s behind in the working directory", e.Name())
-			}
+			checkRefused(t, []string{"run", filepath.Join(bad, c.spec), "-workers", "2"}, c.want)
 		})
 	}
 	if n := len(cases); n < 15 {
@@ -300,5 +279,35 @@ func TestNoFigures(t *testing.T) {
 		if err != nil || !bytes.Equal(x, y) {
 			t.Errorf("%s differs with -figures=false (%v)", f, err)
 		}
+	}
+}
+
+// checkRefused runs fringe with args and -out DIR/out in a fresh working
+// directory DIR and checks that the input is refused as bad input: exit
+// status 2, a one-line message holding every string of want, and nothing
+// left behind in DIR.
+func checkRefused(t *testing.T, args []string, want []string) {
+	t.Helper()
+	work := t.TempDir()
+	args = append(args, "-out", filepath.Join(work, "out"))
+	code, _, stderr := runCmd(t, work, args...)
+	if code != 2 {
+		t.Fatalf("exit status %d, want 2; stderr:\n%s", code, stderr)
+	}
+	msg := strings.TrimSpace(stderr)
+	if strings.Count(msg, "\n") != 0 {
+		t.Errorf("message has %d lines, want one:\n%s", strings.Count(msg, "\n")+1, msg)
+	}
+	for _, w := range want {
+		if !strings.Contains(msg, w) {
+			t.Errorf("message %q lacks %q", msg, w)
+		}
+	}
+	entries, err := os.ReadDir(work)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		t.Errorf("left %s behind in the working directory", e.Name())
 	}
 }

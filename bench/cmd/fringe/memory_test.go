@@ -1,9 +1,7 @@
 package main
 
 import (
-	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 )
 
@@ -38,29 +36,7 @@ func TestMemoryRefused(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.spec, func(t *testing.T) {
-			work := t.TempDir()
-			out := filepath.Join(work, "out")
-			args := append([]string{"run", filepath.Join(bad, c.spec), "-out", out}, c.args...)
-			code, _, stderr := runCmd(t, work, args...)
-			if code != 2 {
-				t.Fatalf("exit status %d, want 2; stderr:\n%s", code, stderr)
-			}
-			msg := strings.TrimSpace(stderr)
-			if strings.Count(msg, "\n") != 0 {
-				t.Errorf("message has %d lines, want one:\n%s", strings.Count(msg, "\n")+1, msg)
-			}
-			for _, w := range c.want {
-				if !strings.Contains(msg, w) {
-					t.Errorf("message %q lacks %q", msg, w)
-				}
-			}
-			entries, err := os.ReadDir(work)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, e := range entries {
-				t.Errorf("left %s behind in the working directory", e.Name())
-			}
+			checkRefused(t, append([]string{"run", filepath.Join(bad, c.spec)}, c.args...), c.want)
 		})
 	}
 	// Within a limit that holds it, the k-NN spec runs.
